@@ -9,8 +9,8 @@ const (
 	// KB is the Boltzmann constant in J/K (exact, SI 2019 redefinition).
 	KB = 1.380649e-23
 
-	// T0 is the reference temperature in K used by the IEEE definition of
-	// noise figure (IEEE Std 161; 290 K).
+	// T0 is the standard reference temperature in K of the IEEE definition
+	// of noise figure (290 K).
 	T0 = 290.0
 
 	// EarthRadius is the mean radius of the Earth in m (6371 km, the value
