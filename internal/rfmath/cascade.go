@@ -1,0 +1,152 @@
+package rfmath
+
+import "math"
+
+// Stage is one two-port in a receive or transmit chain.
+type Stage struct {
+	Name     string
+	GainDB   float64 // available power gain, dB
+	NFDB     float64 // noise figure, dB
+	IIP3     float64 // input third-order intercept, dBm; valid only if HasIIP3
+	HasIIP3  bool
+	IP1dB    float64 // input 1 dB compression point, dBm; valid only if HasIP1dB
+	HasIP1dB bool
+}
+
+// StageResult holds the cascade figures from the chain input up to and
+// including one stage, plus that stage's contributions to the whole chain.
+type StageResult struct {
+	CumGainDB, CumNFDB, CumTeK float64
+
+	// CumIIP3 is the input-referred IIP3 (dBm) of the cascade up to and
+	// including this stage; HasIIP3 is false while no stage so far has one.
+	CumIIP3 float64
+	HasIIP3 bool
+
+	// CumIP1dB is the input-referred 1 dB compression point (dBm) of the
+	// cascade up to and including this stage.
+	CumIP1dB float64
+	HasIP1dB bool
+
+	// NoiseShare is this stage's share (0..1) of the whole chain's excess
+	// noise factor F−1; the shares sum to 1 (all zero if F−1 = 0).
+	NoiseShare float64
+
+	// IIP3Share is this stage's share (0..1) of 1/IIP3 of the whole chain
+	// (input-referred); shares sum to 1 over the stages that have an IIP3.
+	IIP3Share float64
+}
+
+// Cascade is the result of CascadeChain: per-stage results and the totals.
+type Cascade struct {
+	Stages []StageResult
+
+	GainDB float64 // total gain, dB
+	NFDB   float64 // total noise figure, dB
+	TeK    float64 // total equivalent input noise temperature, K
+
+	IIP3, OIP3 float64 // input / output third-order intercept, dBm
+	HasIIP3    bool
+
+	IP1dB    float64 // input-referred 1 dB compression point, dBm
+	HasIP1dB bool
+}
+
+// CascadeChain evaluates a chain of stages in order from input to output.
+//
+// Noise uses the Friis formula (H. T. Friis, "Noise figures of radio
+// receivers", Proc. IRE 32, 1944), with linear noise factors Fi and gains Gi:
+//
+//	F = F1 + (F2 − 1)/G1 + (F3 − 1)/(G1 G2) + …,  Te = T0 (F − 1)
+//
+// Intercepts use the standard cascade of third-order intercepts, input
+// referred, in mW (coherent worst case):
+//
+//	1/IIP3 = 1/IIP3_1 + G1/IIP3_2 + G1 G2/IIP3_3 + …,  OIP3 = IIP3 + G (dB)
+//
+// The 1 dB compression points are cascaded with the same expression, a
+// common approximation. Stages without an IIP3 (or IP1dB) are treated as
+// perfectly linear. An empty chain has 0 dB gain and 0 dB noise figure.
+func CascadeChain(stages []Stage) Cascade {
+	res := Cascade{Stages: make([]StageResult, len(stages))}
+	gPrev := 1.0 // linear gain ahead of the current stage
+	var (
+		gainDB  float64
+		noise   = make([]float64, len(stages)) // (Fi − 1)/G_before
+		ip3     = make([]float64, len(stages)) // G_before / IIP3_i, 1/mW
+		sumN    float64
+		sumIP3  float64
+		sumP1   float64
+		haveIP3 bool
+		haveP1  bool
+	)
+	for i, s := range stages {
+		noise[i] = (FromDB(s.NFDB) - 1) / gPrev
+		sumN += noise[i]
+		if s.HasIIP3 {
+			ip3[i] = gPrev / FromDB(s.IIP3)
+			sumIP3 += ip3[i]
+			haveIP3 = true
+		}
+		if s.HasIP1dB {
+			sumP1 += gPrev / FromDB(s.IP1dB)
+			haveP1 = true
+		}
+		gainDB += s.GainDB
+		gPrev *= FromDB(s.GainDB)
+
+		r := &res.Stages[i]
+		r.CumGainDB = gainDB
+		r.CumNFDB = 10 * math.Log10(1+sumN)
+		r.CumTeK = T0 * sumN
+		if haveIP3 {
+			r.CumIIP3, r.HasIIP3 = -10*math.Log10(sumIP3), true
+		}
+		if haveP1 {
+			r.CumIP1dB, r.HasIP1dB = -10*math.Log10(sumP1), true
+		}
+	}
+	for i := range res.Stages {
+		if sumN != 0 {
+			res.Stages[i].NoiseShare = noise[i] / sumN
+		}
+		if sumIP3 != 0 && stages[i].HasIIP3 {
+			res.Stages[i].IIP3Share = ip3[i] / sumIP3
+		}
+	}
+	res.GainDB = gainDB
+	res.NFDB = 10 * math.Log10(1+sumN)
+	res.TeK = T0 * sumN
+	if haveIP3 {
+		res.IIP3, res.HasIIP3 = -10*math.Log10(sumIP3), true
+		res.OIP3 = res.IIP3 + gainDB
+	}
+	if haveP1 {
+		res.IP1dB, res.HasIP1dB = -10*math.Log10(sumP1), true
+	}
+	return res
+}
+
+// IM3 returns the output level in dBm of each two-tone third-order
+// intermodulation product for a per-tone output power pout (dBm) and output
+// intercept oip3 (dBm):
+//
+//	P_IM3 = 3 Pout − 2 OIP3
+//
+// Source: definition of the third-order intercept point (the IM3 products
+// rise 3 dB per dB of fundamental; Pozar, Microwave Engineering).
+func IM3(pout, oip3 float64) float64 {
+	return 3*pout - 2*oip3
+}
+
+// SFDR returns the spurious-free dynamic range in dB for an input intercept
+// iip3 (dBm) and an input-referred noise floor (dBm, in the bandwidth of
+// interest):
+//
+//	SFDR = (2/3)(IIP3 − floor)
+//
+// Source: standard two-tone dynamic range definition (Pozar, Microwave
+// Engineering).
+func SFDR(iip3, floor float64) float64 {
+	return 2 * (iip3 - floor) / 3
+}
