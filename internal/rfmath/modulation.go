@@ -26,7 +26,7 @@ func qamBER(m, ebn0 float64) float64 {
 	k := math.Log2(m)
 	es := k * ebn0
 	p := 2 * (1 - 1/math.Sqrt(m)) * Q(math.Sqrt(3*es/(m-1)))
-	ps := 1 - (1-p)*(1-p)
+	ps := p * (2 - p) // 1 − (1 − p)², without cancellation at tiny p
 	return ps / k
 }
 
