@@ -1,0 +1,313 @@
+package engine
+
+import (
+	"fmt"
+	"reflect"
+	"sort"
+	"strings"
+
+	"rfledger/units"
+)
+
+// ArgKind is what a function argument is: a quantity, a text (a scheme name), or a chain.
+type ArgKind uint8
+
+const (
+	// ArgQuantity is a number with a unit.
+	ArgQuantity ArgKind = iota
+	// ArgText is a name in single quotes, such as 'qpsk'.
+	ArgText
+	// ArgChain is a chain of stages ([[rx.chain]]).
+	ArgChain
+)
+
+// Arg describes one argument of a built-in function. For quantities, Dim and Form say what is
+// wanted; the engine checks them before the call and converts between linear and decibel forms
+// when Form allows both, so a function receives its arguments in the form it declares.
+type Arg struct {
+	Name     string
+	Kind     ArgKind
+	Dim      units.Dim
+	Form     Form
+	Optional bool
+}
+
+// Form is the form of a quantity argument.
+type Form uint8
+
+const (
+	// AnyQuantity accepts any quantity as it is, whatever its dimension and form.
+	AnyQuantity Form = iota
+	// LinearOnly wants a linear value of the argument's dimension.
+	LinearOnly
+	// LevelOnly wants a decibel value of the argument's dimension (a dB ratio when dimensionless).
+	LevelOnly
+	// AsLinear takes either form and hands the function the linear value.
+	AsLinear
+	// AsLevel takes either form and hands the function the decibel value.
+	AsLevel
+)
+
+// Func is a built-in function: its name, arguments, documentation, published source, and the
+// Go code that computes it. Call receives the arguments in declared order (units.Q, string or
+// *ChainValue); an optional argument that was left out is nil; a variadic function's last
+// argument repeats. Call reports out-of-validity inputs with c.Warn and impossible ones as errors.
+type Func struct {
+	Name     string
+	Args     []Arg
+	Variadic bool
+	Result   string // the unit or kind of the result, for the signature
+	Doc      string
+	Source   string
+	Call     func(c *Call, args []any) (units.Q, error)
+}
+
+// Call is the context of one function call: it collects validity warnings for the quantity
+// being evaluated.
+type Call struct {
+	warnings []string
+	quiet    bool
+}
+
+// Warn records that the call went outside its model's validity; the report shows it against the quantity.
+func (c *Call) Warn(format string, args ...any) {
+	if c == nil || c.quiet {
+		return
+	}
+	c.warnings = append(c.warnings, fmt.Sprintf(format, args...))
+}
+
+// Signature writes the function's call form with argument units, e.g.
+// "fspl(d: length, f: frequency) -> dB".
+func (f *Func) Signature() string {
+	var parts []string
+	for i, a := range f.Args {
+		s := a.Name + ": " + a.describe()
+		if f.Variadic && i == len(f.Args)-1 {
+			s += ", ..."
+		}
+		if a.Optional {
+			s = "[" + s + "]"
+		}
+		parts = append(parts, s)
+	}
+	sig := f.Name + "(" + strings.Join(parts, ", ") + ")"
+	if f.Result != "" {
+		sig += " -> " + f.Result
+	}
+	return sig
+}
+
+func (a Arg) describe() string {
+	switch a.Kind {
+	case ArgText:
+		return "name"
+	case ArgChain:
+		return "chain"
+	}
+	what := dimWord(a.Dim)
+	switch a.Form {
+	case AnyQuantity:
+		return "any"
+	case LevelOnly:
+		if a.Dim.IsNone() {
+			return "dB"
+		}
+		return what + " in dB"
+	case AsLevel, AsLinear:
+		return what
+	}
+	return what
+}
+
+func dimWord(d units.Dim) string {
+	switch d {
+	case units.None:
+		return "number"
+	case units.Length:
+		return "length"
+	case units.Frequency:
+		return "frequency"
+	case units.Power:
+		return "power"
+	case units.Temperature:
+		return "temperature"
+	case units.Time:
+		return "time"
+	case units.PowerDensity:
+		return "power density"
+	}
+	return d.String()
+}
+
+// check converts and checks one quantity argument against its declaration.
+func (a Arg) check(q units.Q) (units.Q, error) {
+	if a.Form == AnyQuantity {
+		return q, nil
+	}
+	if q.D != a.Dim || q.K == units.Rate {
+		return q, fmt.Errorf("%s: got %s, want %s", a.Name, unitOrNumber(q), a.want())
+	}
+	switch a.Form {
+	case LinearOnly:
+		if q.K != units.Linear {
+			return q, fmt.Errorf("%s: got %s, want %s", a.Name, unitOrNumber(q), a.want())
+		}
+	case LevelOnly:
+		if q.K != units.Level {
+			return q, fmt.Errorf("%s: got %s, want %s", a.Name, unitOrNumber(q), a.want())
+		}
+	case AsLinear:
+		return q.Linear(), nil
+	case AsLevel:
+		l, err := q.ToLevel()
+		if err != nil {
+			return q, fmt.Errorf("%s: %v", a.Name, err)
+		}
+		return l, nil
+	}
+	return q, nil
+}
+
+func (a Arg) want() string {
+	switch {
+	case a.Form == LevelOnly && a.Dim.IsNone():
+		return "a ratio in dB"
+	case a.Form == LevelOnly:
+		return dimArticle(a.Dim) + " in dB"
+	case a.Form == LinearOnly && a.Dim.IsNone():
+		return "a plain number"
+	}
+	return dimArticle(a.Dim)
+}
+
+func dimArticle(d units.Dim) string {
+	w := dimWord(d)
+	if strings.ContainsAny(w[:1], "aeiou") {
+		return "an " + w
+	}
+	return "a " + w
+}
+
+func unitOrNumber(q units.Q) string {
+	if n := q.UnitName(); n != "" {
+		return n
+	}
+	return "a plain number"
+}
+
+// Library is a set of built-in functions, looked up by name.
+type Library struct {
+	funcs map[string]*Func
+}
+
+// NewLibrary returns a library holding the given functions. A later function with the same
+// name replaces an earlier one.
+func NewLibrary(fs ...*Func) *Library {
+	l := &Library{funcs: map[string]*Func{}}
+	for _, f := range fs {
+		l.funcs[f.Name] = f
+	}
+	return l
+}
+
+// Lookup returns the named function.
+func (l *Library) Lookup(name string) (*Func, bool) {
+	if l == nil {
+		return nil, false
+	}
+	f, ok := l.funcs[name]
+	return f, ok
+}
+
+// Funcs returns the functions sorted by name.
+func (l *Library) Funcs() []*Func {
+	var out []*Func
+	if l == nil {
+		return out
+	}
+	for _, f := range l.funcs {
+		out = append(out, f)
+	}
+	sort.Slice(out, func(i, j int) bool { return out[i].Name < out[j].Name })
+	return out
+}
+
+func (l *Library) names() []string {
+	var out []string
+	for _, f := range l.Funcs() {
+		out = append(out, f.Name)
+	}
+	return out
+}
+
+var (
+	qType     = reflect.TypeOf(units.Q{})
+	strType   = reflect.TypeOf("")
+	chainType = reflect.TypeOf((*ChainValue)(nil))
+	callType  = reflect.TypeOf((*Call)(nil))
+	boolType  = reflect.TypeOf(true)
+)
+
+func (k ArgKind) goType() reflect.Type {
+	switch k {
+	case ArgText:
+		return strType
+	case ArgChain:
+		return chainType
+	}
+	return qType
+}
+
+// exprTypes lists the Go function types expr's checker accepts for f: one per arity when
+// arguments are optional, with the *Call context first.
+func (f *Func) exprTypes() []any {
+	var out []any
+	required := 0
+	for _, a := range f.Args {
+		if !a.Optional {
+			required++
+		}
+	}
+	for n := required; n <= len(f.Args); n++ {
+		in := []reflect.Type{callType}
+		for _, a := range f.Args[:n] {
+			in = append(in, a.Kind.goType())
+		}
+		variadic := f.Variadic && n == len(f.Args)
+		if variadic {
+			in[len(in)-1] = reflect.SliceOf(in[len(in)-1])
+		}
+		ft := reflect.FuncOf(in, []reflect.Type{qType}, variadic)
+		out = append(out, reflect.New(ft).Interface())
+	}
+	return out
+}
+
+// invoke is what expr calls: it checks and converts arguments, then calls f.
+func (f *Func) invoke(params ...any) (any, error) {
+	c, _ := params[0].(*Call)
+	args := make([]any, len(f.Args), max(len(f.Args), len(params)-1))
+	for i := 1; i < len(params); i++ {
+		ai := min(i-1, len(f.Args)-1)
+		a := f.Args[ai]
+		v := params[i]
+		if q, ok := v.(units.Q); ok && a.Kind == ArgQuantity {
+			cq, err := a.check(q)
+			if err != nil {
+				return nil, fmt.Errorf("%s: %w", f.Name, err)
+			}
+			v = cq
+		}
+		if i-1 < len(args) {
+			args[i-1] = v
+		} else {
+			args = append(args, v)
+		}
+	}
+	q, err := f.Call(c, args)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", f.Name, err)
+	}
+	return q, nil
+}

@@ -1,0 +1,739 @@
+package engine
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"io/fs"
+	"path"
+	"regexp"
+	"sort"
+	"strconv"
+	"strings"
+	"unicode/utf8"
+
+	"github.com/BurntSushi/toml"
+
+	"rfledger/units"
+)
+
+// Limits on a worksheet, each with its own error.
+const (
+	MaxQuantities = 1_000_000
+	MaxPartsDepth = 8
+	MaxSweepSteps = 10_000
+	maxFileSize   = 64 << 20
+)
+
+var validName = regexp.MustCompile(`^[A-Za-z][A-Za-z0-9_]*$`)
+
+// loader builds a Sheet from a worksheet file and its parts.
+type loader struct {
+	sh    *Sheet
+	fsys  fs.FS
+	diags Diagnostics
+	hash  []byte
+	stack []string // part files being loaded, for loops
+	nq    int
+
+	formulaSites []site
+	reqSites     []site
+}
+
+// site is where a formula stands, to compile it once every name is known.
+type site struct {
+	f    *sheetFile
+	path string
+	node int
+	sc   scope
+	req  *Require
+}
+
+// sheetFile is one file being loaded (the worksheet or a part).
+type sheetFile struct {
+	name   string // path shown in diagnostics
+	fsPath string // path inside the loader's fs
+	ix     *posIndex
+	prefix string // part prefix, "" for the worksheet
+	src    string
+}
+
+func (f *sheetFile) rangeOf(path string) Range {
+	r := Range{File: f.name}
+	if p, ok := f.ix.get(path); ok {
+		r.Start = p.Key
+		r.End = p.Key
+	} else if i := strings.LastIndexAny(path, ".["); i > 0 {
+		return f.rangeOf(strings.TrimSuffix(path[:i], "]"))
+	}
+	return r
+}
+
+func (f *sheetFile) valueRange(path string) Range {
+	r := f.rangeOf(path)
+	if p, ok := f.ix.get(path); ok {
+		r.Start = p.Val
+	}
+	return r
+}
+
+func (l *loader) errAt(r Range, name, hint, format string, args ...any) {
+	l.diags = append(l.diags, Diagnostic{Severity: Error, Quantity: name, Summary: fmt.Sprintf(format, args...), Hint: hint, Range: r})
+}
+
+// load reads one file (the worksheet when prefix is "") into the sheet.
+func (l *loader) load(fsPath, display, prefix string, at Range) {
+	for _, s := range l.stack {
+		if s == fsPath {
+			l.errAt(at, "", "", "parts form a loop: %s -> %s", strings.Join(l.stack, " -> "), fsPath)
+			return
+		}
+	}
+	if len(l.stack) > MaxPartsDepth {
+		l.errAt(at, "", "flatten the parts", "parts nest more than %d deep", MaxPartsDepth)
+		return
+	}
+	data, err := fs.ReadFile(l.fsys, fsPath)
+	if err != nil {
+		msg := err.Error()
+		if errors.Is(err, fs.ErrNotExist) {
+			msg = "no such file"
+		}
+		l.errAt(at, "", "", "cannot read %s: %s", display, msg)
+		return
+	}
+	if len(data) > maxFileSize {
+		l.errAt(at, "", "", "%s is larger than %d MiB", display, maxFileSize>>20)
+		return
+	}
+	h := sha256.Sum256(data)
+	l.hash = append(l.hash, h[:]...)
+	if !utf8.Valid(data) {
+		l.errAt(Range{File: display}, "", "save the file as UTF-8", "the file is not valid UTF-8 text")
+		return
+	}
+	l.stack = append(l.stack, fsPath)
+	defer func() { l.stack = l.stack[:len(l.stack)-1] }()
+
+	src := string(data)
+	f := &sheetFile{name: display, fsPath: fsPath, ix: indexTOML(src), prefix: prefix, src: src}
+	var doc map[string]any
+	if _, err := toml.Decode(src, &doc); err != nil {
+		var pe toml.ParseError
+		r := Range{File: display}
+		msg := err.Error()
+		if errors.As(err, &pe) {
+			r.Start = Pos{pe.Position.Line, max(pe.Position.Col, 1)}
+			msg = "TOML syntax: " + pe.Message
+		}
+		l.errAt(r, "", "see https://toml.io for the syntax", "%s", msg)
+		return
+	}
+	l.document(f, doc)
+}
+
+var topKeys = []string{"title", "summary", "focus", "use", "require", "sweep", "solve"}
+
+func (l *loader) document(f *sheetFile, doc map[string]any) {
+	top := &Group{Name: f.prefix, Range: Range{File: f.name, Start: Pos{1, 1}}}
+	l.sh.Groups = append(l.sh.Groups, top)
+	main := f.prefix == ""
+	for _, key := range l.ordered(f, "", doc) {
+		v := doc[key]
+		r := f.rangeOf(key)
+		switch key {
+		case "title", "summary", "focus":
+			s, ok := v.(string)
+			if !ok {
+				l.errAt(r, "", "", "%s must be a text in quotes", key)
+				continue
+			}
+			if !main {
+				continue // a part's title and focus belong to the part's own page
+			}
+			switch key {
+			case "title":
+				l.sh.Title = s
+			case "summary":
+				l.sh.Summary = s
+			case "focus":
+				l.sh.Focus = s
+			}
+		case "use":
+			l.parts(f, v, r)
+		case "require":
+			if main {
+				l.requires(f, v)
+			}
+		case "sweep":
+			if main {
+				l.sweeps(f, v)
+			}
+		case "solve":
+			if main {
+				l.solves(f, v)
+			}
+		default:
+			l.member(f, top, key, key, v)
+		}
+	}
+}
+
+// ordered returns the keys of table m (at path) in file order.
+func (l *loader) ordered(f *sheetFile, path string, m map[string]any) []string {
+	keys := make([]string, 0, len(m))
+	for k := range m {
+		keys = append(keys, k)
+	}
+	pos := func(k string) (int, int) {
+		if p, ok := f.ix.get(join(path, k)); ok {
+			return p.Key.Line, p.Key.Col
+		}
+		if p, ok := f.ix.get(join(path, k) + "[0]"); ok {
+			return p.Key.Line, p.Key.Col
+		}
+		return 1 << 30, 0
+	}
+	sort.Slice(keys, func(i, j int) bool {
+		li, ci := pos(keys[i])
+		lj, cj := pos(keys[j])
+		if li != lj {
+			return li < lj
+		}
+		if ci != cj {
+			return ci < cj
+		}
+		return keys[i] < keys[j]
+	})
+	return keys
+}
+
+// member adds one key of a group: a quantity, a nested group or a chain.
+func (l *loader) member(f *sheetFile, g *Group, path, key string, v any) {
+	r := f.rangeOf(path)
+	full := join(g.Name, key)
+	if !validName.MatchString(key) {
+		l.errAt(r, full, "names start with a letter and hold letters, digits and _", "%q is not a valid name", key)
+		return
+	}
+	if _, ok := predeclared[key]; ok && g.Name == "" {
+		l.errAt(r, full, "pi, c0, kB and T0 are built in; choose another name", "%q cannot be redefined", key)
+		return
+	}
+	switch v := v.(type) {
+	case map[string]any:
+		if _, long := v["is"]; long || hasAny(v, quantityKeys[1:]) {
+			l.quantity(f, g, path, key, v)
+			return
+		}
+		sub := &Group{Name: full, Range: r}
+		l.sh.Groups = append(l.sh.Groups, sub)
+		for _, k := range l.ordered(f, path, v) {
+			l.member(f, sub, join(path, k), k, v[k])
+		}
+	case []map[string]any:
+		l.chain(f, g, path, key, v)
+	case []any:
+		tables := make([]map[string]any, 0, len(v))
+		for _, e := range v {
+			m, ok := e.(map[string]any)
+			if !ok {
+				l.errAt(r, full, "a quantity is a text such as \"3 dB\"; an array is only for chains of stages", "arrays are not quantities")
+				return
+			}
+			tables = append(tables, m)
+		}
+		l.chain(f, g, path, key, tables)
+	default:
+		l.quantity(f, g, path, key, map[string]any{"is": v})
+	}
+}
+
+var quantityKeys = []string{"is", "tol", "dist", "note", "show", "source", "export"}
+
+func hasAny(m map[string]any, keys []string) bool {
+	for _, k := range keys {
+		if _, ok := m[k]; ok {
+			return true
+		}
+	}
+	return false
+}
+
+func (l *loader) addNode(n *node) int {
+	n.env = "@" + n.name
+	id := len(l.sh.nodes)
+	l.sh.nodes = append(l.sh.nodes, n)
+	l.sh.byName[n.name] = id
+	return id
+}
+
+func (l *loader) quantity(f *sheetFile, g *Group, path, key string, m map[string]any) {
+	full := join(g.Name, key)
+	r := f.rangeOf(path)
+	if _, dup := l.sh.byName[full]; dup {
+		l.errAt(r, full, "", "%s is defined twice", full)
+		return
+	}
+	l.nq++
+	if l.nq > MaxQuantities {
+		if l.nq == MaxQuantities+1 {
+			l.errAt(r, full, "split the worksheet into parts", "more than %d quantities", MaxQuantities)
+		}
+		return
+	}
+	q := &Quantity{Name: full, Group: g.Name, Range: r}
+	ok := l.quantityFields(f, q, path, m)
+	n := &node{name: full, q: q, ok: ok}
+	if ok && q.Formula == "" {
+		n.input = q.Value
+		q.Known = true
+	}
+	q.node = l.addNode(n)
+	l.formulaSites = append(l.formulaSites, site{f: f, path: path + isPath(m), node: q.node, sc: scope{group: g.Name, part: f.prefix}})
+	g.Quantities = append(g.Quantities, q)
+}
+
+func isPath(m map[string]any) string {
+	if len(m) == 1 {
+		if _, ok := m["is"]; ok {
+			return ""
+		}
+	}
+	return ".is"
+}
+
+// quantityFields reads the long form of a quantity; it reports whether the value is usable.
+func (l *loader) quantityFields(f *sheetFile, q *Quantity, path string, m map[string]any) bool {
+	ok := true
+	for _, k := range l.ordered(f, path, m) {
+		if !contains(quantityKeys, k) {
+			l.errAt(f.rangeOf(join(path, k)), q.Name, didYouMean(k, quantityKeys, "a quantity's keys are is, tol, dist, note, show, source, export"), "unknown key %q", k)
+			ok = false
+		}
+	}
+	isv, has := m["is"]
+	if !has {
+		l.errAt(f.rangeOf(path), q.Name, "add is = \"<value>\"", "the long form needs \"is\"")
+		return false
+	}
+	vr := f.valueRange(path + isPath(m))
+	switch v := isv.(type) {
+	case string:
+		if rest, isFormula := strings.CutPrefix(strings.TrimSpace(v), "="); isFormula {
+			q.Formula = strings.TrimSpace(rest)
+			break
+		}
+		val, u, err := units.Parse(v)
+		if err != nil {
+			l.errAt(vr, q.Name, unitHint(err), "%s", unitMsg(err))
+			ok = false
+			break
+		}
+		q.Text, q.Unit, q.Value = strings.TrimSpace(v), u, val
+	case int64:
+		q.Text, q.Value = strconv.FormatInt(v, 10), units.Num(float64(v))
+	case float64:
+		q.Text, q.Value = strconv.FormatFloat(v, 'g', -1, 64), units.Num(v)
+	default:
+		l.errAt(vr, q.Name, "write a number, a number with a unit in quotes (\"3 dB\"), or \"= formula\"", "a %s is not a quantity", tomlType(v))
+		ok = false
+	}
+	for _, k := range []string{"note", "source", "show", "dist"} {
+		if v, has := m[k]; has {
+			s, isStr := v.(string)
+			if !isStr {
+				l.errAt(f.valueRange(join(path, k)), q.Name, "", "%s must be a text in quotes", k)
+				ok = false
+				continue
+			}
+			switch k {
+			case "note":
+				q.Note = s
+			case "source":
+				q.Source = s
+			case "show":
+				u, err := units.ParseUnit(s)
+				if err != nil {
+					l.errAt(f.valueRange(join(path, k)), q.Name, unitHint(err), "show: %s", unitMsg(err))
+					ok = false
+				}
+				q.Show = u
+			}
+		}
+	}
+	if v, has := m["export"]; has {
+		b, isBool := v.(bool)
+		if !isBool {
+			l.errAt(f.valueRange(join(path, "export")), q.Name, "", "export must be true or false")
+		}
+		q.Export = b
+	}
+	if v, has := m["tol"]; has {
+		t, err := parseTol(v)
+		if err != nil {
+			l.errAt(f.valueRange(join(path, "tol")), q.Name, "write tol = \"1 dB\", \"10 %\" or [\"-0.5 dB\", \"+1.5 dB\"]", "tol: %v", err)
+			ok = false
+		} else {
+			q.Tol = t
+		}
+	}
+	if d, has := m["dist"].(string); has {
+		if !contains([]string{"normal", "uniform", "triangular"}, d) {
+			l.errAt(f.valueRange(join(path, "dist")), q.Name, didYouMean(d, []string{"normal", "uniform", "triangular"}, "dist is normal, uniform or triangular"), "unknown distribution %q", d)
+			ok = false
+		} else if q.Tol == nil {
+			l.errAt(f.valueRange(join(path, "dist")), q.Name, "add tol = \"…\"", "dist without tol")
+		} else {
+			q.Tol.Dist = d
+		}
+	}
+	if q.Tol != nil && q.Formula != "" {
+		l.errAt(f.valueRange(join(path, "tol")), q.Name, "put the tolerance on the inputs the formula uses", "a derived quantity cannot have a tolerance")
+		ok = false
+	}
+	if q.Tol != nil && q.Tol.Dist == "" {
+		q.Tol.Dist = "normal"
+	}
+	if ok && q.Tol != nil && q.Formula == "" {
+		if _, _, err := q.Tol.Limits(q.Value); err != nil {
+			l.errAt(f.valueRange(join(path, "tol")), q.Name, unitHint(err), "tol %s does not fit %s: %s", q.Tol.Text, q.Text, unitMsg(err))
+			ok = false
+		}
+	}
+	return ok
+}
+
+func parseTol(v any) (*Tol, error) {
+	switch v := v.(type) {
+	case string:
+		q, u, err := units.Parse(v)
+		if err != nil {
+			return nil, err
+		}
+		if q.V < 0 {
+			return nil, fmt.Errorf("a symmetric tolerance is written without a sign, e.g. \"1 dB\"")
+		}
+		if u.Sym == "%" || u.Sym == "ppm" {
+			return &Tol{Text: v, Relative: true, RelMinus: q.V, RelPlus: q.V}, nil
+		}
+		return &Tol{Text: v, Minus: q, Plus: q}, nil
+	case []any:
+		if len(v) != 2 {
+			return nil, fmt.Errorf("an asymmetric tolerance has two entries, low and high")
+		}
+		var qs [2]units.Q
+		var us [2]*units.Unit
+		for i, e := range v {
+			s, ok := e.(string)
+			if !ok {
+				return nil, fmt.Errorf("entries must be texts such as \"-0.5 dB\"")
+			}
+			q, u, err := units.Parse(s)
+			if err != nil {
+				return nil, err
+			}
+			qs[i], us[i] = q, u
+		}
+		if qs[0].V > 0 || qs[1].V < 0 {
+			return nil, fmt.Errorf("write the low side with a minus and the high side with a plus, e.g. [\"-0.5 dB\", \"+1.5 dB\"]")
+		}
+		text := fmt.Sprint(v[0], " / ", v[1])
+		if us[0].Sym == "%" && us[1].Sym == "%" {
+			return &Tol{Text: text, Relative: true, RelMinus: -qs[0].V, RelPlus: qs[1].V}, nil
+		}
+		minus, err := units.Neg(qs[0])
+		if err != nil {
+			return nil, err
+		}
+		return &Tol{Text: text, Minus: minus, Plus: qs[1]}, nil
+	}
+	return nil, fmt.Errorf("a tolerance is a text such as \"1 dB\" or a pair [\"-0.5 dB\", \"+1.5 dB\"]")
+}
+
+func tomlType(v any) string {
+	switch v.(type) {
+	case bool:
+		return "true/false value"
+	case map[string]any:
+		return "table"
+	case []any, []map[string]any:
+		return "array"
+	}
+	return "date or time"
+}
+
+func contains(list []string, s string) bool {
+	for _, x := range list {
+		if x == s {
+			return true
+		}
+	}
+	return false
+}
+
+func didYouMean(s string, candidates []string, otherwise string) string {
+	if n := units.Nearest(s, candidates); n != "" {
+		return fmt.Sprintf("did you mean %q?", n)
+	}
+	return otherwise
+}
+
+func unitMsg(err error) string {
+	var ue *units.Error
+	if errors.As(err, &ue) {
+		return ue.Msg
+	}
+	return err.Error()
+}
+
+func unitHint(err error) string {
+	var ue *units.Error
+	if errors.As(err, &ue) {
+		return ue.Hint
+	}
+	return ""
+}
+
+var stageAllKeys = append([]string{"stage", "note"}, stageKeys...)
+
+func (l *loader) chain(f *sheetFile, g *Group, path, key string, tables []map[string]any) {
+	full := join(g.Name, key)
+	r := f.rangeOf(path + "[0]")
+	if _, dup := l.sh.byName[full]; dup {
+		l.errAt(r, full, "", "%s is defined twice", full)
+		return
+	}
+	ch := &Chain{Name: full, Range: r}
+	n := &node{name: full, chain: ch, ok: true}
+	ch.node = l.addNode(n)
+	for i, t := range tables {
+		sp := path + "[" + strconv.Itoa(i) + "]"
+		st := &Stage{Label: fmt.Sprintf("stage %d", i+1), Values: map[string]*Quantity{}, Range: f.rangeOf(sp)}
+		for _, k := range l.ordered(f, sp, t) {
+			v := t[k]
+			kr := f.rangeOf(join(sp, k))
+			qname := fmt.Sprintf("%s[%d].%s", full, i+1, k)
+			switch {
+			case k == "stage" || k == "note":
+				s, ok := v.(string)
+				if !ok {
+					l.errAt(kr, qname, "", "%s must be a text in quotes", k)
+					continue
+				}
+				if k == "stage" {
+					st.Label = s
+				} else {
+					st.Note = s
+				}
+			case contains(stageKeys, k):
+				m, isMap := v.(map[string]any)
+				if !isMap {
+					m = map[string]any{"is": v}
+				}
+				q := &Quantity{Name: qname, Group: g.Name, Range: kr}
+				ok := l.quantityFields(f, q, join(sp, k), m)
+				qn := &node{name: qname, q: q, ok: ok}
+				if ok && q.Formula == "" {
+					qn.input, q.Known = q.Value, true
+				}
+				q.node = l.addNode(qn)
+				l.formulaSites = append(l.formulaSites, site{f: f, path: join(sp, k) + isPath(m), node: q.node, sc: scope{group: g.Name, part: f.prefix}})
+				st.Values[k] = q
+				st.Keys = append(st.Keys, k)
+				n.deps = append(n.deps, q.node)
+			default:
+				l.errAt(kr, qname, didYouMean(k, stageAllKeys, "a stage's keys are stage, gain, nf, te, loss, iip3, oip3, ip1db, op1db, note"), "unknown stage key %q", k)
+			}
+		}
+		if _, hasGain := st.Values["gain"]; hasGain {
+			if _, hasLoss := st.Values["loss"]; hasLoss {
+				l.errAt(st.Range, full, "a passive stage has loss; an active one gain", "stage %q has both gain and loss", st.Label)
+			}
+		}
+		ch.Stages = append(ch.Stages, st)
+	}
+	g.Chains = append(g.Chains, ch)
+}
+
+func (l *loader) parts(f *sheetFile, v any, r Range) {
+	m, ok := v.(map[string]any)
+	if !ok {
+		l.errAt(r, "", "write use = { name = \"parts/file.toml\" }", "use must be a table of part names and files")
+		return
+	}
+	for _, name := range l.ordered(f, "use", m) {
+		pr := f.valueRange(join("use", name))
+		file, ok := m[name].(string)
+		if !ok {
+			l.errAt(pr, "", "", "use.%s must be a file name in quotes", name)
+			continue
+		}
+		if !validName.MatchString(name) {
+			l.errAt(pr, "", "names start with a letter and hold letters, digits and _", "%q is not a valid part name", name)
+			continue
+		}
+		if path.IsAbs(file) || strings.HasPrefix(file, "\\") || strings.Contains(file, ":") {
+			l.errAt(pr, "", "parts are given relative to the worksheet", "part %q: absolute paths are not allowed", file)
+			continue
+		}
+		p := path.Clean(path.Join(path.Dir(f.fsPath), file))
+		if !fs.ValidPath(p) {
+			l.errAt(pr, "", "parts must stay inside the worksheet's folder", "part %q leaves the worksheet's folder", file)
+			continue
+		}
+		prefix := join(f.prefix, name)
+		if _, dup := l.sh.byName[prefix]; dup {
+			l.errAt(pr, "", "", "part name %q is already used", prefix)
+			continue
+		}
+		l.sh.Parts = append(l.sh.Parts, p)
+		display := path.Join(path.Dir(f.name), file)
+		l.load(p, display, prefix, pr)
+	}
+}
+
+func tableList(l *loader, f *sheetFile, key string, v any) []map[string]any {
+	switch v := v.(type) {
+	case []map[string]any:
+		return v
+	case []any:
+		var out []map[string]any
+		for _, e := range v {
+			if m, ok := e.(map[string]any); ok {
+				out = append(out, m)
+			}
+		}
+		if len(out) == len(v) {
+			return out
+		}
+	}
+	l.errAt(f.rangeOf(key), "", fmt.Sprintf("write each entry as [[%s]]", key), "%s must be a list of tables", key)
+	return nil
+}
+
+func (l *loader) checkKeys(f *sheetFile, path string, m map[string]any, allowed []string, what string) {
+	for _, k := range l.ordered(f, path, m) {
+		if !contains(allowed, k) {
+			l.errAt(f.rangeOf(join(path, k)), "", didYouMean(k, allowed, what+" keys are "+strings.Join(allowed, ", ")), "unknown key %q", k)
+		}
+	}
+}
+
+func (l *loader) requires(f *sheetFile, v any) {
+	for i, m := range tableList(l, f, "require", v) {
+		p := fmt.Sprintf("require[%d]", i)
+		l.checkKeys(f, p, m, []string{"that", "note"}, "a requirement's")
+		rq := &Require{Range: f.valueRange(join(p, "that"))}
+		rq.Note, _ = m["note"].(string)
+		that, ok := m["that"].(string)
+		if !ok {
+			l.errAt(f.rangeOf(p), "", "write that = \"= link.margin >= 6 dB\"", "a requirement needs that = \"= formula\"")
+			continue
+		}
+		rq.That = strings.TrimSpace(strings.TrimPrefix(strings.TrimSpace(that), "="))
+		l.sh.Requires = append(l.sh.Requires, rq)
+		l.reqSites = append(l.reqSites, site{f: f, path: join(p, "that"), req: rq})
+	}
+}
+
+func (l *loader) qty(f *sheetFile, path string, v any) (units.Q, bool) {
+	s, ok := v.(string)
+	if !ok {
+		if n, isNum := v.(int64); isNum {
+			return units.Num(float64(n)), true
+		}
+		if x, isNum := v.(float64); isNum {
+			return units.Num(x), true
+		}
+		l.errAt(f.valueRange(path), "", "", "%s must be a number with a unit in quotes, e.g. \"5 km\"", path)
+		return units.Q{}, false
+	}
+	q, _, err := units.Parse(s)
+	if err != nil {
+		l.errAt(f.valueRange(path), "", unitHint(err), "%s", unitMsg(err))
+		return units.Q{}, false
+	}
+	return q, true
+}
+
+func (l *loader) sweeps(f *sheetFile, v any) {
+	for i, m := range tableList(l, f, "sweep", v) {
+		p := fmt.Sprintf("sweep[%d]", i)
+		l.checkKeys(f, p, m, []string{"vary", "from", "to", "steps", "scale", "plot"}, "a sweep's")
+		sw := &Sweep{Range: f.rangeOf(p), Steps: 20}
+		sw.Vary, _ = m["vary"].(string)
+		var ok1, ok2 bool
+		sw.From, ok1 = l.qty(f, join(p, "from"), m["from"])
+		sw.To, ok2 = l.qty(f, join(p, "to"), m["to"])
+		if n, ok := m["steps"].(int64); ok {
+			sw.Steps = int(n)
+		}
+		if sw.Steps < 2 || sw.Steps > MaxSweepSteps {
+			l.errAt(f.valueRange(join(p, "steps")), "", "", "steps must be between 2 and %d", MaxSweepSteps)
+			continue
+		}
+		switch m["scale"] {
+		case nil, "lin", "linear":
+		case "log":
+			sw.Log = true
+		default:
+			l.errAt(f.valueRange(join(p, "scale")), "", "", "scale is \"lin\" or \"log\"")
+		}
+		switch pl := m["plot"].(type) {
+		case string:
+			sw.Plot = []string{pl}
+		case []any:
+			for _, e := range pl {
+				if s, ok := e.(string); ok {
+					sw.Plot = append(sw.Plot, s)
+				}
+			}
+		}
+		if sw.Vary == "" || !ok1 || !ok2 {
+			if sw.Vary == "" {
+				l.errAt(sw.Range, "", "", "a sweep needs vary, from and to")
+			}
+			continue
+		}
+		if sw.Log && (sw.From.V <= 0 || sw.To.V <= 0 || sw.From.K != units.Linear) {
+			l.errAt(f.valueRange(join(p, "scale")), "", "", "a log sweep needs positive linear from and to")
+			continue
+		}
+		l.sh.Sweeps = append(l.sh.Sweeps, sw)
+	}
+}
+
+func (l *loader) solves(f *sheetFile, v any) {
+	for i, m := range tableList(l, f, "solve", v) {
+		p := fmt.Sprintf("solve[%d]", i)
+		l.checkKeys(f, p, m, []string{"name", "vary", "so_that", "equals", "within"}, "a solve's")
+		so := &Solve{Range: f.rangeOf(p)}
+		so.Name, _ = m["name"].(string)
+		so.Vary, _ = m["vary"].(string)
+		so.SoThat, _ = m["so_that"].(string)
+		eq, ok := l.qty(f, join(p, "equals"), m["equals"])
+		so.Equals = eq
+		w, isList := m["within"].([]any)
+		if !isList || len(w) != 2 {
+			l.errAt(f.rangeOf(p), "", "write within = [\"10 m\", \"100 km\"]", "a solve needs within = [low, high]")
+			continue
+		}
+		lo, ok1 := l.qty(f, join(p, "within[0]"), w[0])
+		hi, ok2 := l.qty(f, join(p, "within[1]"), w[1])
+		so.Within = [2]units.Q{lo, hi}
+		if so.Name == "" || so.Vary == "" || so.SoThat == "" {
+			l.errAt(so.Range, "", "", "a solve needs name, vary, so_that, equals and within")
+			continue
+		}
+		if ok && ok1 && ok2 {
+			l.sh.Solves = append(l.sh.Solves, so)
+		}
+	}
+}
+
+func hashHex(b []byte) string {
+	h := sha256.Sum256(b)
+	return hex.EncodeToString(h[:])[:16]
+}

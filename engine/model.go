@@ -1,0 +1,230 @@
+package engine
+
+import (
+	"fmt"
+	"math"
+
+	"rfledger/units"
+)
+
+// Sheet is a loaded worksheet: its groups of quantities in file order, its chains,
+// requirements, sweeps and solves, and (after Eval) their values.
+type Sheet struct {
+	File    string // the worksheet's path as given
+	Title   string
+	Summary string
+	Focus   string // full name of the quantity the analyses centre on ("" when none)
+	Hash    string // hash of the worksheet's and its parts' bytes, for the report footer
+
+	Groups   []*Group
+	Requires []*Require
+	Sweeps   []*Sweep
+	Solves   []*Solve
+	Parts    []string // files brought in with `use`, in load order
+
+	nodes  []*node
+	byName map[string]int
+	order  []int // evaluation order of nodes (topological)
+	fc     *formulaCompiler
+	diags  Diagnostics
+	trials int
+	values *evaluator // the nominal evaluation, after Eval
+}
+
+// Group is a TOML table of the worksheet: quantities and chains under one dotted name.
+type Group struct {
+	Name       string // full dotted name, "" for the sheet's top level
+	Quantities []*Quantity
+	Chains     []*Chain
+	Range      Range
+}
+
+// Quantity is one line item: an input ("14 dBm") or a derived value ("= power - cable").
+type Quantity struct {
+	Name    string // full dotted name, e.g. "rx.floor"
+	Group   string
+	Formula string      // the formula without its leading "=", "" for inputs
+	Text    string      // an input as written, e.g. "14 dBm"
+	Unit    *units.Unit // the unit an input was written in (nil for derived quantities)
+	Show    *units.Unit // display unit asked for with `show`, or nil
+	Tol     *Tol        // tolerance, or nil
+	Note    string
+	Source  string
+	Export  bool
+	Range   Range
+
+	Value    units.Q // valid when Known (after Eval)
+	Known    bool
+	Warnings []string // validity warnings from the functions its formula called
+
+	node int
+}
+
+// Input reports whether the quantity is an input rather than derived from a formula.
+func (q *Quantity) Input() bool { return q.Formula == "" }
+
+// DisplayUnit is the unit the quantity's value is shown in: `show`, else the unit it was
+// written in, else nil (the unit the algebra gives).
+func (q *Quantity) DisplayUnit() *units.Unit {
+	if q.Show != nil {
+		return q.Show
+	}
+	return q.Unit
+}
+
+// Display formats the quantity's value in its display unit ("14.00 dBm", "2.4 km").
+func (q *Quantity) Display() string {
+	if !q.Known {
+		return "unknown"
+	}
+	return q.Value.Format(q.DisplayUnit())
+}
+
+// Tol is a tolerance: ±Plus/−Minus in the quantity's unit, or relative (fractions of the
+// linear value) when Relative. Dist is "normal" (limits are 3σ), "uniform" or "triangular".
+type Tol struct {
+	Text        string
+	Minus, Plus units.Q
+	Relative    bool
+	RelMinus    float64
+	RelPlus     float64
+	Dist        string
+}
+
+// Limits returns the low and high values of a quantity with nominal value nom.
+func (t *Tol) Limits(nom units.Q) (lo, hi units.Q, err error) {
+	if t.Relative {
+		lin := nom.Linear()
+		lo, hi = lin, lin
+		lo.V *= 1 - t.RelMinus
+		hi.V *= 1 + t.RelPlus
+		if nom.K == units.Level {
+			if lo, err = lo.ToLevel(); err != nil {
+				return nom, nom, fmt.Errorf("tolerance %s takes the value to zero or below", t.Text)
+			}
+			hi, err = hi.ToLevel()
+		}
+		return lo, hi, err
+	}
+	if lo, err = units.Sub(nom, t.Minus); err != nil {
+		return nom, nom, err
+	}
+	hi, err = units.Add(nom, t.Plus)
+	return lo, hi, err
+}
+
+// Chain is a cascade of stages in signal order ([[rx.chain]]).
+type Chain struct {
+	Name   string
+	Stages []*Stage
+	Range  Range
+	node   int
+}
+
+// Stage is one stage of a chain. Values holds its keys (gain, nf, te, loss, iip3, oip3, ip1db,
+// op1db) as quantities named like "rx.chain[2].gain".
+type Stage struct {
+	Label  string
+	Note   string
+	Values map[string]*Quantity
+	Keys   []string // the value keys in the order written
+	Range  Range
+}
+
+// stageKeys are the value keys a stage may have, in their canonical order.
+var stageKeys = []string{"gain", "nf", "te", "loss", "iip3", "oip3", "ip1db", "op1db"}
+
+// ChainValue is what a function receives for a chain argument: the evaluated stages in signal order.
+type ChainValue struct {
+	Name   string
+	Stages []StageValue
+}
+
+// StageValue is one evaluated stage.
+type StageValue struct {
+	Label string
+	vals  [8]units.Q
+	has   uint8
+}
+
+func stageKeyIndex(key string) int {
+	for i, k := range stageKeys {
+		if k == key {
+			return i
+		}
+	}
+	return -1
+}
+
+// Get returns a stage value by key. A passive stage written with `loss` has gain = −loss and,
+// at T0, noise figure = loss.
+func (s StageValue) Get(key string) (units.Q, bool) {
+	i := stageKeyIndex(key)
+	if i < 0 {
+		return units.Q{}, false
+	}
+	if s.has&(1<<i) != 0 {
+		return s.vals[i], true
+	}
+	loss, hasLoss := s.vals[3], s.has&(1<<3) != 0
+	switch {
+	case key == "gain" && hasLoss:
+		q, err := units.Neg(loss)
+		return q, err == nil
+	case key == "nf" && hasLoss && s.has&(1<<2) == 0:
+		return loss, true
+	}
+	return units.Q{}, false
+}
+
+func (s *StageValue) set(key string, q units.Q) {
+	if i := stageKeyIndex(key); i >= 0 {
+		s.vals[i] = q
+		s.has |= 1 << i
+	}
+}
+
+// Require is a requirement: a true/false formula and a note.
+type Require struct {
+	That  string // the formula without "="
+	Note  string
+	Range Range
+	Pass  bool // valid when Known
+	Known bool
+
+	prog *compiled
+}
+
+// Sweep varies one input over a range and records chosen quantities at each step.
+type Sweep struct {
+	Vary     string
+	From, To units.Q
+	Steps    int
+	Log      bool
+	Plot     []string
+	Range    Range
+}
+
+// Solve finds the value of an input at which a quantity equals a target.
+type Solve struct {
+	Name   string
+	Vary   string
+	SoThat string
+	Equals units.Q
+	Within [2]units.Q
+	Range  Range
+}
+
+// node is one vertex of the dependency graph: a quantity or a chain.
+type node struct {
+	name  string
+	env   string // key in the value store
+	q     *Quantity
+	chain *Chain
+	input units.Q // value of an input quantity
+	code  *compiled
+	deps  []int
+	ok    bool // compiled (or parsed) without error
+}
+
+func finite(q units.Q) bool { return !math.IsNaN(q.V) && !math.IsInf(q.V, 0) }
