@@ -34,8 +34,8 @@ func FSPL(d, f float64) float64 {
 //
 // with reference distance d0 (m), distance d (m), frequency f (Hz) and path
 // loss exponent n (2 for free space). Source: the log-distance model of
-// Rappaport, Wireless Communications (log-distance path loss), anchored at the ITU-R P.525
-// free-space loss. It returns NaN unless d, f and d0 are > 0 and n is a
+// Rappaport, Wireless Communications, anchored at the ITU-R P.525 free-space
+// loss. It returns NaN unless d, f and d0 are > 0 and n is a
 // number.
 func LogDistance(d, f, d0, n float64) float64 {
 	if !positive(d, f, d0) || math.IsNaN(n) {
@@ -69,8 +69,9 @@ func TwoRayCrossover(ht, hr, f float64) float64 {
 // The asymptote is independent of f; f (Hz) is used only for the validity
 // check: a note is returned when d is shorter than TwoRayCrossover, where the
 // asymptote is optimistic and free-space loss is the better estimate. Source:
-// Rappaport, Wireless Communications (two-ray ground reflection model). For impossible input (any of
-// d, ht, hr not > 0) the loss is NaN and a note says why.
+// Rappaport, Wireless Communications (two-ray ground reflection model). For
+// impossible input (any of d, ht, hr not > 0) the loss is NaN and a note says
+// why.
 func TwoRay(d, ht, hr, f float64) (loss float64, notes []string) {
 	if !positive(d, ht, hr) {
 		return math.NaN(), []string{fmt.Sprintf("two-ray loss needs positive distance and heights (got d=%s, ht=%s, hr=%s)", fmtM(d), fmtM(ht), fmtM(hr))}
@@ -232,7 +233,7 @@ func Fresnel(d1, d2, f float64, n int) float64 {
 //
 //	d = sqrt(2 k R h),  R = EarthRadius
 //
-// Source: geometric horizon on the effective Earth of ITU-R P.452 / P.834
+// Source: geometric horizon on the effective Earth of ITU-R P.452
 // (ae = k · 6371 km), neglecting h² against 2kRh. It returns NaN for h < 0 or
 // k ≤ 0.
 func Horizon(h, k float64) float64 {
@@ -343,9 +344,9 @@ func Rain(f, rate float64, pol string) (float64, []string, error) {
 //	M = −10 log10(−ln a)
 //
 // It follows from the exponential distribution of Rayleigh-faded power,
-// P(p < p̄/M) = 1 − exp(−1/M) (Sklar, Digital Communications, fading
-// channels; Proakis, Digital Communications, fading multipath channels). The margin is relative to the
-// mean received power and is negative for a < 1/e. An error is returned
+// P(p > p̄/M) = exp(−1/M) (Sklar, Digital Communications, fading channels;
+// Proakis, Digital Communications, fading multipath channels). The margin is
+// relative to the mean received power and is negative for a < 1/e. An error is returned
 // unless 0 < availability < 1.
 func RayleighMargin(availability float64) (float64, error) {
 	if !(availability > 0 && availability < 1) {
