@@ -149,6 +149,10 @@ func (s *Sheet) newEvaluator(quiet bool) *evaluator {
 // evalNode computes one node from the values of its dependencies.
 func (e *evaluator) evalNode(id int) error {
 	n := e.sh.nodes[id]
+	if !n.ok {
+		e.failed[id] = true
+		return nil
+	}
 	for _, d := range n.deps {
 		if e.failed[d] {
 			e.failed[id] = true
@@ -202,8 +206,12 @@ func (s *Sheet) Eval() Diagnostics {
 			diags = append(diags, Diagnostic{Severity: Warning, Quantity: n.q.Name, Summary: w, Range: n.q.Range})
 		}
 		if err != nil {
-			msg, hint, _ := runtimeErr(err)
-			diags = append(diags, Diagnostic{Severity: Error, Quantity: n.q.Name, Summary: msg, Hint: hint, Range: n.q.Range})
+			msg, hint, from := runtimeErr(err)
+			r := n.q.Range
+			if n.at.f != nil {
+				r = formulaRange(n.at, n.q.Formula, from)
+			}
+			diags = append(diags, Diagnostic{Severity: Error, Quantity: n.q.Name, Summary: msg, Hint: hint, Range: r})
 		}
 		if v, ok := e.env[n.env].(units.Q); ok && !e.failed[id] {
 			n.q.Value, n.q.Known = v, true
@@ -225,8 +233,12 @@ func (s *Sheet) Eval() Diagnostics {
 		}
 		out, err := e.vm.Run(rq.prog.prog, e.env)
 		if err != nil {
-			msg, hint, _ := runtimeErr(err)
-			diags = append(diags, Diagnostic{Severity: Error, Quantity: "require", Summary: msg, Hint: hint, Range: rq.Range})
+			msg, hint, from := runtimeErr(err)
+			r := rq.Range
+			if rq.at.f != nil {
+				r = formulaRange(rq.at, rq.That, from)
+			}
+			diags = append(diags, Diagnostic{Severity: Error, Quantity: "require", Summary: msg, Hint: hint, Range: r})
 			continue
 		}
 		rq.Pass, rq.Known = out.(bool), true

@@ -39,6 +39,7 @@ type loader struct {
 
 	formulaSites []site
 	reqSites     []site
+	focusAt      Range
 }
 
 // site is where a formula stands, to compile it once every name is known.
@@ -158,7 +159,7 @@ func (l *loader) document(f *sheetFile, doc map[string]any) {
 			case "summary":
 				l.sh.Summary = s
 			case "focus":
-				l.sh.Focus = s
+				l.sh.Focus, l.focusAt = s, f.valueRange("focus")
 			}
 		case "use":
 			l.parts(f, v, r)

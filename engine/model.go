@@ -193,6 +193,7 @@ type Require struct {
 	Known bool
 
 	prog *compiled
+	at   site
 }
 
 // Sweep varies one input over a range and records chosen quantities at each step.
@@ -225,6 +226,7 @@ type node struct {
 	code  *compiled
 	deps  []int
 	ok    bool // compiled (or parsed) without error
+	at    site // where its formula stands
 }
 
 func finite(q units.Q) bool { return !math.IsNaN(q.V) && !math.IsInf(q.V, 0) }

@@ -132,7 +132,7 @@ func (l *loader) compile() {
 			l.formulaErrs(st, n.q.Name, n.q.Formula, errs)
 			continue
 		}
-		n.code, n.deps = code, code.deps
+		n.code, n.deps, n.at = code, code.deps, st
 	}
 	for _, st := range l.reqSites {
 		code, errs := l.sh.fc.compile(st.req.That, scope{}, tBool)
@@ -140,7 +140,7 @@ func (l *loader) compile() {
 			l.formulaErrs(st, "require", st.req.That, errs)
 			continue
 		}
-		st.req.prog = code
+		st.req.prog, st.req.at = code, st
 	}
 }
 
@@ -211,7 +211,7 @@ func (l *loader) checkFocus() {
 	}
 	id, ok := l.sh.byName[f]
 	if !ok || l.sh.nodes[id].q == nil {
-		l.errAt(Range{File: l.sh.File, Start: Pos{1, 1}}, "focus", l.sh.suggest(f, scope{}), "focus names no quantity: %q", f)
+		l.errAt(l.focusAt, "focus", l.sh.suggest(f, scope{}), "focus names no quantity: %q", f)
 		l.sh.Focus = ""
 	}
 }

@@ -186,3 +186,27 @@ func engineering(v float64, name string) (float64, string) {
 	}
 	return v, ""
 }
+
+// As converts q to the form (linear or decibel) of unit u and takes u's display family, so
+// that dbw(p) shows in dBW and watts(x) in W. The dimension must match.
+func (q Q) As(u *Unit) (Q, error) {
+	if u.D != q.D || (u.K == Rate) != (q.K == Rate) {
+		return Q{}, errf(ErrDimension, "", "cannot convert %s to %s", nameOrNumber(q), u.Sym)
+	}
+	var err error
+	switch {
+	case u.K == Level && q.K == Linear:
+		q, err = q.ToLevel()
+	case u.K == Linear && q.K == Level:
+		q = q.Linear()
+	}
+	q.F = u.F
+	return q, err
+}
+
+func nameOrNumber(q Q) string {
+	if n := q.UnitName(); n != "" {
+		return n
+	}
+	return "a plain number"
+}

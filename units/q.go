@@ -94,7 +94,7 @@ var (
 
 // Hints for the broken unit rules, shown after the message.
 const (
-	hintPsum     = "adding two levels multiplies the powers; psum(a, b) adds powers"
+	hintPsum     = "psum(a, b) adds powers"
 	hintConvert  = "convert first with dbm(), dbw() or watts() (or lin()/db() for ratios)"
 	hintBareDB   = "write the unit, e.g. 3 dB"
 	hintRate     = "multiply a rate in dB per length by a length to get dB"
@@ -137,11 +137,10 @@ func addSub(a, b Q, sign float64) (Q, error) {
 		return Q{}, errf(ErrLevel, "convert one of them first", "cannot %s a power level (%s) and a root-power level (%s)", op, a.UnitName(), b.UnitName())
 	}
 	if !d.IsNone() && !hasLevelUnit(d) {
-		hint := "check which terms are levels and which are ratios"
 		if a.D == b.D && sign > 0 {
-			hint = hintPsum
+			return Q{}, errf(ErrLevel, hintPsum, "cannot add %s and %s: adding levels multiplies the values they stand for", a.UnitName(), b.UnitName())
 		}
-		return Q{}, errf(ErrLevel, hint, "%s %s %s gives a level of %s, which has no decibel unit", a.UnitName(), opSym(sign), b.UnitName(), d)
+		return Q{}, errf(ErrLevel, "check which terms are levels and which are ratios", "cannot %s %s and %s: the result would be a level of %s, which has no decibel unit", opName(sign), a.UnitName(), b.UnitName(), d)
 	}
 	return Q{V: a.V + sign*b.V, D: d, K: Level, F: levelFlavor(a, b, d, sign)}, nil
 }
@@ -151,13 +150,6 @@ func opName(sign float64) string {
 		return "add"
 	}
 	return "subtract"
-}
-
-func opSym(sign float64) string {
-	if sign > 0 {
-		return "+"
-	}
-	return "-"
 }
 
 func mixErr(a, b Q, op string) error {

@@ -1,0 +1,134 @@
+package rflib
+
+import (
+	"fmt"
+
+	"rfledger/engine"
+	"rfledger/internal/rfmath"
+	"rfledger/units"
+)
+
+var chains = []*engine.Func{
+	cascadeFunc("cascade_gain", "dB", "Total gain of a chain: the sum of the stage gains in dB.", "common practice, no source (gains multiply)",
+		func(c rfmath.Cascade) (units.Q, error) { return result(c.GainDB, uDB, "gain") }),
+	cascadeFunc("cascade_nf", "dB", "Noise figure of a chain by Friis: F = F1 + (F2−1)/G1 + (F3−1)/(G1·G2) + …", "Friis (1944), Noise figures of radio receivers, Proc. IRE 32(7)",
+		func(c rfmath.Cascade) (units.Q, error) { return result(c.NFDB, uDB, "noise figure") }),
+	cascadeFunc("cascade_te", "K", "Noise temperature of a chain: Te = Te1 + Te2/G1 + Te3/(G1·G2) + …", "Friis (1944); IEEE T0 = 290 K",
+		func(c rfmath.Cascade) (units.Q, error) { return result(c.TeK, uK, "noise temperature") }),
+	cascadeFunc("cascade_iip3", "dBm", "Input third-order intercept of a chain: 1/IIP3 = Σ (gain before stage i)/IIP3ᵢ, in linear power.", "standard cascade of intercept points (Razavi, RF Microelectronics, ch. 2)",
+		func(c rfmath.Cascade) (units.Q, error) {
+			if !c.HasIIP3 {
+				return units.Q{}, fmt.Errorf("no stage has iip3 or oip3")
+			}
+			return result(c.IIP3, uDBm, "IIP3")
+		}),
+	cascadeFunc("cascade_oip3", "dBm", "Output third-order intercept of a chain: the cascaded IIP3 plus the total gain.", "standard cascade of intercept points (Razavi, RF Microelectronics, ch. 2)",
+		func(c rfmath.Cascade) (units.Q, error) {
+			if !c.HasIIP3 {
+				return units.Q{}, fmt.Errorf("no stage has iip3 or oip3")
+			}
+			return result(c.OIP3, uDBm, "OIP3")
+		}),
+	cascadeFunc("cascade_ip1db", "dBm", "Input 1 dB compression point of a chain, cascaded like the intercepts (a common approximation).", "common practice, no source",
+		func(c rfmath.Cascade) (units.Q, error) {
+			if !c.HasIP1dB {
+				return units.Q{}, fmt.Errorf("no stage has ip1db or op1db")
+			}
+			return result(c.IP1dB, uDBm, "IP1dB")
+		}),
+}
+
+func cascadeFunc(name, res, doc, src string, pick func(rfmath.Cascade) (units.Q, error)) *engine.Func {
+	return &engine.Func{
+		Name: name, Args: []engine.Arg{chainArg()}, Result: res, Doc: doc, Source: src,
+		Call: func(c *engine.Call, a []any) (units.Q, error) {
+			cas, notes, err := Cascade(a[0].(*engine.ChainValue))
+			if err != nil {
+				return units.Q{}, err
+			}
+			warnAll(c, notes)
+			return pick(cas)
+		},
+	}
+}
+
+// Stages converts a chain's evaluated stages into the cascade model: gain and noise figure in
+// dB (te converted through T0, a passive `loss` giving gain −loss and NF = loss), IIP3 from
+// iip3 or oip3 − gain, IP1dB from ip1db or op1db − gain + 1 dB (the gain is 1 dB compressed
+// at that point; common practice). Notes say what was assumed.
+func Stages(cv *engine.ChainValue) ([]rfmath.Stage, []string, error) {
+	var out []rfmath.Stage
+	var notes []string
+	if len(cv.Stages) == 0 {
+		return nil, nil, fmt.Errorf("chain %s has no stages", cv.Name)
+	}
+	for _, sv := range cv.Stages {
+		st := rfmath.Stage{Name: sv.Label}
+		g, ok := sv.Get("gain")
+		if !ok {
+			return nil, nil, fmt.Errorf("stage %q has neither gain nor loss", sv.Label)
+		}
+		if !g.IsRatio() {
+			return nil, nil, fmt.Errorf("stage %q: gain is %s, want dB", sv.Label, nameOf(g))
+		}
+		st.GainDB = g.V
+		if nf, ok := sv.Get("nf"); ok {
+			if !nf.IsRatio() {
+				return nil, nil, fmt.Errorf("stage %q: nf is %s, want dB", sv.Label, nameOf(nf))
+			}
+			st.NFDB = nf.V
+		} else if te, ok := sv.Get("te"); ok {
+			if te.D != units.Temperature {
+				return nil, nil, fmt.Errorf("stage %q: te is %s, want a temperature", sv.Label, nameOf(te))
+			}
+			st.NFDB = rfmath.TeToNF(te.Linear().V)
+		} else {
+			notes = append(notes, fmt.Sprintf("stage %q has no nf, te or loss; taken as noiseless", sv.Label))
+		}
+		var err error
+		st.IIP3, st.HasIIP3, err = intercept(sv, "iip3", "oip3", g.V, 0)
+		if err != nil {
+			return nil, nil, err
+		}
+		st.IP1dB, st.HasIP1dB, err = intercept(sv, "ip1db", "op1db", g.V, 1)
+		if err != nil {
+			return nil, nil, err
+		}
+		out = append(out, st)
+	}
+	return out, notes, nil
+}
+
+// intercept reads an input-referred point, or derives it from the output-referred one.
+func intercept(sv engine.StageValue, inKey, outKey string, gain, compression float64) (float64, bool, error) {
+	v, ok := sv.Get(inKey)
+	key := inKey
+	if !ok {
+		v, ok = sv.Get(outKey)
+		key = outKey
+	}
+	if !ok {
+		return 0, false, nil
+	}
+	if v.D != units.Power {
+		return 0, false, fmt.Errorf("stage %q: %s is %s, want a power level (dBm)", sv.Label, key, nameOf(v))
+	}
+	l, err := v.ToLevel()
+	if err != nil {
+		return 0, false, err
+	}
+	dbm := l.V + 30
+	if key == outKey {
+		dbm = dbm - gain + compression
+	}
+	return dbm, true, nil
+}
+
+// Cascade computes a chain's cascade with per-stage cumulative values and shares.
+func Cascade(cv *engine.ChainValue) (rfmath.Cascade, []string, error) {
+	st, notes, err := Stages(cv)
+	if err != nil {
+		return rfmath.Cascade{}, nil, err
+	}
+	return rfmath.CascadeChain(st), notes, nil
+}

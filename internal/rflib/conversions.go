@@ -1,0 +1,120 @@
+package rflib
+
+import (
+	"fmt"
+	"math"
+
+	"rfledger/engine"
+	"rfledger/units"
+)
+
+var conversions = []*engine.Func{
+	{
+		Name: "db", Args: []engine.Arg{anyQ("x")}, Result: "dB (dBK, dBHz, dBm… by dimension)",
+		Doc:    "Decibel level of a linear value: 10·log10(x), or 20·log10 for voltage-like quantities; db(2) = 3.01 dB, db(290 K) = 24.62 dBK.",
+		Source: "IEC 60027-3 (logarithmic quantities and units)",
+		Call: func(_ *engine.Call, a []any) (units.Q, error) {
+			x := a[0].(units.Q)
+			if x.K != units.Linear {
+				return units.Q{}, fmt.Errorf("x: already in decibels (%s)", x.UnitName())
+			}
+			return x.ToLevel()
+		},
+	},
+	{
+		Name: "lin", Args: []engine.Arg{anyQ("x")}, Result: "linear value",
+		Doc:    "Linear value of a decibel level: 10^(x/10) (ratio for dB, watts for dBm); lin(3 dB) = 1.995.",
+		Source: "IEC 60027-3 (logarithmic quantities and units)",
+		Call: func(_ *engine.Call, a []any) (units.Q, error) {
+			x := a[0].(units.Q)
+			if x.K != units.Level {
+				return units.Q{}, fmt.Errorf("x: got %s, want a value in decibels", nameOf(x))
+			}
+			return x.Linear(), nil
+		},
+	},
+	convert("dbm", "p", units.Power, uDBm, "Power level in dBm of a power (in W or any dB power unit): 10·log10(p / 1 mW)."),
+	convert("dbw", "p", units.Power, uDBW, "Power level in dBW of a power: 10·log10(p / 1 W)."),
+	convert("watts", "x", units.Power, uW, "Power in watts of a power level: 10^((x − 30)/10) W for dBm."),
+	convert("dbhz", "b", units.Frequency, uDBHz, "Bandwidth or rate as a level in dBHz: 10·log10(b / 1 Hz)."),
+	convert("dbk", "t", units.Temperature, uDBK, "Temperature as a level in dBK: 10·log10(t / 1 K)."),
+	{
+		Name: "to", Args: []engine.Arg{anyQ("x"), text("unit")}, Result: "x in that unit",
+		Doc:    "Converts x to another unit of the same dimension, e.g. to(p, 'mW') or to(d, 'km'); between decibel and linear forms too.",
+		Source: "SI Brochure, 9th edition (units and prefixes)",
+		Call: func(_ *engine.Call, a []any) (units.Q, error) {
+			u, err := units.ParseUnit(a[1].(string))
+			if err != nil {
+				return units.Q{}, err
+			}
+			return a[0].(units.Q).As(u)
+		},
+	},
+	{
+		Name: "psum", Args: []engine.Arg{anyQ("p")}, Variadic: true, Result: "level of the sum",
+		Doc:    "Power sum of levels: 10·log10(Σ 10^(pᵢ/10)), e.g. psum(-90 dBm, -90 dBm) = -86.99 dBm. Adds uncorrelated powers (noise plus interference).",
+		Source: "common practice, no source (power addition of uncorrelated signals)",
+		Call: func(_ *engine.Call, a []any) (units.Q, error) {
+			if len(a) < 2 {
+				return units.Q{}, fmt.Errorf("needs at least two levels")
+			}
+			return sumPowers(a, 1)
+		},
+	},
+	{
+		Name: "pdiff", Args: []engine.Arg{anyQ("a"), anyQ("b")}, Result: "level of the difference",
+		Doc:    "Power difference of levels: 10·log10(10^(a/10) − 10^(b/10)), e.g. the signal left when noise b is removed from a measured a. a must exceed b.",
+		Source: "common practice, no source (power subtraction of uncorrelated signals)",
+		Call: func(_ *engine.Call, a []any) (units.Q, error) {
+			return sumPowers(a, -1)
+		},
+	},
+}
+
+func convert(name, arg string, d units.Dim, u *units.Unit, doc string) *engine.Func {
+	return &engine.Func{
+		Name: name, Args: []engine.Arg{either(arg, d)}, Result: u.Sym, Doc: doc,
+		Source: "IEC 60027-3 (logarithmic quantities and units)",
+		Call: func(_ *engine.Call, a []any) (units.Q, error) {
+			return a[0].(units.Q).As(u)
+		},
+	}
+}
+
+// sumPowers adds (sign 1) or subtracts (sign −1, two terms) the linear values of levels of one
+// dimension and returns the level of the result in the first term's unit family.
+func sumPowers(a []any, sign float64) (units.Q, error) {
+	first := a[0].(units.Q)
+	total := 0.0
+	for i, x := range a {
+		v := x.(units.Q)
+		if v.D != first.D || v.K == units.Rate {
+			return units.Q{}, fmt.Errorf("term %d is %s, term 1 is %s", i+1, nameOf(v), nameOf(first))
+		}
+		s := 1.0
+		if i > 0 {
+			s = sign
+		}
+		total += s * v.Linear().V
+	}
+	if !(total > 0) || math.IsInf(total, 0) {
+		return units.Q{}, fmt.Errorf("the result is not a positive power (the first level must be the larger)")
+	}
+	out := units.Lin(total, first.D)
+	if first.K != units.Level {
+		return out, nil
+	}
+	l, err := out.ToLevel()
+	if err != nil {
+		return units.Q{}, err
+	}
+	l.F = first.F
+	return l, nil
+}
+
+func nameOf(q units.Q) string {
+	if n := q.UnitName(); n != "" {
+		return n
+	}
+	return "a plain number"
+}

@@ -1,0 +1,96 @@
+// Package rflib is rfledger's library of built-in formula functions: conversions, math,
+// propagation, noise, chains, linearity, modulation, antennas and satellite links. Each
+// function declares its arguments' dimensions (checked by the engine before the call), a doc
+// line with its formula and the published source it follows, and computes with the plain
+// float64 models of package rfmath.
+//
+// Adding a function is one entry in the family file it belongs to: its name, arguments,
+// result unit, doc, source and Call; then a sourced test in that family's test file.
+package rflib
+
+import (
+	"fmt"
+	"math"
+
+	"rfledger/engine"
+	"rfledger/units"
+)
+
+// Library returns every built-in function.
+func Library() *engine.Library {
+	var fs []*engine.Func
+	for _, family := range [][]*engine.Func{conversions, mathFuncs, propagation, noise, chains} {
+		fs = append(fs, family...)
+	}
+	fs = append(fs, extra...)
+	return engine.NewLibrary(fs...)
+}
+
+// extra collects families registered from other files of this package.
+var extra []*engine.Func
+
+// Argument shorthands.
+func lin(name string, d units.Dim) engine.Arg {
+	return engine.Arg{Name: name, Dim: d, Form: engine.LinearOnly}
+}
+
+func either(name string, d units.Dim) engine.Arg {
+	return engine.Arg{Name: name, Dim: d, Form: engine.AsLinear}
+}
+
+func level(name string, d units.Dim) engine.Arg {
+	return engine.Arg{Name: name, Dim: d, Form: engine.AsLevel}
+}
+
+func ratio(name string) engine.Arg {
+	return engine.Arg{Name: name, Dim: units.None, Form: engine.LevelOnly}
+}
+
+func anyQ(name string) engine.Arg { return engine.Arg{Name: name} }
+
+func optional(a engine.Arg) engine.Arg { a.Optional = true; return a }
+
+func text(name string) engine.Arg { return engine.Arg{Name: name, Kind: engine.ArgText} }
+
+func chainArg() engine.Arg { return engine.Arg{Name: "chain", Kind: engine.ArgChain} }
+
+// q returns argument i as a quantity's number (dB for levels, SI for linear values).
+func q(args []any, i int) float64 { return args[i].(units.Q).V }
+
+// has reports whether optional argument i was given.
+func has(args []any, i int) bool { return i < len(args) && args[i] != nil }
+
+// unit returns the named unit; the names are constants of this package, so failure is a bug.
+func unit(sym string) *units.Unit {
+	u, err := units.ParseUnit(sym)
+	if err != nil {
+		panic(err)
+	}
+	return u
+}
+
+var (
+	uDBm  = unit("dBm")
+	uDBW  = unit("dBW")
+	uW    = unit("W")
+	uDBHz = unit("dBHz")
+	uDBK  = unit("dBK")
+	uK    = unit("K")
+)
+
+// in returns v in unit u as a quantity ("in(-174, uDBm)").
+func in(v float64, u *units.Unit) units.Q { return u.Of(v) }
+
+// result checks a computed number: NaN or infinity means the inputs were outside the model.
+func result(v float64, u *units.Unit, what string) (units.Q, error) {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return units.Q{}, fmt.Errorf("%s is not a finite number for these inputs", what)
+	}
+	return u.Of(v), nil
+}
+
+func warnAll(c *engine.Call, notes []string) {
+	for _, n := range notes {
+		c.Warn("%s", n)
+	}
+}
