@@ -112,6 +112,8 @@ type compiled struct {
 	prog *vm.Program
 	deps []int // graph nodes it reads
 	typ  typ
+	tree ast.Node       // the rewritten syntax tree, for the budget breakdown
+	env  map[string]any // the types of the names it reads
 }
 
 // compile parses and checks one formula. want is the type the formula must have.
@@ -149,7 +151,7 @@ func (fc *formulaCompiler) compile(text string, sc scope, want typ) (*compiled, 
 	if err != nil {
 		return nil, []ferr{exprErr(err, text)}
 	}
-	return &compiled{prog: prog, deps: rw.deps, typ: t}, nil
+	return &compiled{prog: prog, deps: rw.deps, typ: t, tree: node, env: rw.env}, nil
 }
 
 func wantHint(t typ) string {

@@ -22,13 +22,14 @@ type Sheet struct {
 	Solves   []*Solve
 	Parts    []string // files brought in with `use`, in load order
 
-	nodes  []*node
-	byName map[string]int
-	order  []int // evaluation order of nodes (topological)
-	fc     *formulaCompiler
-	diags  Diagnostics
-	trials int
-	values *evaluator // the nominal evaluation, after Eval
+	nodes     []*node
+	byName    map[string]int
+	order     []int // evaluation order of nodes (topological)
+	fc        *formulaCompiler
+	diags     Diagnostics
+	trials    int
+	userCache [][]int
+	values    *evaluator // the nominal evaluation, after Eval
 }
 
 // Group is a TOML table of the worksheet: quantities and chains under one dotted name.
@@ -191,6 +192,12 @@ type Require struct {
 	Range Range
 	Pass  bool // valid when Known
 	Known bool
+
+	// When the requirement is a plain bound on one quantity ("x >= 8 dB"), Subject names the
+	// quantity, Op is the comparison as written with the quantity on the left, and Bound the limit.
+	Subject string
+	Op      string
+	Bound   units.Q
 
 	prog *compiled
 	at   site

@@ -9,6 +9,7 @@ import (
 	"strings"
 	"unicode/utf8"
 
+	"github.com/expr-lang/expr/ast"
 	"github.com/expr-lang/expr/file"
 
 	"rfledger/units"
@@ -141,6 +142,7 @@ func (l *loader) compile() {
 			continue
 		}
 		st.req.prog, st.req.at = code, st
+		l.sh.bound(st.req)
 	}
 }
 
@@ -343,4 +345,34 @@ func runtimeErr(err error) (msg, hint string, from int) {
 		return cleanExprMsg(fe.Message), "", from
 	}
 	return err.Error(), "", from
+}
+
+var flipped = map[string]string{"_ge": "<=", "_gt": "<", "_le": ">=", "_lt": ">", "_eq": "==", "_ne": "!="}
+var direct = map[string]string{"_ge": ">=", "_gt": ">", "_le": "<=", "_lt": "<", "_eq": "==", "_ne": "!="}
+
+// bound recognises a requirement of the form "quantity OP constant" (either way round).
+func (s *Sheet) bound(rq *Require) {
+	c, ok := rq.prog.tree.(*ast.CallNode)
+	if !ok || len(c.Arguments) != 2 {
+		return
+	}
+	fn := c.Callee.(*ast.IdentifierNode).Value
+	if _, ok := direct[fn]; !ok {
+		return
+	}
+	a, b := c.Arguments[0], c.Arguments[1]
+	op := direct[fn]
+	if _, isConst := a.(*ast.ConstantNode); isConst {
+		a, b, op = b, a, flipped[fn]
+	}
+	id, ok1 := a.(*ast.IdentifierNode)
+	k, ok2 := b.(*ast.ConstantNode)
+	if !ok1 || !ok2 {
+		return
+	}
+	q, isQ := k.Value.(units.Q)
+	if !isQ || !strings.HasPrefix(id.Value, "@") {
+		return
+	}
+	rq.Subject, rq.Op, rq.Bound = strings.TrimPrefix(id.Value, "@"), op, q
 }
