@@ -9,8 +9,10 @@
 package rflib
 
 import (
+	"errors"
 	"fmt"
 	"math"
+	"strings"
 
 	"rfledger/engine"
 	"rfledger/units"
@@ -19,7 +21,7 @@ import (
 // Library returns every built-in function.
 func Library() *engine.Library {
 	var fs []*engine.Func
-	for _, family := range [][]*engine.Func{conversions, mathFuncs, propagation, noise, chains} {
+	for _, family := range [][]*engine.Func{conversions, mathFuncs, propagation, noise, chains, linearity, modulation, antennas, satellite} {
 		fs = append(fs, family...)
 	}
 	fs = append(fs, extra...)
@@ -76,6 +78,7 @@ var (
 	uDBHz = unit("dBHz")
 	uDBK  = unit("dBK")
 	uK    = unit("K")
+	uNum  = unit("")
 )
 
 // in returns v in unit u as a quantity ("in(-174, uDBm)").
@@ -93,4 +96,16 @@ func warnAll(c *engine.Call, notes []string) {
 	for _, n := range notes {
 		c.Warn("%s", n)
 	}
+}
+
+// warnFn records an rfmath validity note against the calling function's name.
+func warnFn(c *engine.Call, fn string, notes []string) {
+	for _, n := range notes {
+		c.Warn("%s: %s", fn, n)
+	}
+}
+
+// clean drops rfmath's package prefix from an error; the engine prefixes the function name.
+func clean(err error) error {
+	return errors.New(strings.TrimPrefix(err.Error(), "rfmath: "))
 }
