@@ -1,0 +1,393 @@
+package watch
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"net"
+	"path/filepath"
+	"slices"
+	"strings"
+	"sync"
+	"time"
+
+	"github.com/fsnotify/fsnotify"
+)
+
+// Render produces the output bytes for one recalculation. files lists every file the result
+// depends on (the worksheet and the parts it uses) so the watcher can follow them. err != nil
+// means the sheet is broken: keep the last good output, print the error.
+type Render func() (out []byte, files []string, err error)
+
+// Options configures Run.
+type Options struct {
+	Out      string                    // output file; written atomically (temp file in the same dir + rename), never half-written
+	Debounce time.Duration             // bursts of events within this window give one recalculation (default 150ms)
+	Status   io.Writer                 // one line per recalculation, e.g. "12:04:05 rendered field.md in 3.1 ms" or "12:04:05 error: <first line>…" (the error text itself goes to Errors); nil discards
+	Errors   io.Writer                 // full error text when a render fails; nil discards
+	Serve    string                    // "" = no server; else an address like "127.0.0.1:8080" or ":0"; a bare port or ":port" binds 127.0.0.1 only, never all interfaces unless the host is given explicitly
+	Title    string                    // page title for the served page
+	Ready    func(addr string)         // called once the server listens (addr is the real address, useful with ":0"); may be nil
+	Extra    func(dir string) []string // optional: after each good render, files beside Out that should also be served (e.g. SVG charts linked from the Markdown); may be nil
+}
+
+// DefaultDebounce is the debounce window used when Options.Debounce is zero or negative.
+const DefaultDebounce = 150 * time.Millisecond
+
+// maxDelayFactor bounds how long a continuous stream of events can postpone a
+// recalculation: at most this many debounce windows after the first event.
+const maxDelayFactor = 10
+
+// Run renders once, writes Out, then watches until ctx is cancelled, re-rendering on every
+// change to any of the files Render reported (re-reading that list after each render, since
+// `use` of parts may change). Returns nil on ctx cancel.
+//
+// Run returns an error early if Out is empty, if the watcher or the server
+// cannot be started, or if the first render fails without naming any file to
+// watch (there would be nothing that could ever trigger a fix).
+func Run(ctx context.Context, r Render, o Options) error {
+	if r == nil {
+		return errors.New("watch: nil Render")
+	}
+	if o.Out == "" {
+		return errors.New("watch: no output file")
+	}
+	out, err := filepath.Abs(o.Out)
+	if err != nil {
+		return fmt.Errorf("watch: output path: %w", err)
+	}
+	if o.Debounce <= 0 {
+		o.Debounce = DefaultDebounce
+	}
+	l := &loop{
+		render:   r,
+		out:      out,
+		debounce: o.Debounce,
+		status:   lockedWriter(o.Status),
+		errs:     lockedWriter(o.Errors),
+		extra:    o.Extra,
+		files:    map[string]bool{},
+		st:       newState(),
+	}
+
+	fw, err := fsnotify.NewWatcher()
+	if err != nil {
+		return fmt.Errorf("watch: %w", err)
+	}
+	defer fw.Close()
+	l.fw = fw
+
+	var ln net.Listener
+	if o.Serve != "" {
+		addr, err := listenAddr(o.Serve)
+		if err != nil {
+			return fmt.Errorf("watch: serve address: %w", err)
+		}
+		ln, err = net.Listen("tcp", addr)
+		if err != nil {
+			return fmt.Errorf("watch: %w", err)
+		}
+		defer ln.Close()
+	}
+
+	l.recalc()
+	if len(l.files) == 0 {
+		if e := l.st.lastErr(); e != "" {
+			return fmt.Errorf("watch: first render failed and reported no files to watch: %s", firstLine(e))
+		}
+		return errors.New("watch: render reported no files to watch")
+	}
+
+	if ln != nil {
+		srv := newServer(ctx, l.st, o.Title, filepath.Base(out), l.errs)
+		var wg sync.WaitGroup
+		wg.Go(func() { srv.Serve(ln) })
+		defer func() {
+			srv.stop()
+			wg.Wait()
+		}()
+		addr := ln.Addr().String()
+		fmt.Fprintf(l.status, "%s serving http://%s/\n", stamp(), addr)
+		if o.Ready != nil {
+			o.Ready(addr)
+		}
+	}
+
+	return l.run(ctx)
+}
+
+// loop holds the state of the watch loop. Only the goroutine running Run
+// touches its fields, except st which is shared with the server.
+type loop struct {
+	render   Render
+	out      string
+	debounce time.Duration
+	status   io.Writer
+	errs     io.Writer
+	extra    func(dir string) []string
+	fw       *fsnotify.Watcher
+	files    map[string]bool // cleaned absolute names that trigger a recalculation
+	dirFail  map[string]string
+	st       *state
+}
+
+func (l *loop) run(ctx context.Context) error {
+	timer := time.NewTimer(time.Hour)
+	timer.Stop()
+	defer timer.Stop()
+	var first time.Time // first event of the pending burst; zero when idle
+	for {
+		select {
+		case <-ctx.Done():
+			return nil
+		case ev, ok := <-l.fw.Events:
+			if !ok {
+				return errors.New("watch: file watcher closed")
+			}
+			if !l.relevant(ev) {
+				continue
+			}
+			now := time.Now()
+			if first.IsZero() {
+				first = now
+			}
+			wait := l.debounce
+			if limit := first.Add(maxDelayFactor * l.debounce); now.Add(wait).After(limit) {
+				wait = max(limit.Sub(now), 0)
+			}
+			timer.Reset(wait)
+		case err, ok := <-l.fw.Errors:
+			if !ok {
+				return errors.New("watch: file watcher closed")
+			}
+			fmt.Fprintf(l.status, "%s watch error: %v\n", stamp(), err)
+			fmt.Fprintf(l.errs, "watch: %v\n", err)
+			if errors.Is(err, fsnotify.ErrEventOverflow) {
+				// Events were lost; recalculate to be safe.
+				timer.Reset(0)
+			}
+		case <-timer.C:
+			first = time.Time{}
+			l.recalc()
+		}
+		if ctx.Err() != nil {
+			return nil
+		}
+	}
+}
+
+// relevant reports whether ev concerns one of the watched files. Pure
+// permission changes are ignored: editors and indexers touch them without
+// changing content.
+func (l *loop) relevant(ev fsnotify.Event) bool {
+	if ev.Op == fsnotify.Chmod || ev.Op == 0 {
+		return false
+	}
+	name := ev.Name
+	if !filepath.IsAbs(name) {
+		if abs, err := filepath.Abs(name); err == nil {
+			name = abs
+		}
+	}
+	return l.files[filepath.Clean(name)]
+}
+
+// recalc runs one render, writes the output when it succeeded, reports the
+// outcome and updates the watched file set.
+func (l *loop) recalc() {
+	start := time.Now()
+	data, files, err := l.callRender()
+	elapsed := time.Since(start)
+	name := filepath.Base(l.out)
+	if err == nil {
+		if werr := WriteAtomic(l.out, data); werr != nil {
+			err = fmt.Errorf("writing %s: %w", name, werr)
+		}
+	}
+	if err != nil {
+		msg := err.Error()
+		fmt.Fprintf(l.status, "%s error: %s\n", stamp(), firstLine(msg))
+		if !strings.HasSuffix(msg, "\n") {
+			msg += "\n"
+		}
+		io.WriteString(l.errs, msg)
+		l.st.fail(err.Error())
+		// Keep following what the broken sheet still names, plus what was
+		// followed before, so the fix is noticed wherever it lands.
+		l.setFiles(files, true)
+		return
+	}
+	fmt.Fprintf(l.status, "%s rendered %s in %s\n", stamp(), name, fmtMillis(elapsed))
+	l.setFiles(files, false)
+	var extras map[string]string
+	if l.extra != nil {
+		extras = extraFiles(filepath.Dir(l.out), l.extra(filepath.Dir(l.out)))
+	}
+	l.st.succeed(data, extras)
+}
+
+// callRender calls the user's Render and turns a panic into an error so a bug
+// in one recalculation does not take the watcher down.
+func (l *loop) callRender() (data []byte, files []string, err error) {
+	defer func() {
+		if p := recover(); p != nil {
+			err = fmt.Errorf("render panicked: %v", p)
+		}
+	}()
+	return l.render()
+}
+
+// setFiles replaces (or, with keep, extends) the set of followed files and
+// brings the directory watches in line with it.
+func (l *loop) setFiles(files []string, keep bool) {
+	next := map[string]bool{}
+	if keep {
+		for f := range l.files {
+			next[f] = true
+		}
+	}
+	for _, f := range files {
+		if f == "" {
+			continue
+		}
+		abs, err := filepath.Abs(f)
+		if err != nil {
+			continue
+		}
+		abs = filepath.Clean(abs)
+		if abs == l.out {
+			// Never follow our own output: every write would trigger another render.
+			continue
+		}
+		next[abs] = true
+	}
+	l.files = next
+	l.syncDirs()
+}
+
+// syncDirs adds a watch for every directory holding a followed file and drops
+// watches that are no longer needed. It consults the watcher's own list, so a
+// watch the system dropped (for example because the directory was removed and
+// re-created) is added again.
+func (l *loop) syncDirs() {
+	want := map[string]bool{}
+	for f := range l.files {
+		want[filepath.Dir(f)] = true
+	}
+	have := map[string]bool{}
+	for _, d := range l.fw.WatchList() {
+		have[filepath.Clean(d)] = true
+	}
+	for d := range have {
+		if !want[d] {
+			l.fw.Remove(d)
+		}
+	}
+	dirs := make([]string, 0, len(want))
+	for d := range want {
+		dirs = append(dirs, d)
+	}
+	slices.Sort(dirs)
+	if l.dirFail == nil {
+		l.dirFail = map[string]string{}
+	}
+	for _, d := range dirs {
+		if have[d] {
+			delete(l.dirFail, d)
+			continue
+		}
+		if err := l.fw.Add(d); err != nil {
+			// Report a failing directory once per distinct error, not on every render.
+			if l.dirFail[d] != err.Error() {
+				l.dirFail[d] = err.Error()
+				fmt.Fprintf(l.status, "%s watch error: %s\n", stamp(), d)
+				fmt.Fprintf(l.errs, "watch: cannot watch %s: %v\n", d, err)
+			}
+			continue
+		}
+		delete(l.dirFail, d)
+	}
+}
+
+// extraFiles turns the names returned by Options.Extra into a map from the
+// served name to the file path. Only regular names that sit directly in dir
+// are accepted.
+func extraFiles(dir string, names []string) map[string]string {
+	m := map[string]string{}
+	for _, n := range names {
+		if n == "" {
+			continue
+		}
+		p := n
+		if !filepath.IsAbs(p) {
+			p = filepath.Join(dir, p)
+		}
+		p = filepath.Clean(p)
+		if filepath.Dir(p) != dir {
+			continue
+		}
+		base := filepath.Base(p)
+		if !validName(base) {
+			continue
+		}
+		m[base] = p
+	}
+	return m
+}
+
+// lockedWriter serialises writes to w, which may be shared between the watch
+// loop and the server. A nil w discards.
+func lockedWriter(w io.Writer) io.Writer {
+	if w == nil {
+		return io.Discard
+	}
+	return &syncWriter{w: w}
+}
+
+type syncWriter struct {
+	mu sync.Mutex
+	w  io.Writer
+}
+
+func (s *syncWriter) Write(p []byte) (int, error) {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return s.w.Write(p)
+}
+
+func stamp() string { return time.Now().Format("15:04:05") }
+
+// firstLine returns the first non-empty line of s, marked with an ellipsis
+// when more text follows.
+func firstLine(s string) string {
+	s = strings.TrimSpace(s)
+	if i := strings.IndexByte(s, '\n'); i >= 0 {
+		return strings.TrimRight(s[:i], "\r") + "…"
+	}
+	return s
+}
+
+func fmtMillis(d time.Duration) string {
+	return fmt.Sprintf("%.1f ms", float64(d.Microseconds())/1000)
+}
+
+// listenAddr turns the Serve option into a listen address. A bare port or
+// ":port" becomes 127.0.0.1:port; an explicit host is kept as given.
+func listenAddr(s string) (string, error) {
+	s = strings.TrimSpace(s)
+	if !strings.Contains(s, ":") {
+		s = ":" + s
+	}
+	host, port, err := net.SplitHostPort(s)
+	if err != nil {
+		return "", err
+	}
+	if port == "" {
+		return "", fmt.Errorf("%q: missing port", s)
+	}
+	if host == "" {
+		host = "127.0.0.1"
+	}
+	return net.JoinHostPort(host, port), nil
+}
