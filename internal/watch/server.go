@@ -290,7 +290,7 @@ func validName(name string) bool {
 func newNonce() string {
 	var b [18]byte
 	rand.Read(b[:])
-	return base64.StdEncoding.EncodeToString(b[:])
+	return base64.RawURLEncoding.EncodeToString(b[:])
 }
 
 type pageData struct {
