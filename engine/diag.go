@@ -130,3 +130,6 @@ func sortDiags(ds Diagnostics) Diagnostics {
 	}
 	return out
 }
+
+// SortDiagnostics orders diagnostics by file and position and drops exact repeats.
+func SortDiagnostics(ds Diagnostics) Diagnostics { return sortDiags(ds) }

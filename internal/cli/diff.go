@@ -1,0 +1,163 @@
+package cli
+
+import (
+	"bytes"
+	"fmt"
+	"io/fs"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"testing/fstest"
+
+	"rfledger/engine"
+	"rfledger/units"
+)
+
+func cmdDiff(e *Env, args []string) int {
+	fs := newFlags(e, "diff")
+	rev := fs.String("rev", "", "compare the worksheet as committed at git revision `REV` with the working file")
+	pos, err := parse(fs, args)
+	if err != nil {
+		return flagErr(err)
+	}
+	var oldEv, newEv *evaluated
+	var oldName, newName string
+	switch {
+	case *rev != "" && len(pos) == 1:
+		gfs, name, err := gitFS(pos[0], *rev)
+		if err != nil {
+			fmt.Fprintf(e.Stderr, "rfledger diff: %v\n", err)
+			return ExitBadSheet
+		}
+		oldName, newName = pos[0]+" at "+*rev, pos[0]
+		oldEv = evaluate(name, nil, gfs, nil)
+		newEv = evaluate(pos[0], nil, nil, nil)
+	case *rev == "" && len(pos) == 2:
+		oldName, newName = pos[0], pos[1]
+		oldEv = evaluate(pos[0], nil, nil, nil)
+		newEv = evaluate(pos[1], nil, nil, nil)
+	default:
+		return usageErr(e, "diff", "want OLD NEW, or SHEET --rev REV")
+	}
+	printDiags(e, oldEv.diags)
+	printDiags(e, newEv.diags)
+	if !oldEv.ok() || !newEv.ok() {
+		return ExitBadSheet
+	}
+	_, _ = e.Stdout.Write(diffMarkdown(oldName, newName, oldEv.sheet, newEv.sheet))
+	return ExitOK
+}
+
+// gitFS reads a worksheet and its parts as committed at rev.
+func gitFS(sheet, rev string) (fs.FS, string, error) {
+	dir, err := filepath.Abs(filepath.Dir(sheet))
+	if err != nil {
+		return nil, "", err
+	}
+	prefix, err := exec.Command("git", "-C", dir, "rev-parse", "--show-prefix").Output()
+	if err != nil {
+		return nil, "", fmt.Errorf("%s is not in a git work tree", sheet)
+	}
+	return &revFS{dir: dir, rev: rev, prefix: strings.TrimSpace(string(prefix))}, filepath.Base(sheet), nil
+}
+
+type revFS struct{ dir, rev, prefix string }
+
+func (r *revFS) Open(name string) (fs.File, error) {
+	if !fs.ValidPath(name) || strings.HasPrefix(r.rev, "-") {
+		return nil, &fs.PathError{Op: "open", Path: name, Err: fs.ErrInvalid}
+	}
+	out, err := exec.Command("git", "-C", r.dir, "show", r.rev+":"+r.prefix+name).Output()
+	if err != nil {
+		return nil, &fs.PathError{Op: "open", Path: name + " at " + r.rev, Err: fs.ErrNotExist}
+	}
+	return fstest.MapFS{name: {Data: out}}.Open(name)
+}
+
+// diffMarkdown writes what changed in the results, as Markdown.
+func diffMarkdown(oldName, newName string, a, b *engine.Sheet) []byte {
+	var w bytes.Buffer
+	title := b.Title
+	if title == "" {
+		title = "worksheet"
+	}
+	fmt.Fprintf(&w, "# Changes in %s\n\nOld: `%s` (hash `%s`). New: `%s` (hash `%s`).\n\n", title, oldName, a.Hash, newName, b.Hash)
+	fmt.Fprintf(&w, "## Verdict\n\n| | old | new |\n| --- | --- | --- |\n")
+	if f, ok := b.Quantity(b.Focus); ok {
+		old := "—"
+		if g, ok := a.Quantity(b.Focus); ok {
+			old = g.Display()
+		}
+		fmt.Fprintf(&w, "| focus `%s` | %s | %s%s |\n", f.Name, old, f.Display(), change(a, f))
+	}
+	reqs := map[string]string{}
+	for _, rq := range a.Requires {
+		reqs[rq.That] = passText(rq)
+	}
+	for _, rq := range b.Requires {
+		old, ok := reqs[rq.That]
+		if !ok {
+			old = "(new)"
+		}
+		delete(reqs, rq.That)
+		fmt.Fprintf(&w, "| `%s` | %s | %s |\n", rq.That, old, passText(rq))
+	}
+	for _, rq := range a.Requires {
+		if old, ok := reqs[rq.That]; ok {
+			fmt.Fprintf(&w, "| `%s` | %s | (removed) |\n", rq.That, old)
+		}
+	}
+	var rows []string
+	for _, q := range b.Quantities() {
+		old, ok := a.Quantity(q.Name)
+		switch {
+		case !ok:
+			rows = append(rows, fmt.Sprintf("| `%s` | (new) | %s | |", q.Name, q.Display()))
+		case old.Display() != q.Display() || old.Formula != q.Formula || old.Text != q.Text:
+			how := ""
+			if old.Formula != q.Formula {
+				how = " (formula changed)"
+			}
+			rows = append(rows, fmt.Sprintf("| `%s` | %s | %s | %s%s |", q.Name, old.Display(), q.Display(), strings.TrimPrefix(change(a, q), " "), how))
+		}
+	}
+	for _, q := range a.Quantities() {
+		if _, ok := b.Quantity(q.Name); !ok {
+			rows = append(rows, fmt.Sprintf("| `%s` | %s | (removed) | |", q.Name, q.Display()))
+		}
+	}
+	fmt.Fprintf(&w, "\n## Quantities\n\n")
+	if len(rows) == 0 {
+		fmt.Fprintf(&w, "No value changed.\n")
+		return w.Bytes()
+	}
+	fmt.Fprintf(&w, "| quantity | old | new | change |\n| --- | ---: | ---: | ---: |\n%s\n", strings.Join(rows, "\n"))
+	return w.Bytes()
+}
+
+func passText(rq *engine.Require) string {
+	switch {
+	case !rq.Known:
+		return "cannot evaluate"
+	case rq.Pass:
+		return "PASS"
+	}
+	return "**FAIL**"
+}
+
+// change writes the difference new − old of a quantity when both are comparable.
+func change(a *engine.Sheet, q *engine.Quantity) string {
+	old, ok := a.Quantity(q.Name)
+	if !ok || !old.Known || !q.Known || old.Value.D != q.Value.D || old.Value.K != q.Value.K {
+		return ""
+	}
+	d, err := units.Sub(q.Value, old.Value)
+	if err != nil || d.V == 0 {
+		return ""
+	}
+	s := d.String()
+	if d.V > 0 {
+		s = "+" + s
+	}
+	return " (" + s + ")"
+}

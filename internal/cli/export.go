@@ -1,0 +1,46 @@
+package cli
+
+import (
+	"fmt"
+
+	"rfledger/internal/report"
+	"rfledger/internal/watch"
+)
+
+func cmdExport(e *Env, args []string) int {
+	fs := newFlags(e, "export")
+	header := fs.Bool("c-header", false, "write a C header of the quantities marked export = true")
+	out := fs.String("o", "", "write to `FILE` instead of standard output")
+	var set setFlag
+	fs.Var(&set, "set", "replace an input: `name=value` (repeatable)")
+	pos, err := parse(fs, args)
+	if err != nil {
+		return flagErr(err)
+	}
+	if len(pos) != 1 || !*header {
+		return usageErr(e, "export", "want one worksheet and --c-header")
+	}
+	over, err := parseSet(set)
+	if err != nil {
+		return usageErr(e, "export", "%v", err)
+	}
+	ev := evaluate(pos[0], over, nil, nil)
+	printDiags(e, ev.diags)
+	if !ev.ok() {
+		return ExitBadSheet
+	}
+	data, err := report.CHeader(ev.sheet)
+	if err != nil {
+		fmt.Fprintf(e.Stderr, "rfledger export: %v\n", err)
+		return ExitBadSheet
+	}
+	if *out == "" {
+		_, _ = e.Stdout.Write(data)
+		return ExitOK
+	}
+	if err := watch.WriteAtomic(*out, data); err != nil {
+		fmt.Fprintf(e.Stderr, "rfledger export: %v\n", err)
+		return ExitBadSheet
+	}
+	return ExitOK
+}

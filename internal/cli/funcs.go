@@ -1,0 +1,60 @@
+package cli
+
+import (
+	"fmt"
+	"strings"
+
+	"rfledger/internal/rflib"
+	"rfledger/units"
+)
+
+func cmdFuncs(e *Env, args []string) int {
+	if len(args) > 0 {
+		return usageErr(e, "funcs", "takes no arguments")
+	}
+	fmt.Fprintln(e.Stdout, "Built-in functions. Arguments are checked by dimension; decibel and linear forms convert where the signature says so.")
+	fmt.Fprintln(e.Stdout, "Names in quotes are written with single quotes: ber('qpsk', ebn0). Constants: pi, c0 (speed of light), kB (Boltzmann), T0 = 290 K.")
+	for _, f := range rflib.Library().Funcs() {
+		fmt.Fprintf(e.Stdout, "\n%s\n    %s\n    source: %s\n", f.Signature(), f.Doc, f.Source)
+	}
+	return ExitOK
+}
+
+func cmdUnits(e *Env, args []string) int {
+	if len(args) > 0 {
+		return usageErr(e, "units", "takes no arguments")
+	}
+	fmt.Fprint(e.Stdout, unitsHelp)
+	fmt.Fprintf(e.Stdout, "\nAll unit symbols without prefixes: %s\n", strings.Join(units.KnownUnits(), " "))
+	return ExitOK
+}
+
+const unitsHelp = `Units
+
+Linear units take SI prefixes p n u/µ m c k M G T:
+  Hz m s W V A ohm/Ω K J g bit bit/s (bps) Bd (sym/s)
+  without prefixes: % ppm deg rad min h ft mi nmi
+  compounds with * / ^: m^2, W/m^2, mm/h, bit/s/Hz, kbit/s
+bit and sym are counts, so bit/s has the dimension of Hz.
+
+Decibel units (a level is the log of a linear value with a reference):
+  ratios      dB dBi dBd (= dBi - 2.15 dB) dBc dBFS
+  power       dBm dBW         densities  dBm/Hz dBW/Hz dBm/MHz
+  bandwidth   dBHz (dB-Hz)    temperature dBK   G/T dB/K
+  voltage     dBV dBmV dBuV   field      dBuV/m
+  Boltzmann   dBW/K/Hz        per kelvin dBW/K
+  rates       dB/km dB/m dB/100m dB/ft (decibels per length: times a length gives dB)
+
+Rules:
+  dBm + dB -> dBm        dBm - dBm -> dB       dB + dB -> dB
+  dBm/Hz + dBHz -> dBm   dBm - dBHz -> dBm/Hz  dBW - dBK -> dBW/K
+  dBW + dB/K - dBW/K/Hz -> dBHz (C/N0)
+  number * dB -> dB      dB/km * km -> dB
+  dBm + dBm   error: adding levels multiplies the powers; psum(a, b) adds powers
+  W + dB      error: convert with dbm() or watts()
+  number * dBm, dB * dB   error
+Comparisons work across decibel and linear forms of one dimension (p >= 25 mW with p in dBm);
+a plain number never compares with decibels (write 0 dB, not 0).
+Display: inputs keep the unit they were written in; results take the unit the algebra gives
+(decibels to 2 decimals, linear values in engineering notation); show = "unit" overrides.
+`

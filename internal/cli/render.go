@@ -1,0 +1,191 @@
+package cli
+
+import (
+	"fmt"
+	"io/fs"
+	"path/filepath"
+	"strings"
+
+	"rfledger/engine"
+	"rfledger/internal/report"
+	"rfledger/internal/rflib"
+	"rfledger/internal/watch"
+)
+
+// evaluated is a loaded, evaluated and analysed worksheet.
+type evaluated struct {
+	sheet    *engine.Sheet
+	analysis *engine.Analysis
+	diags    engine.Diagnostics // everything found, sorted; errors mean the sheet cannot be evaluated
+}
+
+// run loads, evaluates and (unless skipped) analyses a worksheet.
+func evaluate(path string, set []engine.Override, fsys fs.FS, ao *engine.AnalysisOptions) *evaluated {
+	sh, diags := engine.Load(path, engine.Options{Library: rflib.Library(), Set: set, FS: fsys})
+	ev := &evaluated{sheet: sh}
+	if !diags.HasErrors() {
+		diags = append(diags, sh.Eval()...)
+	}
+	if !diags.HasErrors() && ao != nil {
+		a, ds := sh.Analyze(*ao)
+		ev.analysis = a
+		diags = append(diags, ds...)
+	}
+	ev.diags = engine.SortDiagnostics(diags)
+	return ev
+}
+
+func (ev *evaluated) ok() bool { return !ev.diags.HasErrors() }
+
+// printDiags writes every diagnostic, errors and warnings, one per line.
+func printDiags(e *Env, ds engine.Diagnostics) {
+	for _, d := range ds {
+		fmt.Fprintln(e.Stderr, d.String())
+	}
+}
+
+func parseSet(set []string) ([]engine.Override, error) {
+	var out []engine.Override
+	for _, s := range set {
+		name, value, ok := strings.Cut(s, "=")
+		name, value = strings.TrimSpace(name), strings.TrimSpace(value)
+		if !ok || name == "" || value == "" {
+			return nil, fmt.Errorf("--set wants name=value, e.g. --set path.distance=\"5 km\"; got %q", s)
+		}
+		out = append(out, engine.Override{Name: name, Value: strings.Trim(value, "\"")})
+	}
+	return out, nil
+}
+
+// progress returns a progress reporter for long analyses, writing to a terminal only.
+func progress(e *Env) func(string, int, int) {
+	if !e.Terminal {
+		return nil
+	}
+	return func(what string, done, total int) {
+		fmt.Fprintf(e.Stderr, "\r%s: %d/%d trials", what, done, total)
+		if done == total {
+			fmt.Fprintf(e.Stderr, "\r%s\r", strings.Repeat(" ", 40))
+		}
+	}
+}
+
+// output is what render produces: the main file and the charts beside it.
+func output(ev *evaluated, asJSON bool, out string) ([]byte, []report.File) {
+	in := report.Input{Sheet: ev.sheet, Analysis: ev.analysis, Warnings: ev.diags}
+	if asJSON {
+		return report.JSON(in), nil
+	}
+	if out != "" {
+		in.ChartBase = strings.TrimSuffix(out, filepath.Ext(out))
+	}
+	return report.Markdown(in)
+}
+
+// writeOutputs writes the charts first and the page last, each atomically, so a reader
+// never sees a page whose charts are missing.
+func writeOutputs(out string, page []byte, files []report.File) error {
+	dir := filepath.Dir(out)
+	for _, f := range files {
+		if err := watch.WriteAtomic(filepath.Join(dir, f.Name), f.Data); err != nil {
+			return err
+		}
+	}
+	return watch.WriteAtomic(out, page)
+}
+
+func cmdRender(e *Env, args []string) int {
+	fs := newFlags(e, "render")
+	out := fs.String("o", "", "write the page to `FILE` (charts go beside it) instead of standard output")
+	asJSON := fs.Bool("json", false, "write the JSON result (format 1) instead of Markdown")
+	trials := fs.Int("trials", engine.DefaultTrials, "Monte Carlo trials")
+	seed := fs.Uint64("seed", 1, "Monte Carlo seed")
+	var set setFlag
+	fs.Var(&set, "set", "replace an input: `name=value` (repeatable)")
+	pos, err := parse(fs, args)
+	if err != nil {
+		return flagErr(err)
+	}
+	if len(pos) != 1 {
+		return usageErr(e, "render", "want one worksheet, got %d arguments", len(pos))
+	}
+	if *trials < 1 || *trials > engine.MaxTrials {
+		return usageErr(e, "render", "--trials must be between 1 and %d", engine.MaxTrials)
+	}
+	over, err := parseSet(set)
+	if err != nil {
+		return usageErr(e, "render", "%v", err)
+	}
+	ev := evaluate(pos[0], over, nil, &engine.AnalysisOptions{Trials: *trials, Seed: *seed, Progress: progress(e)})
+	printDiags(e, ev.diags)
+	if !ev.ok() {
+		fmt.Fprintf(e.Stderr, "rfledger: %s cannot be evaluated; nothing written\n", pos[0])
+		return ExitBadSheet
+	}
+	page, files := output(ev, *asJSON, *out)
+	if *out == "" {
+		_, _ = e.Stdout.Write(page)
+		return ExitOK
+	}
+	if err := writeOutputs(*out, page, files); err != nil {
+		fmt.Fprintf(e.Stderr, "rfledger: %v\n", err)
+		return ExitBadSheet
+	}
+	return ExitOK
+}
+
+func cmdCheck(e *Env, args []string) int {
+	fs := newFlags(e, "check")
+	var set setFlag
+	fs.Var(&set, "set", "replace an input: `name=value` (repeatable)")
+	pos, err := parse(fs, args)
+	if err != nil {
+		return flagErr(err)
+	}
+	if len(pos) == 0 {
+		return usageErr(e, "check", "want at least one worksheet")
+	}
+	over, err := parseSet(set)
+	if err != nil {
+		return usageErr(e, "check", "%v", err)
+	}
+	code := ExitOK
+	for _, p := range pos {
+		ev := evaluate(p, over, nil, nil)
+		printDiags(e, ev.diags)
+		if !ev.ok() {
+			fmt.Fprintf(e.Stdout, "%s: cannot be evaluated\n", p)
+			code = ExitBadSheet
+			continue
+		}
+		sh := ev.sheet
+		fails := 0
+		for _, rq := range sh.Requires {
+			if !rq.Known || !rq.Pass {
+				fails++
+			}
+		}
+		verdict := "PASS"
+		if fails > 0 {
+			verdict = "FAIL"
+			if code == ExitOK {
+				code = ExitFail
+			}
+		}
+		fmt.Fprintf(e.Stdout, "%s: %s, %d of %d requirements hold", p, verdict, len(sh.Requires)-fails, len(sh.Requires))
+		if f, ok := sh.Quantity(sh.Focus); ok {
+			fmt.Fprintf(e.Stdout, "; %s = %s", f.Name, f.Display())
+		}
+		fmt.Fprintln(e.Stdout)
+		for _, rq := range sh.Requires {
+			if !rq.Known || !rq.Pass {
+				fmt.Fprintf(e.Stdout, "  failed: %s", rq.That)
+				if q, ok := sh.Quantity(rq.Subject); ok {
+					fmt.Fprintf(e.Stdout, " (%s = %s)", q.Name, q.Display())
+				}
+				fmt.Fprintln(e.Stdout)
+			}
+		}
+	}
+	return code
+}

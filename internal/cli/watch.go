@@ -1,0 +1,72 @@
+package cli
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"os"
+	"os/signal"
+	"path/filepath"
+	"strings"
+
+	"rfledger/engine"
+	"rfledger/internal/watch"
+)
+
+func cmdWatch(e *Env, args []string) int {
+	fs := newFlags(e, "watch")
+	out := fs.String("o", "", "write the page to `FILE` (required)")
+	serve := fs.String("serve", "", "also serve the page with live refresh on `ADDR` (e.g. :8080, loopback only unless a host is given)")
+	trials := fs.Int("trials", engine.DefaultTrials, "Monte Carlo trials")
+	seed := fs.Uint64("seed", 1, "Monte Carlo seed")
+	var set setFlag
+	fs.Var(&set, "set", "replace an input: `name=value` (repeatable)")
+	pos, err := parse(fs, args)
+	if err != nil {
+		return flagErr(err)
+	}
+	if len(pos) != 1 || *out == "" {
+		return usageErr(e, "watch", "want one worksheet and -o FILE")
+	}
+	over, err := parseSet(set)
+	if err != nil {
+		return usageErr(e, "watch", "%v", err)
+	}
+	sheet := pos[0]
+	dir := filepath.Dir(sheet)
+	var charts []string
+	render := func() ([]byte, []string, error) {
+		ev := evaluate(sheet, over, nil, &engine.AnalysisOptions{Trials: *trials, Seed: *seed})
+		files := []string{sheet}
+		for _, p := range ev.sheet.Parts {
+			files = append(files, filepath.Join(dir, filepath.FromSlash(p)))
+		}
+		if !ev.ok() {
+			return nil, files, errors.New(ev.diags.Error())
+		}
+		for _, d := range ev.diags {
+			fmt.Fprintln(e.Stderr, d.String())
+		}
+		page, extra := output(ev, false, *out)
+		charts = charts[:0]
+		for _, f := range extra {
+			if err := watch.WriteAtomic(filepath.Join(filepath.Dir(*out), f.Name), f.Data); err != nil {
+				return nil, files, err
+			}
+			charts = append(charts, f.Name)
+		}
+		return page, files, nil
+	}
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	defer stop()
+	err = watch.Run(ctx, render, watch.Options{
+		Out: *out, Status: e.Stderr, Errors: e.Stderr, Serve: *serve, Title: strings.TrimSuffix(filepath.Base(sheet), ".toml"),
+		Ready: func(addr string) { fmt.Fprintf(e.Stderr, "serving http://%s/ (read-only)\n", addr) },
+		Extra: func(string) []string { return append([]string(nil), charts...) },
+	})
+	if err != nil {
+		fmt.Fprintf(e.Stderr, "rfledger watch: %v\n", err)
+		return ExitBadSheet
+	}
+	return ExitOK
+}

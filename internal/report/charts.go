@@ -1,0 +1,114 @@
+package report
+
+import (
+	"bytes"
+	"fmt"
+	"strconv"
+
+	"rfledger/internal/chart"
+)
+
+// addChart renders a chart into a file beside the page and links it.
+func (p *page) addChart(kind, alt string, draw func(*bytes.Buffer) error) {
+	if p.in.ChartBase == "" {
+		return
+	}
+	var buf bytes.Buffer
+	if err := draw(&buf); err != nil {
+		p.f("_(The %s chart could not be drawn: %s.)_\n\n", alt, mdText(err.Error()))
+		return
+	}
+	name := chartName(p.in.ChartBase, kind)
+	p.files = append(p.files, File{Name: name, Data: buf.Bytes()})
+	p.f("![%s](%s)\n\n", alt, name)
+}
+
+func (p *page) levelChart(ci chainInfo) {
+	in, hasIn := ci.inputDBm()
+	nin, hasNoise := ci.noiseInDBm()
+	if !hasIn && !hasNoise {
+		return
+	}
+	spec := chart.LevelSpec{Title: "Levels along " + ci.chain.Name, Unit: "dBm"}
+	spec.Stages = append(spec.Stages, "input")
+	if hasIn {
+		spec.Signal = append(spec.Signal, in)
+	}
+	if hasNoise {
+		spec.Noise = append(spec.Noise, nin)
+	}
+	for i, st := range ci.stages {
+		r := ci.cas.Stages[i]
+		spec.Stages = append(spec.Stages, st.Name)
+		if hasIn {
+			spec.Signal = append(spec.Signal, in+r.CumGainDB)
+		}
+		if hasNoise {
+			spec.Noise = append(spec.Noise, nin+r.CumNFDB+r.CumGainDB)
+		}
+	}
+	p.addChart("levels-"+ci.chain.Name, "level diagram of "+ci.chain.Name, func(b *bytes.Buffer) error { return chart.Levels(b, spec) })
+}
+
+func (p *page) budgetChart() {
+	a := p.in.Analysis
+	spec := chart.BarSpec{Title: "Where the budget goes: " + a.Focus.Name, Unit: "dB"}
+	for _, c := range a.Budget {
+		spec.Labels = append(spec.Labels, c.Item)
+		spec.Values = append(spec.Values, c.Value)
+	}
+	p.addChart("budget", "contributions to "+a.Focus.Name, func(b *bytes.Buffer) error { return chart.Bars(b, spec) })
+}
+
+func (p *page) histChart() {
+	a := p.in.Analysis
+	t := a.Tolerance
+	spec := chart.HistSpec{
+		Title:  fmt.Sprintf("Monte Carlo, %d trials", t.Trials),
+		XLabel: unitHead(a.Focus.Name, a.Unit),
+		Values: t.Samples,
+		Bins:   40,
+		VLines: []chart.Point{{Label: "1 %", X: t.P01}, {Label: "median", X: t.P50}, {Label: "99 %", X: t.P99}},
+	}
+	spread := 3 * (t.P99 - t.P01)
+	for _, rq := range p.in.Sheet.Requires {
+		if rq.Subject == a.Focus.Name && len(t.Samples) > 0 {
+			// A bound far outside the spread would squash the histogram into a line; the
+			// tolerance table already says how far away it is.
+			if v, err := rq.Bound.In(unitOfName(a.Unit)); err == nil && v >= t.Samples[0]-spread && v <= t.Samples[len(t.Samples)-1]+spread {
+				spec.VLines = append(spec.VLines, chart.Point{Label: "bound " + rq.Op + " " + rq.Bound.String(), X: v})
+			}
+		}
+	}
+	p.addChart("montecarlo", "Monte Carlo histogram of "+a.Focus.Name, func(b *bytes.Buffer) error { return chart.Histogram(b, spec) })
+}
+
+func (p *page) sweepChart(i int, sw sweepResult) {
+	spec := chart.LineSpec{
+		Title:  "Sweep of " + sw.Sweep.Vary,
+		XLabel: unitHead(sw.Sweep.Vary, sw.Unit),
+		LogX:   sw.Sweep.Log,
+	}
+	ylabel := ""
+	for _, s := range sw.Series {
+		spec.Series = append(spec.Series, chart.Series{Name: s.Quantity, X: sw.X, Y: s.Y})
+		ylabel = unitHead(s.Quantity, s.Unit)
+	}
+	if len(sw.Series) > 1 {
+		ylabel = sw.Series[0].Unit
+	}
+	spec.YLabel = ylabel
+	for _, rq := range p.in.Sheet.Requires {
+		for _, s := range sw.Series {
+			if rq.Subject == s.Quantity {
+				if v, err := rq.Bound.In(unitOfName(s.Unit)); err == nil {
+					spec.Thresholds = append(spec.Thresholds, chart.HLine{Label: rq.That, Y: v})
+				}
+			}
+		}
+	}
+	for _, c := range sw.Crossings {
+		spec.Marks = append(spec.Marks, chart.Point{Label: fmtNum(c.X, sw.Unit), X: c.X, Y: c.Y})
+	}
+	p.addChart("sweep-"+strconv.Itoa(i+1), "sweep of "+sw.Sweep.Vary, func(b *bytes.Buffer) error { return chart.Line(b, spec) })
+}

@@ -1,0 +1,248 @@
+package report
+
+import (
+	"bytes"
+	"encoding/json"
+	"math"
+
+	"rfledger/engine"
+)
+
+// The JSON contract, "format": 1. Field names are stable: fields may be added, never renamed.
+type jsonDoc struct {
+	Format       int                  `json:"format"`
+	Title        string               `json:"title"`
+	Summary      string               `json:"summary,omitempty"`
+	Focus        string               `json:"focus"`
+	Pass         bool                 `json:"pass"`
+	Quantities   map[string]jsonQ     `json:"quantities"`
+	Requirements []jsonReq            `json:"requirements"`
+	Chains       map[string]jsonChain `json:"chains"`
+	Sensitivity  []jsonSens           `json:"sensitivity"`
+	Budget       []jsonContribution   `json:"budget"`
+	Tolerance    *jsonTol             `json:"tolerance"`
+	Sweeps       []jsonSweep          `json:"sweeps"`
+	Solves       []jsonSolve          `json:"solves"`
+	Warnings     []string             `json:"warnings"`
+	Hash         string               `json:"hash"`
+}
+
+type jsonQ struct {
+	Value    *float64 `json:"value"`
+	Unit     string   `json:"unit"`
+	Kind     string   `json:"kind"`
+	Formula  string   `json:"formula,omitempty"`
+	Tol      string   `json:"tol,omitempty"`
+	Dist     string   `json:"dist,omitempty"`
+	Note     string   `json:"note,omitempty"`
+	Source   string   `json:"source,omitempty"`
+	Warnings []string `json:"warnings,omitempty"`
+}
+
+type jsonReq struct {
+	That string `json:"that"`
+	Pass bool   `json:"pass"`
+	Note string `json:"note,omitempty"`
+}
+
+type jsonStage struct {
+	Stage      string   `json:"stage"`
+	GainDB     float64  `json:"gain_db"`
+	NFDB       float64  `json:"nf_db"`
+	IIP3DBm    *float64 `json:"iip3_dbm,omitempty"`
+	CumGainDB  float64  `json:"cum_gain_db"`
+	CumNFDB    float64  `json:"cum_nf_db"`
+	CumIIP3DBm *float64 `json:"cum_iip3_dbm,omitempty"`
+	NoiseShare float64  `json:"noise_share"`
+	IIP3Share  *float64 `json:"iip3_share,omitempty"`
+	OutDBm     *float64 `json:"signal_out_dbm,omitempty"`
+}
+
+type jsonChain struct {
+	Stages  []jsonStage `json:"stages"`
+	GainDB  float64     `json:"gain_db"`
+	NFDB    float64     `json:"nf_db"`
+	TeK     float64     `json:"te_k"`
+	IIP3DBm *float64    `json:"iip3_dbm,omitempty"`
+	OIP3DBm *float64    `json:"oip3_dbm,omitempty"`
+	Error   string      `json:"error,omitempty"`
+}
+
+type jsonSens struct {
+	Input  string   `json:"input"`
+	Per    string   `json:"per"`
+	Change *float64 `json:"change"`
+	Unit   string   `json:"unit"`
+}
+
+type jsonContribution struct {
+	Item  string  `json:"item"`
+	Value float64 `json:"value"`
+	Unit  string  `json:"unit"`
+}
+
+type jsonMC struct {
+	Trials int      `json:"trials"`
+	Seed   uint64   `json:"seed"`
+	PPass  float64  `json:"p_pass"`
+	P01    float64  `json:"p01"`
+	P50    float64  `json:"p50"`
+	P99    float64  `json:"p99"`
+	Failed int      `json:"failed"`
+	Shares []jShare `json:"variance_shares"`
+}
+
+type jShare struct {
+	Input string  `json:"input"`
+	Share float64 `json:"share"`
+}
+
+type jsonTol struct {
+	Nominal    float64 `json:"nominal"`
+	WorstLow   float64 `json:"worst_low"`
+	WorstHigh  float64 `json:"worst_high"`
+	RSSSigma   float64 `json:"rss_sigma"`
+	Unit       string  `json:"unit"`
+	MonteCarlo jsonMC  `json:"monte_carlo"`
+}
+
+type jsonSweep struct {
+	Vary      string            `json:"vary"`
+	Unit      string            `json:"unit"`
+	Units     map[string]string `json:"units"`
+	Points    []map[string]any  `json:"points"`
+	Crossings []jsonCrossing    `json:"crossings"`
+}
+
+type jsonCrossing struct {
+	Quantity string  `json:"quantity"`
+	That     string  `json:"that"`
+	X        float64 `json:"x"`
+}
+
+type jsonSolve struct {
+	Name  string   `json:"name"`
+	Value *float64 `json:"value"`
+	Unit  string   `json:"unit"`
+	Found bool     `json:"found"`
+	Note  string   `json:"note,omitempty"`
+}
+
+func num(v float64) *float64 {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return nil
+	}
+	return &v
+}
+
+// JSON renders the result as the format-1 JSON contract.
+func JSON(in Input) []byte {
+	sh := in.Sheet
+	doc := jsonDoc{Format: 1, Title: sh.Title, Summary: sh.Summary, Focus: sh.Focus, Hash: sh.Hash, Pass: true,
+		Quantities: map[string]jsonQ{}, Chains: map[string]jsonChain{},
+		Requirements: []jsonReq{}, Sensitivity: []jsonSens{}, Sweeps: []jsonSweep{}, Solves: []jsonSolve{}, Warnings: []string{}, Budget: []jsonContribution{}}
+	for _, q := range sh.Quantities() {
+		v, unit := engine.QuantityNumber(q)
+		jq := jsonQ{Unit: unit, Kind: "input", Note: q.Note, Source: q.Source, Warnings: q.Warnings}
+		if q.Known {
+			jq.Value = num(v)
+		}
+		if !q.Input() {
+			jq.Kind, jq.Formula = "derived", q.Formula
+		}
+		if q.Tol != nil {
+			jq.Tol, jq.Dist = q.Tol.Text, q.Tol.Dist
+		}
+		doc.Quantities[q.Name] = jq
+	}
+	for _, rq := range sh.Requires {
+		pass := rq.Known && rq.Pass
+		doc.Pass = doc.Pass && pass
+		doc.Requirements = append(doc.Requirements, jsonReq{That: rq.That, Pass: pass, Note: rq.Note})
+	}
+	for _, ci := range chains(sh) {
+		doc.Chains[ci.chain.Name] = chainJSON(ci)
+	}
+	for _, d := range in.Warnings {
+		if d.Severity == engine.Warning {
+			doc.Warnings = append(doc.Warnings, d.String())
+		}
+	}
+	if a := in.Analysis; a != nil {
+		analysisJSON(&doc, a, sh)
+	}
+	var b bytes.Buffer
+	enc := json.NewEncoder(&b)
+	enc.SetIndent("", "  ")
+	enc.SetEscapeHTML(false)
+	_ = enc.Encode(doc) // only plain values: cannot fail
+	return b.Bytes()
+}
+
+func chainJSON(ci chainInfo) jsonChain {
+	if ci.err != nil {
+		return jsonChain{Error: ci.err.Error(), Stages: []jsonStage{}}
+	}
+	c := ci.cas
+	jc := jsonChain{GainDB: c.GainDB, NFDB: c.NFDB, TeK: c.TeK}
+	if c.HasIIP3 {
+		jc.IIP3DBm, jc.OIP3DBm = num(c.IIP3), num(c.OIP3)
+	}
+	in, hasIn := ci.inputDBm()
+	for i, st := range ci.stages {
+		r := c.Stages[i]
+		js := jsonStage{Stage: st.Name, GainDB: st.GainDB, NFDB: st.NFDB, CumGainDB: r.CumGainDB, CumNFDB: r.CumNFDB, NoiseShare: r.NoiseShare}
+		if st.HasIIP3 {
+			js.IIP3DBm, js.IIP3Share = num(st.IIP3), num(r.IIP3Share)
+		}
+		if r.HasIIP3 {
+			js.CumIIP3DBm = num(r.CumIIP3)
+		}
+		if hasIn {
+			js.OutDBm = num(in + r.CumGainDB)
+		}
+		jc.Stages = append(jc.Stages, js)
+	}
+	return jc
+}
+
+func analysisJSON(doc *jsonDoc, a *engine.Analysis, sh *engine.Sheet) {
+	for _, s := range a.Sensitivity {
+		doc.Sensitivity = append(doc.Sensitivity, jsonSens{Input: s.Input, Per: s.Per, Change: num(s.Change), Unit: a.ChangeUnit})
+	}
+	for _, c := range a.Budget {
+		doc.Budget = append(doc.Budget, jsonContribution{Item: c.Item, Value: c.Value, Unit: c.Unit})
+	}
+	if t := a.Tolerance; t != nil {
+		jt := &jsonTol{Nominal: t.Nominal, WorstLow: t.WorstLow, WorstHigh: t.WorstHigh, RSSSigma: t.RSSSigma, Unit: a.Unit,
+			MonteCarlo: jsonMC{Trials: t.Trials, Seed: t.Seed, PPass: t.PPass, P01: t.P01, P50: t.P50, P99: t.P99, Failed: t.Failed, Shares: []jShare{}}}
+		for _, s := range t.Shares {
+			jt.MonteCarlo.Shares = append(jt.MonteCarlo.Shares, jShare{Input: s.Input, Share: s.Share})
+		}
+		doc.Tolerance = jt
+	}
+	for _, sw := range a.Sweeps {
+		js := jsonSweep{Vary: sw.Sweep.Vary, Unit: sw.Unit, Units: map[string]string{}, Points: []map[string]any{}, Crossings: []jsonCrossing{}}
+		for _, s := range sw.Series {
+			js.Units[s.Quantity] = s.Unit
+		}
+		for i, x := range sw.X {
+			pt := map[string]any{"x": x}
+			for _, s := range sw.Series {
+				pt[s.Quantity] = num(s.Y[i])
+			}
+			js.Points = append(js.Points, pt)
+		}
+		for _, c := range sw.Crossings {
+			js.Crossings = append(js.Crossings, jsonCrossing{Quantity: c.Quantity, That: sh.Requires[c.Require].That, X: c.X})
+		}
+		doc.Sweeps = append(doc.Sweeps, js)
+	}
+	for _, r := range a.Solves {
+		js := jsonSolve{Name: r.Solve.Name, Unit: r.Unit, Found: r.Found, Note: r.Note}
+		if r.Found {
+			js.Value = num(r.Value)
+		}
+		doc.Solves = append(doc.Solves, js)
+	}
+}

@@ -1,0 +1,458 @@
+package report
+
+import (
+	"bytes"
+	"fmt"
+	"math"
+	"strings"
+
+	"rfledger/engine"
+	"rfledger/units"
+)
+
+// page accumulates the Markdown and the chart files.
+type page struct {
+	in     Input
+	b      bytes.Buffer
+	files  []File
+	chains []chainInfo
+}
+
+func (p *page) f(format string, args ...any) { fmt.Fprintf(&p.b, format, args...) }
+
+// Markdown renders the budget page. The charts it links come back as files to write beside it.
+func Markdown(in Input) ([]byte, []File) {
+	p := &page{in: in, chains: chains(in.Sheet)}
+	sh := in.Sheet
+	title := sh.Title
+	if title == "" {
+		title = "Link budget"
+	}
+	p.f("# %s\n\n", mdText(title))
+	if sh.Summary != "" {
+		p.f("%s\n\n", mdText(sh.Summary))
+	}
+	p.verdict()
+	p.lineItems()
+	p.cascades()
+	if a := in.Analysis; a != nil && a.Focus != nil {
+		p.budget()
+		p.sensitivity()
+		p.tolerance()
+	}
+	p.sweeps()
+	p.solves()
+	p.warnings()
+	p.cautions()
+	p.footer()
+	return p.b.Bytes(), p.files
+}
+
+// mdText escapes characters that Markdown would take as formatting in running text.
+func mdText(s string) string {
+	r := strings.NewReplacer("\\", "\\\\", "*", "\\*", "_", "\\_", "`", "\\`", "<", "&lt;", ">", "&gt;", "[", "\\[", "]", "\\]", "|", "\\|", "#", "\\#")
+	return r.Replace(strings.TrimSpace(s))
+}
+
+func (p *page) verdict() {
+	sh := p.in.Sheet
+	p.f("## Verdict\n\n")
+	fails, unknown := 0, 0
+	for _, rq := range sh.Requires {
+		switch {
+		case !rq.Known:
+			unknown++
+		case !rq.Pass:
+			fails++
+		}
+	}
+	switch {
+	case len(sh.Requires) == 0:
+		p.f("No requirements are set; add `[[require]]` entries to have the page check them.\n\n")
+	case fails == 0 && unknown == 0:
+		p.f("**PASS: every requirement holds** (%d of %d).\n\n", len(sh.Requires), len(sh.Requires))
+	default:
+		p.f("**FAIL: %d of %d requirements do not hold", fails+unknown, len(sh.Requires))
+		if unknown > 0 {
+			p.f(" (%d could not be evaluated)", unknown)
+		}
+		p.f(".**\n\n")
+	}
+	if f, ok := sh.Quantity(sh.Focus); ok {
+		p.f("Focus: `%s` = **%s**.\n\n", f.Name, f.Display())
+	}
+	if a := p.in.Analysis; a != nil {
+		for _, so := range a.Solves {
+			p.f("- %s\n", solveSentence(sh, so))
+		}
+		if len(a.Solves) > 0 {
+			p.f("\n")
+		}
+	}
+	if len(sh.Requires) == 0 {
+		return
+	}
+	p.f("| requirement | value | result | note |\n| --- | --- | --- | --- |\n")
+	for _, rq := range sh.Requires {
+		value := ""
+		if q, ok := sh.Quantity(rq.Subject); ok {
+			value = q.Display()
+		}
+		result := "PASS"
+		switch {
+		case !rq.Known:
+			result = "**cannot evaluate**"
+		case !rq.Pass:
+			result = "**FAIL**"
+		}
+		p.f("| %s | %s | %s | %s |\n", code(rq.That), value, result, cell(rq.Note))
+	}
+	p.f("\n")
+}
+
+func solveSentence(sh *engine.Sheet, r engine.SolveResult) string {
+	so := r.Solve
+	if !r.Found {
+		why := r.Note
+		if why == "" {
+			why = "no crossing in range"
+		}
+		return fmt.Sprintf("`%s`: %s does not reach %s for %s between %s and %s: %s.", so.Name, so.SoThat, so.Equals, so.Vary, so.Within[0], so.Within[1], why)
+	}
+	return fmt.Sprintf("`%s`: %s reaches %s at %s = **%s**.", so.Name, so.SoThat, so.Equals, so.Vary, fmtNum(r.Value, r.Unit))
+}
+
+func tolText(t *engine.Tol) string {
+	if t == nil {
+		return ""
+	}
+	s := t.Text
+	if !strings.Contains(s, "/") {
+		s = "±" + s
+	}
+	return s + " (" + t.Dist + ")"
+}
+
+func (p *page) lineItems() {
+	sh := p.in.Sheet
+	p.f("## Line items\n\n")
+	for _, g := range sh.Groups {
+		if len(g.Quantities) == 0 {
+			continue
+		}
+		name := g.Name
+		if name == "" {
+			name = "General"
+		}
+		p.f("### %s\n\n", mdText(name))
+		p.f("| quantity | value | obtained from | tolerance | note | source |\n| --- | ---: | --- | --- | --- | --- |\n")
+		for _, q := range g.Quantities {
+			how := "input"
+			if !q.Input() {
+				how = code("= " + q.Formula)
+			}
+			key := strings.TrimPrefix(q.Name, g.Name+".")
+			if len(q.Warnings) > 0 {
+				key += " (warning)"
+			}
+			p.f("| %s | %s | %s | %s | %s | %s |\n", cell(key), q.Display(), how, tolText(q.Tol), cell(q.Note), cell(q.Source))
+		}
+		p.f("\n")
+	}
+}
+
+func (p *page) cascades() {
+	if len(p.chains) == 0 {
+		return
+	}
+	p.f("## Cascades\n\n")
+	for _, ci := range p.chains {
+		p.f("### %s\n\n", mdText(ci.chain.Name))
+		if ci.err != nil {
+			p.f("The cascade cannot be computed: %s.\n\n", mdText(ci.err.Error()))
+			continue
+		}
+		in, hasIn := ci.inputDBm()
+		nin, hasNoise := ci.noiseInDBm()
+		if hasIn {
+			p.f("Signal at the chain input: `%s` = %s. ", ci.input.Name, ci.input.Display())
+		}
+		if hasNoise {
+			p.f("Noise in `%s` = %s at T0 = 290 K: %s dBm.", ci.noise.Name, ci.noise.Display(), db2(nin))
+		}
+		if hasIn || hasNoise {
+			p.f("\n\n")
+		}
+		p.f("| # | stage | gain | NF | IIP3 | cum. gain | cum. NF | cum. IIP3 | share of F−1 | share of 1/IIP3 |")
+		if hasIn {
+			p.f(" signal out |")
+		}
+		if hasNoise {
+			p.f(" noise out |")
+		}
+		p.f("\n| ---: | --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |")
+		if hasIn {
+			p.f(" ---: |")
+		}
+		if hasNoise {
+			p.f(" ---: |")
+		}
+		p.f("\n")
+		for i, st := range ci.stages {
+			r := ci.cas.Stages[i]
+			iip3, cumIIP3, share3 := "", "", ""
+			if st.HasIIP3 {
+				iip3 = db2(st.IIP3) + " dBm"
+				share3 = pct(r.IIP3Share)
+			}
+			if r.HasIIP3 {
+				cumIIP3 = db2(r.CumIIP3) + " dBm"
+			}
+			p.f("| %d | %s | %s dB | %s dB | %s | %s dB | %s dB | %s | %s | %s |", i+1, cell(st.Name), db2(st.GainDB), db2(st.NFDB), iip3, db2(r.CumGainDB), db2(r.CumNFDB), cumIIP3, pct(r.NoiseShare), share3)
+			if hasIn {
+				p.f(" %s dBm |", db2(in+r.CumGainDB))
+			}
+			if hasNoise {
+				p.f(" %s dBm |", db2(nin+r.CumNFDB+r.CumGainDB))
+			}
+			p.f("\n")
+		}
+		c := ci.cas
+		total := "n/a"
+		if c.HasIIP3 {
+			total = db2(c.IIP3) + " dBm"
+		}
+		p.f("\nCascade: gain **%s dB**, noise figure **%s dB** (Te %s K), IIP3 **%s**", db2(c.GainDB), db2(c.NFDB), units.FormatNum(c.TeK), total)
+		if c.HasIIP3 {
+			p.f(", OIP3 %s dBm", db2(c.OIP3))
+		}
+		if c.HasIP1dB {
+			p.f(", input P1dB %s dBm", db2(c.IP1dB))
+		}
+		p.f(".\n\n")
+		p.f("%s\n\n", dominantStages(ci))
+		for _, n := range ci.notes {
+			p.f("- Note: %s.\n", mdText(n))
+		}
+		if len(ci.notes) > 0 {
+			p.f("\n")
+		}
+		p.levelChart(ci)
+	}
+}
+
+// dominantStages names the stages that set the noise figure and the intercept.
+func dominantStages(ci chainInfo) string {
+	bestN, bestI := -1, -1
+	for i, r := range ci.cas.Stages {
+		if bestN < 0 || r.NoiseShare > ci.cas.Stages[bestN].NoiseShare {
+			bestN = i
+		}
+		if r.HasIIP3 && ci.stages[i].HasIIP3 && (bestI < 0 || r.IIP3Share > ci.cas.Stages[bestI].IIP3Share) {
+			bestI = i
+		}
+	}
+	var parts []string
+	if bestN >= 0 && ci.cas.NFDB > 0 {
+		parts = append(parts, fmt.Sprintf("**%s** sets %s of the noise factor excess (F − 1)", mdText(ci.stages[bestN].Name), pct(ci.cas.Stages[bestN].NoiseShare)))
+	}
+	if bestI >= 0 {
+		parts = append(parts, fmt.Sprintf("**%s** sets %s of the IIP3 degradation", mdText(ci.stages[bestI].Name), pct(ci.cas.Stages[bestI].IIP3Share)))
+	}
+	if len(parts) == 0 {
+		return "The chain adds no noise and has no intercept points."
+	}
+	return "In this chain " + strings.Join(parts, "; ") + "."
+}
+
+func (p *page) budget() {
+	a := p.in.Analysis
+	p.f("## Where the budget goes\n\n")
+	if len(a.Budget) == 0 {
+		p.f("`%s` is not a sum and difference of decibel terms, so it does not break down into line items; see the sensitivity below.\n\n", a.Focus.Name)
+		return
+	}
+	abs := 0.0
+	for _, c := range a.Budget {
+		abs += math.Abs(c.Value)
+	}
+	p.f("`%s` = %s is the sum of these terms, largest first (followed through the quantities its formula names):\n\n", a.Focus.Name, a.Focus.Display())
+	p.f("| # | item | contribution | share of the total swing |\n| ---: | --- | ---: | ---: |\n")
+	for i, c := range a.Budget {
+		p.f("| %d | %s | %s %s | %s |\n", i+1, code(c.Item), signed(c.Value), c.Unit, pct(math.Abs(c.Value)/abs))
+	}
+	p.f("| | **total** | **%s %s** | |\n\n", db2(engine.Number(a.Focus, a.Focus.Value)), a.Unit)
+	p.budgetChart()
+}
+
+func (p *page) sensitivity() {
+	a := p.in.Analysis
+	p.f("## Sensitivity\n\n")
+	if len(a.Sensitivity) == 0 {
+		p.f("`%s` depends on no input.\n\n", a.Focus.Name)
+		return
+	}
+	p.f("Change of `%s` when one input rises by 1 dB (decibel inputs) or 10 %% (linear inputs), every other input at its nominal value; largest first:\n\n", a.Focus.Name)
+	p.f("| input | step | change of %s |\n| --- | ---: | ---: |\n", mdText(a.Focus.Name))
+	for _, s := range a.Sensitivity {
+		p.f("| %s | +%s | %s %s |\n", code(s.Input), s.Per, signed(s.Change), a.ChangeUnit)
+	}
+	p.f("\n")
+}
+
+func (p *page) tolerance() {
+	a := p.in.Analysis
+	t := a.Tolerance
+	p.f("## Tolerance\n\n")
+	if t == nil {
+		p.f("No input that `%s` depends on has a tolerance; add `tol = \"1 dB\"` to the long form of an input to see the spread.\n\n", a.Focus.Name)
+		return
+	}
+	u := a.Unit
+	p.f("Spread of `%s` from the input tolerances (a normal tolerance is its 3σ limit):\n\n", a.Focus.Name)
+	p.f("| measure | %s |\n| --- | ---: |\n", mdText(a.Focus.Name))
+	p.f("| nominal | %s |\n", fmtNum(t.Nominal, u))
+	p.f("| worst case low (every input at its unfavourable limit) | %s |\n", fmtNum(t.WorstLow, u))
+	p.f("| worst case high | %s |\n", fmtNum(t.WorstHigh, u))
+	p.f("| root-sum-square σ | %s |\n", fmtNum(t.RSSSigma, a.ChangeUnit))
+	p.f("| Monte Carlo 1 %% point | %s |\n", fmtNum(t.P01, u))
+	p.f("| Monte Carlo median | %s |\n", fmtNum(t.P50, u))
+	p.f("| Monte Carlo 99 %% point | %s |\n", fmtNum(t.P99, u))
+	p.f("| chance that every requirement holds | **%s** |\n\n", pct(t.PPass))
+	p.f("Monte Carlo: %d trials, seed %d", t.Trials, t.Seed)
+	if t.Failed > 0 {
+		p.f("; %d trials could not be evaluated and count as failing", t.Failed)
+	}
+	p.f(".\n\n")
+	p.f("| input | share of the variance |\n| --- | ---: |\n")
+	for _, s := range t.Shares {
+		p.f("| %s | %s |\n", code(s.Input), pct(s.Share))
+	}
+	p.f("\n")
+	p.histChart()
+}
+
+func (p *page) sweeps() {
+	a := p.in.Analysis
+	if a == nil || len(a.Sweeps) == 0 {
+		return
+	}
+	p.f("## Sweeps\n\n")
+	for i, sw := range a.Sweeps {
+		p.f("### %s from %s to %s\n\n", mdText(sw.Sweep.Vary), sw.Sweep.From, sw.Sweep.To)
+		p.sweepChart(i, sw)
+		for _, c := range sw.Crossings {
+			rq := p.in.Sheet.Requires[c.Require]
+			p.f("- `%s` crosses the bound of `%s` at %s = %s.\n", c.Quantity, rq.That, sw.Sweep.Vary, fmtNum(c.X, sw.Unit))
+		}
+		if len(sw.Crossings) > 0 {
+			p.f("\n")
+		}
+		p.f("| %s |", cell(unitHead(sw.Sweep.Vary, sw.Unit)))
+		for _, s := range sw.Series {
+			p.f(" %s |", cell(unitHead(s.Quantity, s.Unit)))
+		}
+		p.f("\n| ---: |%s\n", strings.Repeat(" ---: |", len(sw.Series)))
+		for j, x := range sw.X {
+			p.f("| %s |", units.FormatNum(x))
+			for _, s := range sw.Series {
+				p.f(" %s |", tableNum(s.Y[j], s.Unit))
+			}
+			p.f("\n")
+		}
+		p.f("\n")
+	}
+}
+
+func unitHead(name, unit string) string {
+	if unit == "" {
+		return name
+	}
+	return name + " (" + unit + ")"
+}
+
+func tableNum(v float64, unit string) string {
+	if math.IsNaN(v) {
+		return "n/a"
+	}
+	if strings.HasPrefix(unit, "dB") {
+		return db2(v)
+	}
+	return units.FormatNum(v)
+}
+
+func (p *page) solves() {
+	a := p.in.Analysis
+	if a == nil || len(a.Solves) == 0 {
+		return
+	}
+	p.f("## Solves\n\n| solve | vary | so that | within | result |\n| --- | --- | --- | --- | --- |\n")
+	for _, r := range a.Solves {
+		so := r.Solve
+		res := "no crossing in range"
+		if r.Found {
+			res = "**" + fmtNum(r.Value, r.Unit) + "**"
+		} else if r.Note != "" {
+			res = cell(r.Note)
+		}
+		p.f("| %s | %s | %s = %s | %s to %s | %s |\n", code(so.Name), code(so.Vary), code(so.SoThat), so.Equals, so.Within[0], so.Within[1], res)
+	}
+	p.f("\n")
+}
+
+func (p *page) warnings() {
+	var lines []string
+	for _, d := range p.in.Warnings {
+		if d.Severity != engine.Warning {
+			continue
+		}
+		who := ""
+		if d.Quantity != "" {
+			who = "`" + d.Quantity + "`: "
+		}
+		lines = append(lines, "- "+who+mdText(d.Summary))
+	}
+	for _, ci := range p.chains {
+		if ci.err != nil {
+			lines = append(lines, "- `"+ci.chain.Name+"`: "+mdText(ci.err.Error()))
+		}
+	}
+	p.f("## Warnings\n\n")
+	if len(lines) == 0 {
+		p.f("None: every function was used inside its model's range.\n\n")
+		return
+	}
+	p.f("%s\n\n", strings.Join(lines, "\n"))
+}
+
+func (p *page) cautions() {
+	p.f(`## Cautions
+
+- This page is an engineering estimate, not a compliance finding. Transmit power, EIRP, duty cycle,
+  occupied bandwidth and frequency use are regulated, and the limits depend on where the radio is
+  used: check them with the spectrum authority of that country or region, and follow licensed
+  practice where a licence is needed.
+- RF exposure near antennas depends on power, gain, distance and duty cycle; check the applicable
+  exposure limits and keep people at the safe distance they require.
+- Models have ranges of validity (see the warnings above); measured margins in the field are the
+  final word.
+
+`)
+}
+
+func (p *page) footer() {
+	sh := p.in.Sheet
+	p.f("---\n\nRendered by rfledger from `%s` (content hash `%s`", sh.File, sh.Hash)
+	if len(sh.Parts) > 0 {
+		p.f(", with parts %s", strings.Join(quoteAll(sh.Parts), ", "))
+	}
+	p.f("). The same worksheet always gives the same page.\n")
+}
+
+func quoteAll(ss []string) []string {
+	out := make([]string, len(ss))
+	for i, s := range ss {
+		out[i] = "`" + s + "`"
+	}
+	return out
+}

@@ -1,0 +1,170 @@
+// Package report writes an evaluated worksheet as a Markdown budget page (with SVG charts
+// beside it), as the JSON contract for scripts, and as a C header for firmware. Output depends
+// only on the worksheet: no timestamps, no map order, the same bytes on every run.
+package report
+
+import (
+	"fmt"
+	"math"
+	"path"
+	"strings"
+
+	"rfledger/engine"
+	"rfledger/internal/rflib"
+	"rfledger/internal/rfmath"
+	"rfledger/units"
+)
+
+// Input is what a report is made from.
+type Input struct {
+	Sheet    *engine.Sheet
+	Analysis *engine.Analysis   // nil when the analyses were not run
+	Warnings engine.Diagnostics // warnings from evaluation and the analyses
+	// ChartBase is the file name prefix for charts written beside the page ("budget" gives
+	// "budget.sweep-1.svg"); "" leaves the charts out.
+	ChartBase string
+}
+
+// File is a file written beside the page.
+type File struct {
+	Name string
+	Data []byte
+}
+
+// chainInfo is a chain's cascade, worked out once for the page and the JSON.
+type chainInfo struct {
+	chain  *engine.Chain
+	stages []rfmath.Stage
+	cas    rfmath.Cascade
+	notes  []string
+	err    error
+	input  *engine.Quantity // the level entering the chain, when the group has one
+	noise  *engine.Quantity // the bandwidth, for the integrated noise level
+}
+
+// chains works out every chain's cascade.
+func chains(sh *engine.Sheet) []chainInfo {
+	var out []chainInfo
+	for _, c := range sh.Chains() {
+		ci := chainInfo{chain: c}
+		ci.stages, ci.notes, ci.err = rflib.Stages(sh.ChainValue(c))
+		if ci.err == nil {
+			ci.cas = rfmath.CascadeChain(ci.stages)
+		}
+		group := c.Name[:max(strings.LastIndex(c.Name, "."), 0)]
+		for _, key := range []string{"level", "input"} {
+			if q, ok := sh.Quantity(join(group, key)); ok && q.Known && q.Value.D == units.Power {
+				ci.input = q
+				break
+			}
+		}
+		if q, ok := sh.Quantity(join(group, "bandwidth")); ok && q.Known && q.Value.D == units.Frequency {
+			ci.noise = q
+		}
+		out = append(out, ci)
+	}
+	return out
+}
+
+func join(a, b string) string {
+	if a == "" {
+		return b
+	}
+	return a + "." + b
+}
+
+// inputDBm is the chain's input level in dBm.
+func (ci chainInfo) inputDBm() (float64, bool) {
+	if ci.input == nil {
+		return 0, false
+	}
+	l, err := ci.input.Value.ToLevel()
+	if err != nil {
+		return 0, false
+	}
+	return l.V + 30, true
+}
+
+// noiseInDBm is the thermal noise at the chain input (k·T0·B) in dBm.
+func (ci chainInfo) noiseInDBm() (float64, bool) {
+	if ci.noise == nil {
+		return 0, false
+	}
+	return rfmath.DBm(rfmath.Thermal(ci.noise.Value.Linear().V, rfmath.T0)), true
+}
+
+// db2 formats a decibel number with 2 decimals.
+func db2(v float64) string { return units.FormatDB(v) }
+
+// signed formats a decibel change with its sign.
+func signed(v float64) string {
+	if math.IsNaN(v) {
+		return "n/a"
+	}
+	s := units.FormatDB(v)
+	if !strings.HasPrefix(s, "-") && s != "0.00" {
+		s = "+" + s
+	}
+	return s
+}
+
+func pct(v float64) string {
+	switch {
+	case math.IsNaN(v):
+		return "n/a"
+	case v > 0 && v < 0.0001:
+		return "< 0.01 %"
+	}
+	return fmt.Sprintf("%.2f %%", 100*v)
+}
+
+// chartName returns the file name of a chart beside the page.
+func chartName(base, kind string) string {
+	return path.Base(base) + "." + kind + ".svg"
+}
+
+// cell escapes text for a Markdown table cell.
+func cell(s string) string {
+	s = strings.ReplaceAll(s, "\\", "\\\\")
+	s = strings.ReplaceAll(s, "|", "\\|")
+	s = strings.ReplaceAll(s, "\n", " ")
+	return s
+}
+
+// code writes text as inline code in a table cell.
+func code(s string) string {
+	if s == "" {
+		return ""
+	}
+	s = strings.ReplaceAll(s, "|", "\\|")
+	s = strings.ReplaceAll(s, "\n", " ")
+	if strings.Contains(s, "`") {
+		return "``" + s + "``"
+	}
+	return "`" + s + "`"
+}
+
+// fmtNum formats a number in a unit as the page shows it.
+func fmtNum(v float64, unit string) string {
+	if math.IsNaN(v) {
+		return "n/a"
+	}
+	if strings.HasPrefix(unit, "dB") {
+		return units.FormatDB(v) + " " + unit
+	}
+	if unit == "" {
+		return units.FormatNum(v)
+	}
+	return units.FormatNum(v) + " " + unit
+}
+
+type sweepResult = engine.SweepResult
+
+// unitOfName parses a unit name the engine reported; a failure gives the plain-number unit.
+func unitOfName(sym string) *units.Unit {
+	u, err := units.ParseUnit(sym)
+	if err != nil {
+		u, _ = units.ParseUnit("")
+	}
+	return u
+}
