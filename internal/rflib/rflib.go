@@ -4,6 +4,12 @@
 // line with its formula and the published source it follows, and computes with the plain
 // float64 models of package rfmath.
 //
+// Ratios that the trade writes in decibels (noise figure, SNR, Eb/N0, loss, return loss) must
+// be given in dB: a bare number there is an error rather than a silent linear ratio. shannon is
+// the exception: its snr may be a ratio in dB or a plain linear ratio. Plain-number arguments
+// (availability, efficiency, overhead, BER) accept "%" (99 % = 0.99). tworay checks the
+// crossover distance only when its optional frequency is given.
+//
 // Adding a function is one entry in the family file it belongs to: its name, arguments,
 // result unit, doc, source and Call; then a sourced test in that family's test file.
 package rflib
