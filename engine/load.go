@@ -478,6 +478,16 @@ func didYouMean(s string, candidates []string, otherwise string) string {
 	if n := units.Nearest(s, candidates); n != "" {
 		return fmt.Sprintf("did you mean %q?", n)
 	}
+	// A key written out in full where the format uses its short form ("tolerance" for "tol").
+	best := ""
+	for _, c := range candidates {
+		if len(c) >= 3 && len(c) > len(best) && strings.HasPrefix(s, c) {
+			best = c
+		}
+	}
+	if best != "" {
+		return fmt.Sprintf("did you mean %q?", best)
+	}
 	return otherwise
 }
 
