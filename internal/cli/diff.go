@@ -88,7 +88,11 @@ func diffMarkdown(oldName, newName string, a, b *engine.Sheet) []byte {
 		if g, ok := a.Quantity(b.Focus); ok {
 			old = g.Display()
 		}
-		fmt.Fprintf(&w, "| focus `%s` | %s | %s%s |\n", f.Name, old, f.Display(), change(a, f))
+		ch := change(a, f)
+		if ch != "" {
+			ch = " (" + ch + ")"
+		}
+		fmt.Fprintf(&w, "| focus `%s` | %s | %s%s |\n", f.Name, old, f.Display(), ch)
 	}
 	reqs := map[string]string{}
 	for _, rq := range a.Requires {
@@ -118,7 +122,7 @@ func diffMarkdown(oldName, newName string, a, b *engine.Sheet) []byte {
 			if old.Formula != q.Formula {
 				how = " (formula changed)"
 			}
-			rows = append(rows, fmt.Sprintf("| `%s` | %s | %s | %s%s |", q.Name, old.Display(), q.Display(), strings.TrimPrefix(change(a, q), " "), how))
+			rows = append(rows, fmt.Sprintf("| `%s` | %s | %s | %s%s |", q.Name, old.Display(), q.Display(), change(a, q), how))
 		}
 	}
 	for _, q := range a.Quantities() {
@@ -159,5 +163,5 @@ func change(a *engine.Sheet, q *engine.Quantity) string {
 	if d.V > 0 {
 		s = "+" + s
 	}
-	return " (" + s + ")"
+	return s
 }

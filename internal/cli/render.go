@@ -23,9 +23,9 @@ type evaluated struct {
 func evaluate(path string, set []engine.Override, fsys fs.FS, ao *engine.AnalysisOptions) *evaluated {
 	sh, diags := engine.Load(path, engine.Options{Library: rflib.Library(), Set: set, FS: fsys})
 	ev := &evaluated{sheet: sh}
-	if !diags.HasErrors() {
-		diags = append(diags, sh.Eval()...)
-	}
+	// Evaluate even when loading found errors: failed quantities are skipped, and the
+	// user sees every error in the file at once, run-time ones included.
+	diags = append(diags, sh.Eval()...)
 	if !diags.HasErrors() && ao != nil {
 		a, ds := sh.Analyze(*ao)
 		ev.analysis = a

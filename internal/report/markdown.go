@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"math"
+	"path/filepath"
 	"strings"
 
 	"rfledger/engine"
@@ -117,9 +118,9 @@ func solveSentence(sh *engine.Sheet, r engine.SolveResult) string {
 		if why == "" {
 			why = "no crossing in range"
 		}
-		return fmt.Sprintf("`%s`: %s does not reach %s for %s between %s and %s: %s.", so.Name, so.SoThat, so.Equals, so.Vary, so.Within[0], so.Within[1], why)
+		return fmt.Sprintf("`%s`: %s does not reach %s for %s between %s and %s: %s.", so.Name, so.SoThat, inUnitOf(sh, so.SoThat, so.Equals), so.Vary, inUnitOf(sh, so.Vary, so.Within[0]), inUnitOf(sh, so.Vary, so.Within[1]), why)
 	}
-	return fmt.Sprintf("`%s`: %s reaches %s at %s = **%s**.", so.Name, so.SoThat, so.Equals, so.Vary, fmtNum(r.Value, r.Unit))
+	return fmt.Sprintf("`%s`: %s reaches %s at %s = **%s**.", so.Name, so.SoThat, inUnitOf(sh, so.SoThat, so.Equals), so.Vary, fmtNum(r.Value, r.Unit))
 }
 
 func tolText(t *engine.Tol) string {
@@ -339,7 +340,7 @@ func (p *page) sweeps() {
 	}
 	p.f("## Sweeps\n\n")
 	for i, sw := range a.Sweeps {
-		p.f("### %s from %s to %s\n\n", mdText(sw.Sweep.Vary), sw.Sweep.From, sw.Sweep.To)
+		p.f("### %s from %s to %s\n\n", mdText(sw.Sweep.Vary), inUnitOf(p.in.Sheet, sw.Sweep.Vary, sw.Sweep.From), inUnitOf(p.in.Sheet, sw.Sweep.Vary, sw.Sweep.To))
 		p.sweepChart(i, sw)
 		for _, c := range sw.Crossings {
 			rq := p.in.Sheet.Requires[c.Require]
@@ -395,7 +396,8 @@ func (p *page) solves() {
 		} else if r.Note != "" {
 			res = cell(r.Note)
 		}
-		p.f("| %s | %s | %s = %s | %s to %s | %s |\n", code(so.Name), code(so.Vary), code(so.SoThat), so.Equals, so.Within[0], so.Within[1], res)
+		sh := p.in.Sheet
+		p.f("| %s | %s | %s = %s | %s to %s | %s |\n", code(so.Name), code(so.Vary), code(so.SoThat), inUnitOf(sh, so.SoThat, so.Equals), inUnitOf(sh, so.Vary, so.Within[0]), inUnitOf(sh, so.Vary, so.Within[1]), res)
 	}
 	p.f("\n")
 }
@@ -442,7 +444,7 @@ func (p *page) cautions() {
 
 func (p *page) footer() {
 	sh := p.in.Sheet
-	p.f("---\n\nRendered by rfledger from `%s` (content hash `%s`", sh.File, sh.Hash)
+	p.f("---\n\nRendered by rfledger from `%s` (content hash `%s`", filepath.Base(sh.File), sh.Hash)
 	if len(sh.Parts) > 0 {
 		p.f(", with parts %s", strings.Join(quoteAll(sh.Parts), ", "))
 	}
@@ -455,4 +457,15 @@ func quoteAll(ss []string) []string {
 		out[i] = "`" + s + "`"
 	}
 	return out
+}
+
+// inUnitOf formats v in the display unit of the named quantity (the unit its input was
+// written in), so a sweep of a rain rate reads "0 mm/h to 60 mm/h", not in m/s.
+func inUnitOf(sh *engine.Sheet, name string, v units.Q) string {
+	if q, ok := sh.Quantity(name); ok {
+		if u := q.DisplayUnit(); u != nil && u.Sym != "" {
+			return v.Format(u)
+		}
+	}
+	return v.String()
 }

@@ -1,0 +1,315 @@
+package cli
+
+import (
+	"bytes"
+	"encoding/json"
+	"flag"
+	"os"
+	"path/filepath"
+	"regexp"
+	"runtime"
+	"strings"
+	"testing"
+
+	"github.com/yuin/goldmark"
+	"github.com/yuin/goldmark/extension"
+)
+
+var update = flag.Bool("update", false, "rewrite the golden pages in worksheets/ from the current output")
+
+// run calls Main and returns the exit code and the two streams.
+func run(t *testing.T, args ...string) (int, string, string) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	code := Main(args, &Env{Stdout: &out, Stderr: &errb})
+	return code, out.String(), errb.String()
+}
+
+func worksheets(t *testing.T) []string {
+	t.Helper()
+	ws, err := filepath.Glob("../../worksheets/*.toml")
+	if err != nil || len(ws) < 3 {
+		t.Fatalf("want the three demo worksheets, found %v (%v)", ws, err)
+	}
+	return ws
+}
+
+// render renders a worksheet into dir and returns the page and the files written beside it.
+func render(t *testing.T, sheet, dir string) ([]byte, map[string][]byte) {
+	t.Helper()
+	name := strings.TrimSuffix(filepath.Base(sheet), ".toml")
+	out := filepath.Join(dir, name+".md")
+	if code, _, stderr := run(t, "render", sheet, "-o", out); code != ExitOK {
+		t.Fatalf("render %s: exit %d\n%s", sheet, code, stderr)
+	}
+	page, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	files := map[string][]byte{}
+	svgs, _ := filepath.Glob(filepath.Join(dir, name+".*.svg"))
+	for _, s := range svgs {
+		b, _ := os.ReadFile(s)
+		files[filepath.Base(s)] = b
+	}
+	return page, files
+}
+
+// TestWorksheetsGolden renders every demo worksheet and compares the page and its charts with
+// the committed ones (go test ./internal/cli -update rewrites them).
+func TestWorksheetsGolden(t *testing.T) {
+	for _, sheet := range worksheets(t) {
+		t.Run(filepath.Base(sheet), func(t *testing.T) {
+			page, files := render(t, sheet, t.TempDir())
+			base := strings.TrimSuffix(sheet, ".toml")
+			if *update {
+				old, _ := filepath.Glob(base + ".*.svg")
+				for _, f := range old {
+					os.Remove(f)
+				}
+				os.WriteFile(base+".md", page, 0o644)
+				for name, b := range files {
+					os.WriteFile(filepath.Join(filepath.Dir(sheet), name), b, 0o644)
+				}
+				return
+			}
+			want, err := os.ReadFile(base + ".md")
+			if err != nil {
+				t.Fatalf("no committed page: %v (run go test ./internal/cli -update)", err)
+			}
+			if !bytes.Equal(page, want) {
+				t.Errorf("%s.md is out of date; run go test ./internal/cli -update and review the diff", base)
+			}
+			committed, _ := filepath.Glob(base + ".*.svg")
+			if len(committed) != len(files) {
+				t.Errorf("committed charts %v, rendered %d", committed, len(files))
+			}
+			for name, b := range files {
+				w, err := os.ReadFile(filepath.Join(filepath.Dir(sheet), name))
+				if err != nil || !bytes.Equal(w, b) {
+					t.Errorf("chart %s is out of date or missing", name)
+				}
+			}
+		})
+	}
+}
+
+// TestPagesRenderAsGFM parses every page with a GFM renderer: each block of table rows must
+// come out as an HTML table, and every image must point to a file written beside the page.
+func TestPagesRenderAsGFM(t *testing.T) {
+	md := goldmark.New(goldmark.WithExtensions(extension.GFM))
+	for _, sheet := range worksheets(t) {
+		dir := t.TempDir()
+		page, files := render(t, sheet, dir)
+		var html bytes.Buffer
+		if err := md.Convert(page, &html); err != nil {
+			t.Fatal(err)
+		}
+		// Count Markdown tables: a header row followed by a delimiter row.
+		delim := regexp.MustCompile(`(?m)^\|( ?-{3,}:? ?\|| ?-{3}:? \|| ---: \|)+\s*$`)
+		tables := len(delim.FindAllIndex(page, -1))
+		got := strings.Count(html.String(), "<table>")
+		if tables == 0 || got != tables {
+			t.Errorf("%s: %d Markdown tables, %d HTML tables", sheet, tables, got)
+		}
+		imgs := regexp.MustCompile(`<img src="([^"]+)"`).FindAllStringSubmatch(html.String(), -1)
+		if len(imgs) == 0 {
+			t.Errorf("%s: no charts linked", sheet)
+		}
+		for _, m := range imgs {
+			if _, ok := files[m[1]]; !ok {
+				t.Errorf("%s: image %s does not exist beside the page", sheet, m[1])
+			}
+		}
+		for _, want := range []string{"<h2>Verdict</h2>", "<h2>Where the budget goes</h2>", "<h2>Sensitivity</h2>", "<h2>Tolerance</h2>", "<h2>Cautions</h2>"} {
+			if !strings.Contains(html.String(), want) {
+				t.Errorf("%s: page lacks %s", sheet, want)
+			}
+		}
+	}
+}
+
+// TestDeterministic renders the same worksheet with 1 and 2 Go processors: the bytes must match.
+func TestDeterministic(t *testing.T) {
+	sheet := "../../worksheets/field-probe-uplink.toml"
+	prev := runtime.GOMAXPROCS(1)
+	a, fa := render(t, sheet, t.TempDir())
+	runtime.GOMAXPROCS(max(2, prev))
+	b, fb := render(t, sheet, t.TempDir())
+	runtime.GOMAXPROCS(prev)
+	if !bytes.Equal(a, b) {
+		t.Error("the page differs between GOMAXPROCS 1 and 2")
+	}
+	for name := range fa {
+		if !bytes.Equal(fa[name], fb[name]) {
+			t.Errorf("chart %s differs between runs", name)
+		}
+	}
+	_, j1, _ := run(t, "render", sheet, "--json")
+	_, j2, _ := run(t, "render", sheet, "--json")
+	if j1 != j2 {
+		t.Error("the JSON differs between runs")
+	}
+}
+
+// TestBrokenSheetWritesNothing: exit 3, errors positioned FILE:LINE:COL, no file written.
+func TestBrokenSheetWritesNothing(t *testing.T) {
+	dir := t.TempDir()
+	sheet := filepath.Join(dir, "bad.toml")
+	os.WriteFile(sheet, []byte("[tx]\npower = \"14 dBm\"\neirp = \"= powr + 2 dB\"\nsum = \"= power + power\"\n"), 0o644)
+	out := filepath.Join(dir, "bad.md")
+	code, _, stderr := run(t, "render", sheet, "-o", out)
+	if code != ExitBadSheet {
+		t.Errorf("exit %d, want %d", code, ExitBadSheet)
+	}
+	if _, err := os.Stat(out); err == nil {
+		t.Error("a broken sheet must not write -o")
+	}
+	for _, want := range []string{sheet + `:3:11: tx.eirp: unknown name "powr"; did you mean "power"?`, sheet + ":4:16: tx.sum: cannot add dBm and dBm"} {
+		if !strings.Contains(stderr, want) {
+			t.Errorf("stderr lacks %q:\n%s", want, stderr)
+		}
+	}
+}
+
+func TestExitCodes(t *testing.T) {
+	dir := t.TempDir()
+	failing := filepath.Join(dir, "f.toml")
+	os.WriteFile(failing, []byte("x = \"3 dB\"\n[[require]]\nthat = \"= x >= 6 dB\"\n"), 0o644)
+	for _, c := range []struct {
+		args []string
+		want int
+	}{
+		{[]string{"check", "../../worksheets/field-probe-uplink.toml"}, ExitOK},
+		{[]string{"check", failing}, ExitFail},
+		{[]string{"render"}, ExitUsage},
+		{[]string{"bogus"}, ExitUsage},
+		{[]string{"render", failing, "--set", "nonsense"}, ExitUsage},
+		{[]string{"render", filepath.Join(dir, "missing.toml")}, ExitBadSheet},
+		{[]string{"render", failing, "--set", "y=1 dB"}, ExitBadSheet},
+		{[]string{"check", failing, "--set", "x=7 dB"}, ExitOK},
+	} {
+		if code, _, stderr := run(t, c.args...); code != c.want {
+			t.Errorf("%v: exit %d, want %d\n%s", c.args, code, c.want, stderr)
+		}
+	}
+}
+
+// TestJSONContract checks the field names SPEC §6 fixes for scripts.
+func TestJSONContract(t *testing.T) {
+	code, out, stderr := run(t, "render", "../../worksheets/field-probe-uplink.toml", "--json", "--trials", "2000")
+	if code != ExitOK {
+		t.Fatal(stderr)
+	}
+	var doc map[string]any
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatal(err)
+	}
+	get := func(v any, path ...any) any {
+		for _, p := range path {
+			switch k := p.(type) {
+			case string:
+				m, _ := v.(map[string]any)
+				v = m[k]
+			case int:
+				a, _ := v.([]any)
+				if k >= len(a) {
+					return nil
+				}
+				v = a[k]
+			}
+		}
+		return v
+	}
+	for _, path := range [][]any{
+		{"format"}, {"title"}, {"focus"},
+		{"quantities", "tx.power", "value"}, {"quantities", "tx.power", "unit"}, {"quantities", "tx.power", "kind"}, {"quantities", "tx.power", "tol"}, {"quantities", "tx.power", "note"},
+		{"quantities", "rx.floor", "formula"},
+		{"requirements", 0, "that"}, {"requirements", 0, "pass"}, {"requirements", 0, "note"},
+		{"chains", "rx.chain", "stages", 1, "stage"}, {"chains", "rx.chain", "stages", 1, "gain_db"}, {"chains", "rx.chain", "stages", 1, "nf_db"},
+		{"chains", "rx.chain", "stages", 1, "cum_gain_db"}, {"chains", "rx.chain", "stages", 1, "cum_nf_db"}, {"chains", "rx.chain", "stages", 1, "cum_iip3_dbm"}, {"chains", "rx.chain", "stages", 1, "noise_share"},
+		{"chains", "rx.chain", "gain_db"}, {"chains", "rx.chain", "nf_db"}, {"chains", "rx.chain", "iip3_dbm"},
+		{"sensitivity", 0, "input"}, {"sensitivity", 0, "per"}, {"sensitivity", 0, "change"}, {"sensitivity", 0, "unit"},
+		{"tolerance", "worst_low"}, {"tolerance", "worst_high"}, {"tolerance", "rss_sigma"}, {"tolerance", "unit"},
+		{"tolerance", "monte_carlo", "trials"}, {"tolerance", "monte_carlo", "seed"}, {"tolerance", "monte_carlo", "p_pass"},
+		{"tolerance", "monte_carlo", "p01"}, {"tolerance", "monte_carlo", "p50"}, {"tolerance", "monte_carlo", "p99"},
+		{"sweeps", 0, "vary"}, {"sweeps", 0, "unit"}, {"sweeps", 0, "points", 0, "x"}, {"sweeps", 0, "points", 0, "link.margin"},
+		{"solves", 0, "name"}, {"solves", 0, "value"}, {"solves", 0, "unit"}, {"solves", 0, "found"},
+		{"warnings"},
+	} {
+		if get(doc, path...) == nil {
+			t.Errorf("JSON lacks %v", path)
+		}
+	}
+	if get(doc, "format") != 1.0 || get(doc, "quantities", "tx.power", "value") != 14.0 || get(doc, "quantities", "tx.power", "unit") != "dBm" {
+		t.Errorf("format/tx.power wrong: %v %v %v", get(doc, "format"), get(doc, "quantities", "tx.power", "value"), get(doc, "quantities", "tx.power", "unit"))
+	}
+	if get(doc, "tolerance", "monte_carlo", "trials") != 2000.0 {
+		t.Errorf("--trials not honoured")
+	}
+}
+
+func TestCHeader(t *testing.T) {
+	code, out, stderr := run(t, "export", "../../worksheets/field-probe-uplink.toml", "--c-header")
+	if code != ExitOK {
+		t.Fatal(stderr)
+	}
+	if !regexp.MustCompile(`(?m)^#define RX_SENSITIVITY_DBM \(-1[0-9][0-9]\.[0-9]+f\)$`).MatchString(out) {
+		t.Errorf("no RX_SENSITIVITY_DBM define:\n%s", out)
+	}
+	if !strings.Contains(out, "#ifndef RFLEDGER_FIELD_PROBE_UPLINK_H") {
+		t.Errorf("no include guard:\n%s", out)
+	}
+}
+
+// TestNewTemplates: every starting worksheet evaluates without an error, and new refuses to overwrite.
+func TestNewTemplates(t *testing.T) {
+	dir := t.TempDir()
+	for _, kind := range []string{"link", "receiver", "satellite"} {
+		f := filepath.Join(dir, kind+".toml")
+		if code, _, stderr := run(t, "new", f, "--kind", kind); code != ExitOK {
+			t.Fatalf("new %s: %s", kind, stderr)
+		}
+		if code, _, stderr := run(t, "render", f); code != ExitOK {
+			t.Errorf("template %s does not evaluate: %s", kind, stderr)
+		}
+		if code, _, _ := run(t, "new", f); code != ExitUsage {
+			t.Errorf("new overwrote %s", f)
+		}
+	}
+	if code, _, _ := run(t, "new", filepath.Join(dir, "x.toml"), "--kind", "nope"); code != ExitUsage {
+		t.Error("unknown kind accepted")
+	}
+}
+
+func TestDiff(t *testing.T) {
+	dir := t.TempDir()
+	a := filepath.Join(dir, "a.toml")
+	b := filepath.Join(dir, "b.toml")
+	os.WriteFile(a, []byte("focus = \"m\"\np = \"10 dBm\"\nm = \"= p - 3 dB\"\n[[require]]\nthat = \"= m >= 5 dBm\"\n"), 0o644)
+	os.WriteFile(b, []byte("focus = \"m\"\np = \"7 dBm\"\nm = \"= p - 3 dB\"\nextra = \"1 m\"\n[[require]]\nthat = \"= m >= 5 dBm\"\n"), 0o644)
+	code, out, stderr := run(t, "diff", a, b)
+	if code != ExitOK {
+		t.Fatal(stderr)
+	}
+	for _, want := range []string{"| focus `m` | 7.00 dBm | 4.00 dBm (-3.00 dB) |", "| `m >= 5 dBm` | PASS | **FAIL** |", "| `p` | 10.00 dBm | 7.00 dBm | -3.00 dB |", "| `extra` | (new) | 1 m | |"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("diff lacks %q:\n%s", want, out)
+		}
+	}
+}
+
+func TestFuncsAndUnits(t *testing.T) {
+	_, out, _ := run(t, "funcs")
+	for _, name := range []string{"fspl(d: length, f: frequency) -> dB", "cascade_nf(chain: chain)", "ebn0_for(", "hata(", "rain(", "cn0("} {
+		if !strings.Contains(out, name) {
+			t.Errorf("funcs lacks %q", name)
+		}
+	}
+	_, out, _ = run(t, "units")
+	for _, s := range []string{"dBm/Hz", "dB/km", "psum", "dBW/K/Hz"} {
+		if !strings.Contains(out, s) {
+			t.Errorf("units lacks %q", s)
+		}
+	}
+}
