@@ -11,6 +11,7 @@ import (
 type keyPos struct {
 	Key, Val, Content Pos
 	Multi             bool
+	Inline            bool // the value is an inline table { ... }
 }
 
 // posIndex maps full key paths ("tx.power", "tx.power.is", "rx.chain[1].gain",
@@ -175,7 +176,7 @@ func (s *tomlScanner) value(path string, kpos Pos) bool {
 		content, multi := s.str()
 		s.add(path, keyPos{Key: kpos, Val: vpos, Content: content, Multi: multi})
 	case '{':
-		s.add(path, keyPos{Key: kpos, Val: vpos})
+		s.add(path, keyPos{Key: kpos, Val: vpos, Inline: true})
 		s.adv()
 		for {
 			s.skipSpace(false)

@@ -224,7 +224,7 @@ func (l *loader) member(f *sheetFile, g *Group, path, key string, v any) {
 	}
 	switch v := v.(type) {
 	case map[string]any:
-		if _, long := v["is"]; long || hasAny(v, quantityKeys[1:]) {
+		if l.longForm(f, path, v) {
 			l.quantity(f, g, path, key, v)
 			return
 		}
@@ -252,6 +252,27 @@ func (l *loader) member(f *sheetFile, g *Group, path, key string, v any) {
 }
 
 var quantityKeys = []string{"is", "tol", "dist", "note", "show", "source", "export"}
+
+// longForm reports whether a table is a quantity's long form rather than a group: it has
+// "is", or it is an inline table with one of the long form's keys, or it has nothing but them.
+// A group may hold quantities named like those keys ([path] with dist = "2 km").
+func (l *loader) longForm(f *sheetFile, path string, m map[string]any) bool {
+	if _, ok := m["is"]; ok {
+		return true
+	}
+	if !hasAny(m, quantityKeys[1:]) {
+		return false
+	}
+	if p, ok := f.ix.get(path); ok && p.Inline {
+		return true
+	}
+	for k := range m {
+		if !contains(quantityKeys, k) {
+			return false
+		}
+	}
+	return true
+}
 
 func hasAny(m map[string]any, keys []string) bool {
 	for _, k := range keys {
