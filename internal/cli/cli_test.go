@@ -313,3 +313,20 @@ func TestFuncsAndUnits(t *testing.T) {
 		}
 	}
 }
+
+// TestReadmeWorksheet keeps the README's example worksheet working.
+func TestReadmeWorksheet(t *testing.T) {
+	readme, err := os.ReadFile("../../README.md")
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := regexp.MustCompile("(?s)```toml\n(.*?)```").FindSubmatch(readme)
+	if m == nil {
+		t.Fatal("README has no toml example")
+	}
+	f := filepath.Join(t.TempDir(), "readme.toml")
+	os.WriteFile(f, m[1], 0o644)
+	if code, out, stderr := run(t, "check", f); code != ExitOK {
+		t.Errorf("README example: exit %d\n%s%s", code, out, stderr)
+	}
+}
