@@ -57,6 +57,15 @@ func (s *state) succeed(md []byte, extras map[string]string) {
 	s.bumpLocked()
 }
 
+// seed sets the report shown before any good render without changing the
+// version.
+func (s *state) seed(md []byte, extras map[string]string) {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	s.md = bytes.Clone(md)
+	s.extras = extras
+}
+
 func (s *state) fail(msg string) {
 	s.mu.Lock()
 	defer s.mu.Unlock()
@@ -106,10 +115,17 @@ func (s *state) extra(name string) (string, bool) {
 	return p, ok
 }
 
-// markdown converts the report. Raw HTML is not passed through (no
-// html.WithUnsafe) and dangerous link schemes are dropped by goldmark.
+// markdown converts the report with the GitHub-flavoured extensions. Raw HTML
+// is not passed through (no html.WithUnsafe) and dangerous link schemes are
+// dropped by goldmark. Table alignment is written as align attributes rather
+// than style attributes, which the page's Content-Security-Policy would block.
 var markdown = goldmark.New(
-	goldmark.WithExtensions(extension.GFM),
+	goldmark.WithExtensions(
+		extension.Linkify,
+		extension.NewTable(extension.WithTableCellAlignMethod(extension.TableCellAlignAttribute)),
+		extension.Strikethrough,
+		extension.TaskList,
+	),
 	goldmark.WithParserOptions(parser.WithAutoHeadingID()),
 )
 
@@ -325,7 +341,7 @@ img{max-width:100%}
 </head>
 <body data-version="{{.Tag}}">
 <div class="live" id="live">live</div>
-{{if .Error}}<div class="err"><strong>The sheet does not evaluate; showing the last good report.</strong><pre>{{.Error}}</pre></div>
+{{if .Error}}<div class="err"><strong>The sheet does not evaluate{{if .Ready}}; showing the last good report{{end}}.</strong><pre>{{.Error}}</pre></div>
 {{end}}{{if .Ready}}<main>
 {{.Body}}</main>{{else}}<p>No report rendered yet.</p>{{end}}
 <script nonce="{{.Nonce}}">

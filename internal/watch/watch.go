@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"net"
+	"os"
 	"path/filepath"
 	"slices"
 	"strings"
@@ -91,7 +92,13 @@ func Run(ctx context.Context, r Render, o Options) error {
 		defer ln.Close()
 	}
 
-	l.recalc()
+	if !l.recalc() {
+		// The sheet is broken from the start; the page shows the report
+		// already on disk (if any) as the last good one.
+		if prev, err := os.ReadFile(out); err == nil {
+			l.st.seed(prev, l.extras())
+		}
+	}
 	if len(l.files) == 0 {
 		if e := l.st.lastErr(); e != "" {
 			return fmt.Errorf("watch: first render failed and reported no files to watch: %s", firstLine(e))
@@ -194,8 +201,9 @@ func (l *loop) relevant(ev fsnotify.Event) bool {
 }
 
 // recalc runs one render, writes the output when it succeeded, reports the
-// outcome and updates the watched file set.
-func (l *loop) recalc() {
+// outcome and updates the watched file set. It reports whether the output
+// was written.
+func (l *loop) recalc() bool {
 	start := time.Now()
 	data, files, err := l.callRender()
 	elapsed := time.Since(start)
@@ -216,15 +224,21 @@ func (l *loop) recalc() {
 		// Keep following what the broken sheet still names, plus what was
 		// followed before, so the fix is noticed wherever it lands.
 		l.setFiles(files, true)
-		return
+		return false
 	}
 	fmt.Fprintf(l.status, "%s rendered %s in %s\n", stamp(), name, fmtMillis(elapsed))
 	l.setFiles(files, false)
-	var extras map[string]string
-	if l.extra != nil {
-		extras = extraFiles(filepath.Dir(l.out), l.extra(filepath.Dir(l.out)))
+	l.st.succeed(data, l.extras())
+	return true
+}
+
+// extras asks Options.Extra for the files to serve beside the output.
+func (l *loop) extras() map[string]string {
+	if l.extra == nil {
+		return nil
 	}
-	l.st.succeed(data, extras)
+	dir := filepath.Dir(l.out)
+	return extraFiles(dir, l.extra(dir))
 }
 
 // callRender calls the user's Render and turns a panic into an error so a bug

@@ -536,6 +536,9 @@ func TestServerPage(t *testing.T) {
 			t.Errorf("page lacks %q", want)
 		}
 	}
+	if !strings.Contains(body, `<td align="right">43.0 dBm</td>`) || strings.Contains(body, "style=") {
+		t.Errorf("table alignment should use align attributes, not style attributes (blocked by the CSP)")
+	}
 	if strings.Contains(body, "<script>alert(1)") || strings.Contains(body, "javascript:alert") {
 		t.Errorf("page passes raw HTML or a script link through:\n%s", body)
 	}
@@ -661,5 +664,31 @@ func TestRunStopsCleanly(t *testing.T) {
 			t.Fatalf("goroutines: %d before, %d after\n%s", base, runtime.NumGoroutine(), buf[:runtime.Stack(buf, true)])
 		}
 		time.Sleep(20 * time.Millisecond)
+	}
+}
+
+// TestServerShowsPreviousReport starts on a broken sheet with a report from
+// an earlier run on disk: the page shows that report under the error.
+func TestServerShowsPreviousReport(t *testing.T) {
+	f := newFixture(t, "BROKEN")
+	writeFile(t, f.out, "| Earlier | Run |\n|---|---|\n| a | b |\n")
+	ready := make(chan string, 1)
+	o := f.opts()
+	o.Serve = "127.0.0.1:0"
+	o.Ready = func(addr string) { ready <- addr }
+	start(t, f.sh.render, o)
+	var addr string
+	select {
+	case addr = <-ready:
+	case <-time.After(3 * time.Second):
+		t.Fatal("Ready was not called")
+	}
+	s := &served{fixture: f, addr: addr, client: &http.Client{Timeout: 3 * time.Second, Transport: &http.Transport{DisableKeepAlives: true}}}
+	_, body := s.get(t, "GET", "/")
+	if !strings.Contains(body, "<td>a</td>") || !strings.Contains(body, "showing the last good report") || !strings.Contains(body, "line 1: broken sheet") {
+		t.Fatalf("page lacks the earlier report or the error:\n%s", body)
+	}
+	if got := readString(t, f.out); !strings.HasPrefix(got, "| Earlier") {
+		t.Fatalf("broken first render touched the output: %q", got)
 	}
 }
