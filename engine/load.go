@@ -66,7 +66,7 @@ func (f *sheetFile) rangeOf(path string) Range {
 		r.Start = p.Key
 		r.End = p.Key
 	} else if i := strings.LastIndexAny(path, ".["); i > 0 {
-		return f.rangeOf(strings.TrimSuffix(path[:i], "]"))
+		return f.rangeOf(path[:i])
 	}
 	return r
 }
@@ -176,6 +176,12 @@ func (l *loader) document(f *sheetFile, doc map[string]any) {
 				l.solves(f, v)
 			}
 		default:
+			if n := units.Nearest(key, topKeys); n != "" {
+				if text, isText := v.(string); isText && !looksLikeQuantity(text) {
+					l.errAt(r, "", fmt.Sprintf("did you mean %q?", n), "unknown key %q", key)
+					continue
+				}
+			}
 			l.member(f, top, key, key, v)
 		}
 	}
@@ -695,6 +701,10 @@ func (l *loader) sweeps(f *sheetFile, v any) {
 		p := fmt.Sprintf("sweep[%d]", i)
 		l.checkKeys(f, p, m, []string{"vary", "from", "to", "steps", "scale", "plot"}, "a sweep's")
 		sw := &Sweep{Range: f.rangeOf(p), Steps: 20}
+		if missing := missingKeys(m, "vary", "from", "to"); len(missing) > 0 {
+			l.errAt(sw.Range, "sweep", "a sweep needs vary, from and to", "missing %s", strings.Join(missing, ", "))
+			continue
+		}
 		sw.Vary, _ = m["vary"].(string)
 		var ok1, ok2 bool
 		sw.From, ok1 = l.qty(f, join(p, "from"), m["from"])
@@ -742,6 +752,10 @@ func (l *loader) solves(f *sheetFile, v any) {
 		p := fmt.Sprintf("solve[%d]", i)
 		l.checkKeys(f, p, m, []string{"name", "vary", "so_that", "equals", "within"}, "a solve's")
 		so := &Solve{Range: f.rangeOf(p)}
+		if missing := missingKeys(m, "name", "vary", "so_that", "equals", "within"); len(missing) > 0 {
+			l.errAt(so.Range, "solve", "a solve needs name, vary, so_that, equals and within", "missing %s", strings.Join(missing, ", "))
+			continue
+		}
 		so.Name, _ = m["name"].(string)
 		so.Vary, _ = m["vary"].(string)
 		so.SoThat, _ = m["so_that"].(string)
@@ -768,4 +782,24 @@ func (l *loader) solves(f *sheetFile, v any) {
 func hashHex(b []byte) string {
 	h := sha256.Sum256(b)
 	return hex.EncodeToString(h[:])[:16]
+}
+
+// missingKeys lists the required keys a table lacks, in the order given.
+func missingKeys(m map[string]any, keys ...string) []string {
+	var out []string
+	for _, k := range keys {
+		if _, ok := m[k]; !ok {
+			out = append(out, k)
+		}
+	}
+	return out
+}
+
+// looksLikeQuantity reports whether a text reads as a formula or a number with a unit.
+func looksLikeQuantity(text string) bool {
+	if strings.HasPrefix(strings.TrimSpace(text), "=") {
+		return true
+	}
+	_, _, err := units.Parse(text)
+	return err == nil
 }
