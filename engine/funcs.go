@@ -136,6 +136,12 @@ func dimWord(d units.Dim) string {
 		return "time"
 	case units.PowerDensity:
 		return "power density"
+	case units.Speed:
+		return "speed or rain rate (mm/h)"
+	case units.Temperature.Pow(-1):
+		return "G/T (per kelvin)"
+	case units.Area:
+		return "area"
 	}
 	return d.String()
 }
@@ -175,7 +181,7 @@ func (a Arg) want() string {
 		return "a ratio in dB"
 	case a.Form == LevelOnly:
 		return dimArticle(a.Dim) + " in dB"
-	case a.Form == LinearOnly && a.Dim.IsNone():
+	case (a.Form == LinearOnly || a.Form == AsLinear) && a.Dim.IsNone():
 		return "a plain number"
 	}
 	return dimArticle(a.Dim)
