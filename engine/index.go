@@ -210,9 +210,13 @@ func (s *tomlScanner) value(path string, kpos Pos) bool {
 			}
 		}
 	default:
+		start := s.i
 		s.add(path, keyPos{Key: kpos, Val: vpos, Content: vpos})
 		for s.i < len(s.src) && !strings.ContainsRune(",]}\n#", rune(s.peek())) {
 			s.adv()
+		}
+		if s.i == start {
+			return false // no value here ("[1, }"): stop rather than loop on the same character
 		}
 	}
 	return true
