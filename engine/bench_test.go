@@ -1,0 +1,88 @@
+package engine_test
+
+import (
+	"math"
+	"testing"
+
+	"rfledger/engine"
+)
+
+const demo = "../worksheets/field-probe-uplink.toml"
+
+func BenchmarkLoadDemo(b *testing.B) {
+	for b.Loop() {
+		if _, diags := engine.Load(demo, engine.Options{Library: lib}); diags.HasErrors() {
+			b.Fatal(diags)
+		}
+	}
+}
+
+func BenchmarkEvalDemo(b *testing.B) {
+	sh, diags := engine.Load(demo, engine.Options{Library: lib})
+	if diags.HasErrors() {
+		b.Fatal(diags)
+	}
+	for b.Loop() {
+		sh.Eval()
+	}
+}
+
+func BenchmarkMonteCarlo10k(b *testing.B) {
+	sh, _ := engine.Load(demo, engine.Options{Library: lib})
+	sh.Eval()
+	for b.Loop() {
+		sh.Analyze(engine.AnalysisOptions{Trials: 10_000, Seed: 1})
+	}
+}
+
+func BenchmarkCompileFormula(b *testing.B) {
+	// One quantity whose formula is a full link budget line: load compiles it once per op.
+	files := map[string]string{"s.toml": `p = "14 dBm"
+g = "2 dBi"
+d = "2.4 km"
+f = "868 MHz"
+bw = "50 kHz"
+m = "= p + g - fspl(d, f) + 5 dBi - 0.22 dB/m * 12 m - (thermal(bw) + 3 dB) - 8 dB"
+`}
+	for b.Loop() {
+		if _, diags := loadFS(files, "s.toml"); diags.HasErrors() {
+			b.Fatal(diags)
+		}
+	}
+}
+
+// handMargin is the demo worksheet's link.margin in plain float64 Go, with each model written
+// out from its published form; it is the baseline for BenchmarkEvalDemo.
+func handMargin() float64 {
+	db := func(x float64) float64 { return 10 * math.Log10(x) }
+	lin := func(x float64) float64 { return math.Pow(10, x/10) }
+	// mismatch loss: Γ = (VSWR−1)/(VSWR+1), L = −10·log10(1 − Γ²)
+	gamma := (1.8 - 1) / (1.8 + 1)
+	match := -db(1 - gamma*gamma)
+	eirp := 14 - match - 0.3 + (-2)
+	// log-distance: free space (ITU-R P.525) to d0, then 10·n·log10(d/d0)
+	loss := fsplDB(100, 868e6) + 10*3.1*math.Log10(2400/100.0) + 6
+	// non-coherent binary FSK: BER = ½·exp(−Eb/N0 / 2)  ⇒  Eb/N0 = −2·ln(2·BER)
+	ebn0 := db(-2 * math.Log(2*1e-4))
+	snr := ebn0 + db(9600/50e3) // SNR = Eb/N0 · Rb/B
+	// Friis over the band filter, LNA and radio
+	g1, g2 := lin(-1.5), lin(16)
+	f := lin(1.5) + (lin(1.2)-1)/g1 + (lin(7)-1)/(g1*g2)
+	floor := ktbDBm(50e3, 290) + db(f)
+	level := eirp - loss + 5 - 0.22*12
+	return level - (floor + snr)
+}
+
+func BenchmarkEvalHandWritten(b *testing.B) {
+	var sink float64
+	for b.Loop() {
+		sink += handMargin()
+	}
+	_ = sink
+}
+
+// The hand-written baseline computes the same number as the worksheet.
+func TestDemoMatchesHandWritten(t *testing.T) {
+	sh := evalFile(t, demo)
+	near(t, "link.margin", value(t, sh, "link.margin", "dB"), handMargin(), 1e-9)
+}
