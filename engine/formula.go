@@ -75,6 +75,7 @@ type formulaCompiler struct {
 	sh    *Sheet
 	lib   *Library
 	funcs conf.FunctionsTable
+	base  *conf.Config
 }
 
 func newFormulaCompiler(sh *Sheet, lib *Library) *formulaCompiler {
@@ -92,19 +93,26 @@ func newFormulaCompiler(sh *Sheet, lib *Library) *formulaCompiler {
 	return fc
 }
 
+// config returns the expr configuration for one formula: a copy of the sheet-wide base (built
+// once; its tables are only read) with the types of the names the formula uses. Building a
+// fresh configuration per formula costs more than compiling the formula itself.
 func (fc *formulaCompiler) config(env map[string]any) *conf.Config {
-	c := conf.CreateNew()
-	c.Functions = fc.funcs
-	c.Builtins = conf.FunctionsTable{}
-	for _, b := range builtin.Builtins {
-		c.Disabled[b.Name] = true
+	if fc.base == nil {
+		c := conf.CreateNew()
+		c.Functions = fc.funcs
+		c.Builtins = conf.FunctionsTable{}
+		for _, b := range builtin.Builtins {
+			c.Disabled[b.Name] = true
+		}
+		c.MaxNodes = maxNodes
+		c.Optimize = false
+		fc.base = c
 	}
-	c.MaxNodes = maxNodes
-	c.Optimize = false
+	c := *fc.base
 	if env != nil {
 		c.WithEnv(env)
 	}
-	return c
+	return &c
 }
 
 // compiled is a formula ready to run.
