@@ -26,7 +26,10 @@ const (
 	maxFileSize   = 64 << 20
 )
 
-var validName = regexp.MustCompile(`^[A-Za-z][A-Za-z0-9_]*$`)
+var (
+	validName = regexp.MustCompile(`^[A-Za-z][A-Za-z0-9_]*$`)
+	dupKey    = regexp.MustCompile(`^Key '(.*)' has already been defined\.$`)
+)
 
 // loader builds a Sheet from a worksheet file and its parts.
 type loader struct {
@@ -124,11 +127,18 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 		var pe toml.ParseError
 		r := Range{File: display}
 		msg := err.Error()
+		hint := "see https://toml.io for the syntax"
 		if errors.As(err, &pe) {
 			r.Start = Pos{pe.Position.Line, max(pe.Position.Col, 1)}
 			msg = "TOML syntax: " + pe.Message
+			if m := dupKey.FindStringSubmatch(pe.Message); m != nil {
+				msg, hint = fmt.Sprintf("%s is defined twice", m[1]), ""
+				if p, ok := f.ix.get(m[1]); ok && p.Key.Line != r.Start.Line {
+					hint = fmt.Sprintf("already defined at %s", Range{File: display, Start: p.Key})
+				}
+			}
 		}
-		l.errAt(r, "", "see https://toml.io for the syntax", "%s", msg)
+		l.errAt(r, "", hint, "%s", msg)
 		return
 	}
 	l.document(f, doc)
