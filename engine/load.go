@@ -361,6 +361,10 @@ func (l *loader) quantityFields(f *sheetFile, q *Quantity, path string, m map[st
 	case string:
 		if rest, isFormula := strings.CutPrefix(strings.TrimSpace(v), "="); isFormula {
 			q.Formula = strings.TrimSpace(rest)
+			if q.Formula == "" {
+				l.errAt(vr, q.Name, "write an expression after \"=\"", "empty formula")
+				ok = false
+			}
 			break
 		}
 		val, u, err := units.Parse(v)
