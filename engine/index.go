@@ -22,6 +22,7 @@ type keyPos struct {
 type posIndex struct {
 	pos   map[string]keyPos
 	order []string
+	first map[string]Pos // where each path prefix first appears, for tables implied by [a.b] or [[a.c]]
 }
 
 func (ix *posIndex) get(path string) (keyPos, bool) {
@@ -38,7 +39,7 @@ type tomlScanner struct {
 }
 
 func indexTOML(src string) *posIndex {
-	s := &tomlScanner{src: src, line: 1, col: 1, ix: &posIndex{pos: map[string]keyPos{}}, arrays: map[string]int{}}
+	s := &tomlScanner{src: src, line: 1, col: 1, ix: &posIndex{pos: map[string]keyPos{}, first: map[string]Pos{}}, arrays: map[string]int{}}
 	defer func() { _ = recover() }() // a scanner bug must never take the loader down
 	s.document()
 	return s.ix
@@ -89,6 +90,13 @@ func (s *tomlScanner) add(path string, kp keyPos) {
 	}
 	s.ix.pos[path] = kp
 	s.ix.order = append(s.ix.order, path)
+	for i := 1; i < len(path); i++ {
+		if path[i] == '.' || path[i] == '[' {
+			if _, seen := s.ix.first[path[:i]]; !seen {
+				s.ix.first[path[:i]] = kp.Key
+			}
+		}
+	}
 }
 
 func (s *tomlScanner) document() {

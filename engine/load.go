@@ -210,6 +210,9 @@ func (l *loader) ordered(f *sheetFile, path string, m map[string]any) []string {
 		if p, ok := f.ix.get(join(path, k) + "[0]"); ok {
 			return p.Key.Line, p.Key.Col
 		}
+		if p, ok := f.ix.first[join(path, k)]; ok { // a table only implied by [k.sub] or [[k.chain]]
+			return p.Line, p.Col
+		}
 		return 1 << 30, 0
 	}
 	sort.Slice(keys, func(i, j int) bool {

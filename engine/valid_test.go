@@ -3,6 +3,7 @@ package engine_test
 import (
 	"math"
 	"path/filepath"
+	"reflect"
 	"testing"
 
 	"rfledger/engine"
@@ -175,5 +176,27 @@ func TestValidParts(t *testing.T) {
 	}
 	if len(sh.Parts) != 2 {
 		t.Errorf("parts: %v", sh.Parts)
+	}
+}
+
+// SPEC §2: groups are sections of the report in file order, also when a table is only implied
+// by [a.b] or [[a.chain]].
+func TestGroupsInFileOrder(t *testing.T) {
+	sh := evalSrc(t, `[[rx.chain]]
+gain = "10 dB"
+[link]
+m = "1 dB"
+[path.fresnel]
+r = "3 m"
+[alpha]
+x = "1 dB"
+`)
+	var names []string
+	for _, g := range sh.Groups {
+		names = append(names, g.Name)
+	}
+	want := []string{"", "rx", "link", "path", "path.fresnel", "alpha"}
+	if !reflect.DeepEqual(names, want) {
+		t.Errorf("groups %q, want %q", names, want)
 	}
 }
