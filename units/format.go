@@ -166,10 +166,13 @@ func engineering(v float64, name string) (float64, string) {
 	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
 		return v, ""
 	}
-	// Round to 4 significant digits first so 999.96 becomes 1 k, not 1000.
-	e := int(math.Floor(math.Log10(math.Abs(v))))
-	r := math.Round(v/math.Pow(10, float64(e-3))) * math.Pow(10, float64(e-3))
-	e = int(math.Floor(math.Log10(math.Abs(r))))
+	// Round to 4 significant digits first so 999.96 becomes 1 k, not 1000. Rounding through
+	// the decimal form stays exact for subnormal values, where 10^(e−3) underflows.
+	r, err := strconv.ParseFloat(strconv.FormatFloat(v, 'e', 3, 64), 64)
+	if err != nil || math.IsInf(r, 0) {
+		r = v
+	}
+	e := int(math.Floor(math.Log10(math.Abs(r))))
 	exp := int(math.Floor(float64(e)/3)) * 3
 	maxExp, minExp := 12, -12
 	switch name {

@@ -10,9 +10,13 @@ import (
 // "10 %" or "1e-4", and returns the quantity and the unit it was written in.
 func Parse(s string) (Q, *Unit, error) {
 	s = strings.TrimSpace(s)
+	orig := s
+	if rest, ok := strings.CutPrefix(s, "\u2212"); ok {
+		s = "-" + rest // U+2212 MINUS SIGN, as datasheets print it
+	}
 	n := numberLen(s)
 	if n == 0 {
-		return Q{}, nil, &Error{Msg: "expected a number with an optional unit, got \"" + clip(s) + "\"", Hint: "write e.g. \"14 dBm\" or \"= formula\"", kind: ErrUnit}
+		return Q{}, nil, &Error{Msg: "expected a number with an optional unit, got \"" + clip(orig) + "\"", Hint: "write e.g. \"14 dBm\" or \"= formula\"", kind: ErrUnit}
 	}
 	v, err := strconv.ParseFloat(s[:n], 64)
 	if err != nil || math.IsInf(v, 0) {
@@ -22,7 +26,11 @@ func Parse(s string) (Q, *Unit, error) {
 	if err != nil {
 		return Q{}, nil, err
 	}
-	return u.Of(v), u, nil
+	q := u.Of(v)
+	if math.IsInf(q.V, 0) || math.IsNaN(q.V) {
+		return Q{}, nil, &Error{Msg: "\"" + clip(orig) + "\" is out of range", kind: ErrDomain}
+	}
+	return q, u, nil
 }
 
 // NumberLen returns the length of the decimal number at the start of s (sign, digits, point,

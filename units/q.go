@@ -195,7 +195,11 @@ func levelFlavor(a, b Q, d Dim, sign float64) Flavor {
 // by a plain number; a rate in dB per length times a length is a ratio in dB.
 func Mul(a, b Q) (Q, error) {
 	if a.K == Linear && b.K == Linear {
-		return Q{V: a.V * b.V, D: a.D.Mul(b.D), F: linFlavor(a, b)}, nil
+		d, ok := mulDim(a.D, b.D, 1)
+		if !ok {
+			return Q{}, dimRangeErr("multiply", a, b)
+		}
+		return Q{V: a.V * b.V, D: d, F: linFlavor(a, b)}, nil
 	}
 	if a.K == Linear {
 		a, b = b, a // the non-linear operand first
@@ -227,7 +231,11 @@ func Mul(a, b Q) (Q, error) {
 func Div(a, b Q) (Q, error) {
 	switch {
 	case a.K == Linear && b.K == Linear:
-		return Q{V: a.V / b.V, D: a.D.Div(b.D), F: linFlavor(a, b)}, nil
+		d, ok := mulDim(a.D, b.D, -1)
+		if !ok {
+			return Q{}, dimRangeErr("divide", a, b)
+		}
+		return Q{V: a.V / b.V, D: d, F: linFlavor(a, b)}, nil
 	case a.IsRatio() && b.K == Linear && b.D.IsNone():
 		return Q{V: a.V / b.V, K: Level, F: a.F}, nil
 	case a.IsRatio() && b.K == Linear && b.D == Length:
@@ -262,7 +270,15 @@ func Pow(a, b Q) (Q, error) {
 	if n != b.V || math.Abs(n) > 8 {
 		return Q{}, errf(ErrDimension, "", "cannot raise %s to the power %g (only whole powers up to 8 keep a dimension)", a.UnitName(), b.V)
 	}
-	return Q{V: math.Pow(a.V, n), D: a.D.Pow(int(n))}, nil
+	d, ok := powDim(a.D, int(n))
+	if !ok {
+		return Q{}, errf(ErrDimension, "", "cannot raise %s to the power %g: the dimension would be out of range", a.UnitName(), b.V)
+	}
+	return Q{V: math.Pow(a.V, n), D: d}, nil
+}
+
+func dimRangeErr(op string, a, b Q) error {
+	return errf(ErrDimension, "", "cannot %s %s by %s: the dimension would be out of range", op, a.UnitName(), b.UnitName())
 }
 
 // Neg returns −a. Absolute levels (dBm, dBK) cannot be negated: −14 dBm is not the reciprocal
@@ -333,10 +349,14 @@ func (q Q) Linear() Q {
 }
 
 // ToLevel returns the level of a linear value (10·log10, or 20·log10 for root-power dimensions).
-// Levels come back unchanged. Zero or negative values have no level.
+// Levels come back unchanged. Zero or negative values have no level, and neither have
+// dimensions without a decibel unit (a length).
 func (q Q) ToLevel() (Q, error) {
 	if q.K != Linear {
 		return q, nil
+	}
+	if !hasLevelUnit(q.D) {
+		return Q{}, errf(ErrLevel, "", "%s has no decibel unit", q.D.kindName())
 	}
 	if !(q.V > 0) {
 		return Q{}, errf(ErrDomain, "a level needs a positive linear value", "cannot take the decibel level of %s", q.String())

@@ -6,6 +6,7 @@ import (
 	"strconv"
 	"strings"
 	"sync"
+	"sync/atomic"
 	"unicode/utf8"
 )
 
@@ -49,6 +50,7 @@ var atoms = []atom{
 	{"A", Current, 1, 0, true},
 	{"ohm", Resistance, 1, 0, true},
 	{"Ω", Resistance, 1, 0, true},
+	{"\u2126", Resistance, 1, 0, true}, // OHM SIGN, canonically the same letter as Ω
 	{"K", Temperature, 1, 0, true},
 	{"g", Dim{dimM: 1}, 1e-3, 0, true},
 	{"bit", None, 1, flavorBit, true},
@@ -83,13 +85,18 @@ var levelRefs = []struct {
 }{
 	{"FS", None, 0, 0}, {"-Hz", Frequency, 0, 0}, {"Hz", Frequency, 0, 0},
 	{"uV", Voltage, -120, flavorMicro}, {"µV", Voltage, -120, flavorMicro}, {"μV", Voltage, -120, flavorMicro},
-	{"mV", Voltage, -60, flavorVolt}, {"uA", Current, -120, flavorMicro}, {"µA", Current, -120, flavorMicro},
+	{"mV", Voltage, -60, flavorVolt}, {"uA", Current, -120, flavorMicro}, {"µA", Current, -120, flavorMicro}, {"μA", Current, -120, flavorMicro},
 	{"m", Power, -30, flavorMilli}, {"W", Power, 0, flavorWatt}, {"i", None, 0, flavorIso},
 	{"d", None, 2.15, flavorIso}, {"c", None, 0, 0}, {"K", Temperature, 0, 0}, {"V", Voltage, 0, flavorVolt},
 	{"A", Current, 0, 0}, {"", None, 0, 0},
 }
 
-var unitCache sync.Map // string -> *Unit
+var (
+	unitCache     sync.Map     // string -> *Unit
+	unitCacheSize atomic.Int64 // entries stored, so that a stream of odd units cannot grow it without bound
+)
+
+const maxCachedUnits = 4096
 
 // ParseUnit returns the unit written as s: a linear unit with an optional SI prefix, a compound
 // of them with *, / and ^ (W/m^2, bit/s/Hz), or a decibel unit (dB, dBm, dBm/Hz, dB/km, dBW/K/Hz).
@@ -101,15 +108,21 @@ func ParseUnit(s string) (*Unit, error) {
 	if err != nil {
 		return nil, err
 	}
-	if len(s) <= 32 {
-		unitCache.Store(s, u)
+	if len(s) <= 32 && unitCacheSize.Load() < maxCachedUnits {
+		if _, loaded := unitCache.LoadOrStore(s, u); !loaded {
+			unitCacheSize.Add(1)
+		}
 	}
 	return u, nil
 }
 
 func unknownUnit(s, why string) error {
 	hint := ""
-	if n := Nearest(s, KnownUnits()); n != "" {
+	n := spelledOut[strings.ToLower(s)]
+	if n == "" {
+		n = Nearest(s, KnownUnits())
+	}
+	if n != "" {
 		hint = "did you mean \"" + n + "\"?"
 	}
 	msg := "unknown unit \"" + s + "\""
@@ -117,6 +130,16 @@ func unknownUnit(s, why string) error {
 		msg += ": " + why
 	}
 	return &Error{Msg: msg, Hint: hint, kind: ErrUnit}
+}
+
+// spelledOut maps unit names written out in words to their symbols, for the did-you-mean hint.
+var spelledOut = map[string]string{
+	"meter": "m", "meters": "m", "metre": "m", "metres": "m", "second": "s", "seconds": "s", "sec": "s",
+	"hertz": "Hz", "watt": "W", "watts": "W", "volt": "V", "volts": "V", "amp": "A", "amps": "A",
+	"ampere": "A", "amperes": "A", "ohms": "ohm", "kelvin": "K", "joule": "J", "joules": "J",
+	"bits": "bit", "baud": "Bd", "percent": "%", "degree": "deg", "degrees": "deg", "foot": "ft",
+	"feet": "ft", "mile": "mi", "miles": "mi", "minute": "min", "minutes": "min", "hour": "h",
+	"hours": "h", "hr": "h",
 }
 
 func parseUnit(s string) (*Unit, error) {
@@ -132,6 +155,9 @@ func parseUnit(s string) (*Unit, error) {
 	d, scale, f, err := parseCompound(s, false)
 	if err != nil {
 		return nil, unknownUnit(s, err.Error())
+	}
+	if !finiteScale(scale) {
+		return nil, unknownUnit(s, "its size is out of range")
 	}
 	return &Unit{Sym: s, D: d, Scale: scale, F: f, K: Linear}, nil
 }
@@ -159,7 +185,18 @@ func parseLevelUnit(s string) (*Unit, error) {
 			if err != nil {
 				return nil, unknownUnit(s, err.Error())
 			}
-			den, scale = den.Mul(pd), scale*ps
+			if pd[dimT] > 0 {
+				// dB/s would read as dBHz; the trade means a change per second by it.
+				return nil, unknownUnit(s, "a slash after dB takes a length (dB/km, a rate) or K or Hz (dBm/Hz, dB/K, a density)")
+			}
+			var ok bool
+			if den, ok = mulDim(den, pd, 1); !ok {
+				return nil, unknownUnit(s, "its dimension is out of range")
+			}
+			scale *= ps
+		}
+		if !finiteScale(scale) {
+			return nil, unknownUnit(s, "its size is out of range")
 		}
 		if r.sym == "" && den == Length {
 			// dB/km, dB/100m: a rate, decibels per length.
@@ -179,7 +216,7 @@ func parseLevelUnit(s string) (*Unit, error) {
 	return nil, unknownUnit(s, "")
 }
 
-// parseCompound parses a product/quotient of atoms: "W/m^2", "bit/s/Hz", "100m" (when
+// parseCompound parses a product/quotient of atoms: "W/m^2", "bit/s/Hz", "1/K", "100m" (when
 // numbers are allowed, as in dB/100m). It returns the dimension and the scale to SI.
 func parseCompound(s string, allowNumber bool) (Dim, float64, Flavor, error) {
 	var d Dim
@@ -192,17 +229,25 @@ func parseCompound(s string, allowNumber bool) (Dim, float64, Flavor, error) {
 		if j >= 0 {
 			part = s[:j]
 		}
-		ad, as, af, err := parsePower(part, allowNumber)
-		if err != nil {
-			return Dim{}, 0, 0, err
+		ad, as, af := None, 1.0, Flavor(0)
+		if i > 0 || part != "1" || j < 0 || s[j] != '/' {
+			// "1" stands only as the numerator of a reciprocal, as in 1/K.
+			var err error
+			if ad, as, af, err = parsePower(part, allowNumber); err != nil {
+				return Dim{}, 0, 0, err
+			}
+		}
+		var ok bool
+		if d, ok = mulDim(d, ad, sign); !ok {
+			return Dim{}, 0, 0, errStr("its dimension is out of range")
 		}
 		if sign > 0 {
-			d, scale = d.Mul(ad), scale*as
+			scale *= as
 			if af != 0 {
 				f = af
 			}
 		} else {
-			d, scale = d.Div(ad), scale/as
+			scale /= as
 		}
 		if j < 0 {
 			break
@@ -211,9 +256,10 @@ func parseCompound(s string, allowNumber bool) (Dim, float64, Flavor, error) {
 		if s[j] == '/' {
 			sign = -1
 		}
+		op := s[j : j+1]
 		s = s[j+1:]
 		if s == "" {
-			return Dim{}, 0, 0, errStr("nothing after " + string(part[len(part)-1:]))
+			return Dim{}, 0, 0, errStr("nothing after " + op)
 		}
 	}
 	if d != Frequency {
@@ -221,6 +267,39 @@ func parseCompound(s string, allowNumber bool) (Dim, float64, Flavor, error) {
 	}
 	return d, scale, f, nil
 }
+
+// maxDimExp bounds the exponent of each base unit in a dimension, far beyond anything physical,
+// so that products cannot wrap round the int8 exponents.
+const maxDimExp = 32
+
+// mulDim returns a·b (sign 1) or a/b (sign −1), or false when an exponent leaves ±maxDimExp.
+func mulDim(a, b Dim, sign int) (Dim, bool) {
+	var out Dim
+	for i := range a {
+		e := int(a[i]) + sign*int(b[i])
+		if e < -maxDimExp || e > maxDimExp {
+			return Dim{}, false
+		}
+		out[i] = int8(e)
+	}
+	return out, true
+}
+
+// powDim returns d^n, or false when an exponent leaves ±maxDimExp.
+func powDim(d Dim, n int) (Dim, bool) {
+	var out Dim
+	for i := range d {
+		e := int(d[i]) * n
+		if e < -maxDimExp || e > maxDimExp {
+			return Dim{}, false
+		}
+		out[i] = int8(e)
+	}
+	return out, true
+}
+
+// finiteScale reports whether a unit's size is a usable number.
+func finiteScale(x float64) bool { return x != 0 && !math.IsInf(x, 0) && !math.IsNaN(x) }
 
 type errStr string
 
@@ -234,7 +313,7 @@ func parsePower(s string, allowNumber bool) (Dim, float64, Flavor, error) {
 	exp := 1
 	if base, e, ok := strings.Cut(s, "^"); ok {
 		n, err := strconv.Atoi(e)
-		if err != nil || n == 0 || n < -8 || n > 8 {
+		if err != nil || n == 0 || n < -maxDimExp || n > maxDimExp {
 			return Dim{}, 0, 0, errStr("bad exponent \"" + e + "\"")
 		}
 		s, exp = base, n
@@ -257,7 +336,11 @@ func parsePower(s string, allowNumber bool) (Dim, float64, Flavor, error) {
 	if !ok {
 		return Dim{}, 0, 0, errStr("\"" + s + "\" is not a unit")
 	}
-	return a.d.Pow(exp), math.Pow(factor*pscale*a.scale, float64(exp)), a.f, nil
+	d, ok := powDim(a.d, exp)
+	if !ok {
+		return Dim{}, 0, 0, errStr("its dimension is out of range")
+	}
+	return d, math.Pow(factor*pscale*a.scale, float64(exp)), a.f, nil
 }
 
 func lookupAtom(s string) (atom, float64, bool) {
@@ -355,6 +438,12 @@ func KnownUnits() []string {
 // Nearest returns the candidate closest to word by edit distance when it is close enough to
 // be a likely typo (distance < 3, and less than half the word), or "".
 func Nearest(word string, candidates []string) string {
+	for _, c := range candidates {
+		// A difference in case only is the likeliest slip (mhz for MHz).
+		if c != word && strings.EqualFold(c, word) {
+			return c
+		}
+	}
 	best, bestD := "", 3
 	for _, c := range candidates {
 		if c == word {
