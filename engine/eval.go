@@ -101,8 +101,11 @@ func (l *loader) cycle(path []int, d int, onCycle []bool) {
 	names = append(names, names[0])
 	head := l.sh.nodes[loop[first]]
 	r := Range{File: l.sh.File}
-	if head.q != nil {
+	switch {
+	case head.q != nil:
 		r = head.q.Range
+	case head.chain != nil:
+		r = head.chain.Range
 	}
 	l.errAt(r, head.name, "break the loop: one of these must be an input", "circular definition: %s", strings.Join(names, " -> "))
 	for _, id := range loop {
