@@ -40,7 +40,7 @@ func TestAntennaReferences(t *testing.T) {
 	for _, c := range []struct{ formula, want string }{
 		{"dish_gain(1 m, 12 GHz, 1.2)", "dish_gain: efficiency: must lie above 0 and at most 1"},
 		{"dish_gain(1 GHz, 1 m, 0.6)", "dish_gain: d: got Hz, want a length"},
-		{"aperture(3 dBm, 1 GHz)", "aperture: g: got dBm, want a number"},
+		{"aperture(3 dBm, 1 GHz)", "aperture: g: got dBm, want a plain number"},
 		{"vswr_to_rl(0.5)", "vswr_to_rl: VSWR must be at least 1"},
 		{"vswr_to_rl(1)", "vswr_to_rl: v = 1 is a perfect match"},
 		{"rl_to_vswr(-14 dB)", "rl_to_vswr: rl: return loss is written as a positive number of dB"},

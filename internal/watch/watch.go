@@ -135,6 +135,7 @@ type loop struct {
 	extra    func(dir string) []string
 	fw       *fsnotify.Watcher
 	files    map[string]bool // cleaned absolute names that trigger a recalculation
+	stale    bool            // a followed file changed while the last render ran
 	dirFail  map[string]string
 	st       *state
 }
@@ -145,6 +146,10 @@ func (l *loop) run(ctx context.Context) error {
 	defer timer.Stop()
 	var first time.Time // first event of the pending burst; zero when idle
 	for {
+		if l.stale {
+			l.stale = false
+			timer.Reset(l.debounce)
+		}
 		select {
 		case <-ctx.Done():
 			return nil
@@ -224,12 +229,26 @@ func (l *loop) recalc() bool {
 		// Keep following what the broken sheet still names, plus what was
 		// followed before, so the fix is noticed wherever it lands.
 		l.setFiles(files, true)
+		l.stale = changedSince(files, start)
 		return false
 	}
 	fmt.Fprintf(l.status, "%s rendered %s in %s\n", stamp(), name, fmtMillis(elapsed))
 	l.setFiles(files, false)
 	l.st.succeed(data, l.extras())
+	l.stale = changedSince(files, start)
 	return true
+}
+
+// changedSince reports whether any file was modified at or after t. A save that lands while
+// a render runs, before its folder is watched (the first render, a new part), sends no event
+// the watcher can see; this catches it.
+func changedSince(files []string, t time.Time) bool {
+	for _, f := range files {
+		if st, err := os.Stat(f); err == nil && !st.ModTime().Before(t) {
+			return true
+		}
+	}
+	return false
 }
 
 // extras asks Options.Extra for the files to serve beside the output.
