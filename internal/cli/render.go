@@ -1,6 +1,7 @@
 package cli
 
 import (
+	"flag"
 	"fmt"
 	"io/fs"
 	"path/filepath"
@@ -98,10 +99,7 @@ func cmdRender(e *Env, args []string) int {
 	fs := newFlags(e, "render")
 	out := fs.String("o", "", "write the page to `FILE` (charts go beside it) instead of standard output")
 	asJSON := fs.Bool("json", false, "write the JSON result (format 1) instead of Markdown")
-	trials := fs.Int("trials", engine.DefaultTrials, "Monte Carlo trials")
-	seed := fs.Uint64("seed", 1, "Monte Carlo seed")
-	var set setFlag
-	fs.Var(&set, "set", "replace an input: `name=value` (repeatable)")
+	trials, seed, set := analysisFlags(fs)
 	pos, err := parse(fs, args)
 	if err != nil {
 		return flagErr(err)
@@ -112,7 +110,7 @@ func cmdRender(e *Env, args []string) int {
 	if *trials < 1 || *trials > engine.MaxTrials {
 		return usageErr(e, "render", "--trials must be between 1 and %d", engine.MaxTrials)
 	}
-	over, err := parseSet(set)
+	over, err := parseSet(*set)
 	if err != nil {
 		return usageErr(e, "render", "%v", err)
 	}
@@ -188,4 +186,13 @@ func cmdCheck(e *Env, args []string) int {
 		}
 	}
 	return code
+}
+
+// analysisFlags declares the flags shared by the commands that run the analyses.
+func analysisFlags(fs *flag.FlagSet) (trials *int, seed *uint64, set *setFlag) {
+	trials = fs.Int("trials", engine.DefaultTrials, "Monte Carlo trials")
+	seed = fs.Uint64("seed", 1, "Monte Carlo seed")
+	set = &setFlag{}
+	fs.Var(set, "set", "replace an input: `name=value` (repeatable)")
+	return trials, seed, set
 }

@@ -17,10 +17,7 @@ func cmdWatch(e *Env, args []string) int {
 	fs := newFlags(e, "watch")
 	out := fs.String("o", "", "write the page to `FILE` (required)")
 	serve := fs.String("serve", "", "also serve the page with live refresh on `ADDR` (e.g. :8080, loopback only unless a host is given)")
-	trials := fs.Int("trials", engine.DefaultTrials, "Monte Carlo trials")
-	seed := fs.Uint64("seed", 1, "Monte Carlo seed")
-	var set setFlag
-	fs.Var(&set, "set", "replace an input: `name=value` (repeatable)")
+	trials, seed, set := analysisFlags(fs)
 	pos, err := parse(fs, args)
 	if err != nil {
 		return flagErr(err)
@@ -28,7 +25,7 @@ func cmdWatch(e *Env, args []string) int {
 	if len(pos) != 1 || *out == "" {
 		return usageErr(e, "watch", "want one worksheet and -o FILE")
 	}
-	over, err := parseSet(set)
+	over, err := parseSet(*set)
 	if err != nil {
 		return usageErr(e, "watch", "%v", err)
 	}
@@ -61,7 +58,6 @@ func cmdWatch(e *Env, args []string) int {
 	defer stop()
 	err = watch.Run(ctx, render, watch.Options{
 		Out: *out, Status: e.Stderr, Errors: e.Stderr, Serve: *serve, Title: strings.TrimSuffix(filepath.Base(sheet), ".toml"),
-		Ready: func(addr string) { fmt.Fprintf(e.Stderr, "serving http://%s/ (read-only)\n", addr) },
 		Extra: func(string) []string { return append([]string(nil), charts...) },
 	})
 	if err != nil {

@@ -45,10 +45,7 @@ var modulation = []*engine.Func{
 		Doc:    "Eb/N0 of a signal-to-noise ratio measured in noise bandwidth b at bit rate rate: Eb/N0 = SNR + 10·log10(b/rate).",
 		Source: "Sklar, Digital Communications, 2nd ed., ch. 3 (S/N = (Eb/N0)·(R/W))",
 		Call: func(_ *engine.Call, a []any) (units.Q, error) {
-			if err := needPositive(a, 1, "rate"); err != nil {
-				return units.Q{}, err
-			}
-			if err := needPositive(a, 2, "b"); err != nil {
+			if err := ratesPositive(a); err != nil {
 				return units.Q{}, err
 			}
 			return result(rfmath.EbN0(q(a, 0), q(a, 1), q(a, 2)), uDB, "Eb/N0")
@@ -59,10 +56,7 @@ var modulation = []*engine.Func{
 		Doc:    "Signal-to-noise ratio in noise bandwidth b of a signal at bit rate rate with the given Eb/N0: SNR = Eb/N0 + 10·log10(rate/b).",
 		Source: "Sklar, Digital Communications, 2nd ed., ch. 3 (S/N = (Eb/N0)·(R/W))",
 		Call: func(_ *engine.Call, a []any) (units.Q, error) {
-			if err := needPositive(a, 1, "rate"); err != nil {
-				return units.Q{}, err
-			}
-			if err := needPositive(a, 2, "b"); err != nil {
+			if err := ratesPositive(a); err != nil {
 				return units.Q{}, err
 			}
 			return result(rfmath.SNR(q(a, 0), q(a, 1), q(a, 2)), uDB, "SNR")
@@ -132,4 +126,12 @@ func needPositive(a []any, i int, name string) error {
 		return fmt.Errorf("%s: must be positive (got %s)", name, a[i].(units.Q))
 	}
 	return nil
+}
+
+// ratesPositive checks the rate and bandwidth arguments (1 and 2) of ebn0 and snr.
+func ratesPositive(a []any) error {
+	if err := needPositive(a, 1, "rate"); err != nil {
+		return err
+	}
+	return needPositive(a, 2, "b")
 }
