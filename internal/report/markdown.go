@@ -271,6 +271,7 @@ func (p *page) budget() {
 	p.f("## Where the budget goes\n\n")
 	if len(a.Budget) == 0 {
 		p.f("`%s` is not a sum and difference of decibel terms, so it does not break down into line items; see the sensitivity below.\n\n", a.Focus.Name)
+		p.chainShares()
 		return
 	}
 	abs := 0.0
@@ -284,6 +285,20 @@ func (p *page) budget() {
 	}
 	p.f("| | **total** | **%s %s** | |\n\n", db2(engine.Number(a.Focus, a.Focus.Value)), a.Unit)
 	p.budgetChart()
+	p.chainShares()
+}
+
+// chainShares lists, for each chain, the stages that set its noise figure and intercept.
+func (p *page) chainShares() {
+	var lines []string
+	for _, ci := range p.chains {
+		if ci.err == nil {
+			lines = append(lines, fmt.Sprintf("- `%s`: %s", ci.chain.Name, strings.TrimPrefix(dominantStages(ci), "In this chain ")))
+		}
+	}
+	if len(lines) > 0 {
+		p.f("Inside the chains (shares per stage are in the cascade tables above):\n\n%s\n\n", strings.Join(lines, "\n"))
+	}
 }
 
 func (p *page) sensitivity() {
