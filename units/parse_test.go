@@ -215,6 +215,12 @@ func TestParseRejects(t *testing.T) {
 			t.Errorf("Parse(%q): message %q does not quote the input", s, err)
 		}
 	}
+	// The messages say what is wrong.
+	for s, want := range map[string]string{"": `got ""`, "1 W/": "nothing after /", "1 m^x": `bad exponent "x"`, "1 dBm/": "nothing after /"} {
+		if _, _, err := Parse(s); err == nil || !strings.Contains(err.Error(), want) {
+			t.Errorf("Parse(%q): %v, want a message with %q", s, err, want)
+		}
+	}
 	// The empty unit is the plain number.
 	if u, err := ParseUnit(""); err != nil || u.K != Linear || !u.D.IsNone() || u.Scale != 1 {
 		t.Errorf("ParseUnit(\"\") = %+v, %v; want the plain number", u, err)
