@@ -435,8 +435,9 @@ func KnownUnits() []string {
 	return out
 }
 
-// Nearest returns the candidate closest to word by edit distance when it is close enough to
-// be a likely typo (distance < 3, and less than half the word), or "".
+// Nearest returns the candidate that differs from word in letter case only, else the one
+// closest by edit distance when it is close enough to be a likely typo (distance < 3, and less
+// than half the word), or "".
 func Nearest(word string, candidates []string) string {
 	for _, c := range candidates {
 		// A difference in case only is the likeliest slip (mhz for MHz).
