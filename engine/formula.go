@@ -79,18 +79,35 @@ type formulaCompiler struct {
 }
 
 func newFormulaCompiler(sh *Sheet, lib *Library) *formulaCompiler {
-	fc := &formulaCompiler{sh: sh, lib: lib, funcs: conf.FunctionsTable{}}
-	for name, fn := range operatorFuncs {
-		fc.funcs[name] = fn
+	return &formulaCompiler{sh: sh, lib: lib, funcs: lib.exprFuncs()}
+}
+
+// exprFuncs returns the library's functions and the operators as expr sees them. It is built
+// once per library and only read afterwards, so every sheet loaded with the library shares it.
+func (l *Library) exprFuncs() conf.FunctionsTable {
+	if l == nil {
+		return operatorTable()
 	}
-	for _, f := range lib.Funcs() {
-		ts := make([]reflect.Type, 0, 4)
-		for _, t := range f.exprTypes() {
-			ts = append(ts, reflect.TypeOf(t).Elem())
+	l.once.Do(func() {
+		t := operatorTable()
+		for _, f := range l.Funcs() {
+			ts := make([]reflect.Type, 0, 4)
+			for _, ft := range f.exprTypes() {
+				ts = append(ts, reflect.TypeOf(ft).Elem())
+			}
+			t[f.Name] = &builtin.Function{Name: f.Name, Func: f.invoke, Types: ts}
 		}
-		fc.funcs[f.Name] = &builtin.Function{Name: f.Name, Func: f.invoke, Types: ts}
+		l.table = t
+	})
+	return l.table
+}
+
+func operatorTable() conf.FunctionsTable {
+	t := conf.FunctionsTable{}
+	for name, fn := range operatorFuncs {
+		t[name] = fn
 	}
-	return fc
+	return t
 }
 
 // config returns the expr configuration for one formula: a copy of the sheet-wide base (built

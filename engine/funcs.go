@@ -5,6 +5,9 @@ import (
 	"reflect"
 	"sort"
 	"strings"
+	"sync"
+
+	"github.com/expr-lang/expr/conf"
 
 	"rfledger/units"
 )
@@ -205,6 +208,8 @@ func unitOrNumber(q units.Q) string {
 // Library is a set of built-in functions, looked up by name.
 type Library struct {
 	funcs map[string]*Func
+	once  sync.Once
+	table conf.FunctionsTable // expr's view of funcs, built on first use
 }
 
 // NewLibrary returns a library holding the given functions. A later function with the same
