@@ -105,6 +105,7 @@ func (t *Tol) Limits(nom units.Q) (lo, hi units.Q, err error) {
 			}
 			hi, err = hi.ToLevel()
 		}
+		lo.F, hi.F = nom.F, nom.F // keep the display family (dBW stays dBW)
 		return lo, hi, err
 	}
 	if lo, err = units.Sub(nom, t.Minus); err != nil {

@@ -18,6 +18,10 @@ func (q Q) UnitName() string {
 		return "dB(" + q.D.String() + ")"
 	case Rate:
 		if q.D == Length.Pow(-1) {
+			// Cable losses read in dB/m, path losses (rain, gases) in dB/km.
+			if q.V != 0 && math.Abs(q.V) < 0.1 {
+				return "dB/km"
+			}
 			return "dB/m"
 		}
 		return "dB*" + q.D.String()
@@ -44,7 +48,11 @@ func (q Q) String() string {
 		sym, off, _ := levelSym(q.D, q.F)
 		return joinUnit(FormatDB(q.V-off), sym)
 	case Rate:
-		return joinUnit(FormatDB(q.V), q.UnitName())
+		name := q.UnitName()
+		if name == "dB/km" {
+			return joinUnit(FormatDB(q.V*1000), name)
+		}
+		return joinUnit(FormatDB(q.V), name)
 	}
 	name := q.UnitName()
 	if name == "" {

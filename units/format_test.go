@@ -114,3 +114,23 @@ func TestFormatOddValues(t *testing.T) {
 		}
 	}
 }
+
+// TestRateDisplay: small rates (rain, gases) show per km, cable losses per metre.
+func TestRateDisplay(t *testing.T) {
+	for _, c := range []struct {
+		in, want string
+	}{
+		{"2.75 dB/km", "2.75 dB/km"},
+		{"0.22 dB/m", "0.22 dB/m"},
+		{"3 dB/100m", "30.00 dB/km"},
+		{"0 dB/m", "0.00 dB/m"},
+	} {
+		q, _, err := Parse(c.in)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := q.String(); got != c.want {
+			t.Errorf("%s shows as %q, want %q", c.in, got, c.want)
+		}
+	}
+}

@@ -31,8 +31,8 @@ func TestParse(t *testing.T) {
 		{"50 ohm", Resistance, Linear, 50, "ohm"},
 		{"50 \u03a9", Resistance, Linear, 50, "ohm"}, // Greek capital omega
 		{"50 \u2126", Resistance, Linear, 50, "ohm"}, // ohm sign (canonically the same letter)
-		{"3 dB/100m", Length.Pow(-1), Rate, 0.03, "dB/m"},
-		{"3 dB/km", Length.Pow(-1), Rate, 0.003, "dB/m"},
+		{"3 dB/100m", Length.Pow(-1), Rate, 0.03, "dB/km"},
+		{"3 dB/km", Length.Pow(-1), Rate, 0.003, "dB/km"},
 		// 1 ft = 0.3048 m exactly (international yard and pound agreement, 1959).
 		{"10 dB/ft", Length.Pow(-1), Rate, 10 / 0.3048, "dB/m"},
 		// dBd = dBi − 2.15 dB (SPEC §3; half-wave dipole gain, common practice per IEEE Std 145
