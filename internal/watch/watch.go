@@ -214,6 +214,9 @@ func (l *loop) recalc() bool {
 	elapsed := time.Since(start)
 	name := filepath.Base(l.out)
 	if err == nil {
+		// Follow the files before the output appears: whoever reads the new output and saves
+		// at once must not beat the watch on a folder that is new (a new part).
+		l.setFiles(files, false)
 		if werr := WriteAtomic(l.out, data); werr != nil {
 			err = fmt.Errorf("writing %s: %w", name, werr)
 		}
@@ -229,22 +232,26 @@ func (l *loop) recalc() bool {
 		// Keep following what the broken sheet still names, plus what was
 		// followed before, so the fix is noticed wherever it lands.
 		l.setFiles(files, true)
-		l.stale = changedSince(files, start)
+		l.stale = l.changedSince(files, start)
 		return false
 	}
 	fmt.Fprintf(l.status, "%s rendered %s in %s\n", stamp(), name, fmtMillis(elapsed))
-	l.setFiles(files, false)
 	l.st.succeed(data, l.extras())
-	l.stale = changedSince(files, start)
+	l.stale = l.changedSince(files, start)
 	return true
 }
 
 // changedSince reports whether any file was modified at or after t. A save that lands while
 // a render runs, before its folder is watched (the first render, a new part), sends no event
-// the watcher can see; this catches it.
-func changedSince(files []string, t time.Time) bool {
+// the watcher can see; this catches it. File times come from the kernel's coarse clock, which
+// may run a few milliseconds behind, so the comparison allows for that; a render starts at
+// least one debounce window after the last save it was told of, so the allowance does not
+// re-render for a save that render already read.
+func (l *loop) changedSince(files []string, t time.Time) bool {
+	t = t.Add(-min(30*time.Millisecond, l.debounce/2))
+	future := time.Now().Add(time.Second) // a file stamped in the future must not re-render forever
 	for _, f := range files {
-		if st, err := os.Stat(f); err == nil && !st.ModTime().Before(t) {
+		if st, err := os.Stat(f); err == nil && !st.ModTime().Before(t) && st.ModTime().Before(future) {
 			return true
 		}
 	}
