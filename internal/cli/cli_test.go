@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"flag"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"regexp"
 	"runtime"
@@ -328,5 +329,36 @@ func TestReadmeWorksheet(t *testing.T) {
 	os.WriteFile(f, m[1], 0o644)
 	if code, out, stderr := run(t, "check", f); code != ExitOK {
 		t.Errorf("README example: exit %d\n%s%s", code, out, stderr)
+	}
+}
+
+// TestDiffRev compares a worksheet as committed with the working file.
+func TestDiffRev(t *testing.T) {
+	if _, err := exec.LookPath("git"); err != nil {
+		t.Skip("git not installed")
+	}
+	dir := t.TempDir()
+	git := func(args ...string) {
+		t.Helper()
+		cmd := exec.Command("git", append([]string{"-C", dir, "-c", "user.name=t", "-c", "user.email=t@example.invalid"}, args...)...)
+		if out, err := cmd.CombinedOutput(); err != nil {
+			t.Fatalf("git %v: %v\n%s", args, err, out)
+		}
+	}
+	sheet := filepath.Join(dir, "s.toml")
+	os.WriteFile(sheet, []byte("focus = \"m\"\np = \"10 dBm\"\nm = \"= p - 3 dB\"\n"), 0o644)
+	git("init", "-q")
+	git("add", "s.toml")
+	git("commit", "-q", "-m", "first")
+	os.WriteFile(sheet, []byte("focus = \"m\"\np = \"12 dBm\"\nm = \"= p - 3 dB\"\n"), 0o644)
+	code, out, stderr := run(t, "diff", sheet, "--rev", "HEAD")
+	if code != ExitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if !strings.Contains(out, "| focus `m` | 7.00 dBm | 9.00 dBm (+2.00 dB) |") {
+		t.Errorf("diff --rev:\n%s", out)
+	}
+	if code, _, _ := run(t, "diff", sheet, "--rev", "nosuchrev"); code != ExitBadSheet {
+		t.Errorf("unknown revision: exit %d, want %d", code, ExitBadSheet)
 	}
 }

@@ -279,11 +279,13 @@ func (p *page) budget() {
 		abs += math.Abs(c.Value)
 	}
 	p.f("`%s` = %s is the sum of these terms, largest first (followed through the quantities its formula names):\n\n", a.Focus.Name, a.Focus.Display())
-	p.f("| # | item | contribution | share of the total swing |\n| ---: | --- | ---: | ---: |\n")
+	p.f("| # | item | contribution | running total | share of the total swing |\n| ---: | --- | ---: | ---: | ---: |\n")
+	run := 0.0
 	for i, c := range a.Budget {
-		p.f("| %d | %s | %s %s | %s |\n", i+1, code(c.Item), signed(c.Value), c.Unit, pct(math.Abs(c.Value)/abs))
+		run += c.Value
+		p.f("| %d | %s | %s %s | %s | %s |\n", i+1, code(c.Item), signed(c.Value), c.Unit, db2(run), pct(math.Abs(c.Value)/abs))
 	}
-	p.f("| | **total** | **%s %s** | |\n\n", db2(engine.Number(a.Focus, a.Focus.Value)), a.Unit)
+	p.f("| | **total** | | **%s %s** | |\n\n", db2(engine.Number(a.Focus, a.Focus.Value)), a.Unit)
 	p.budgetChart()
 	p.chainShares()
 }
