@@ -95,15 +95,15 @@ func (s *Sheet) ChainValue(c *Chain) *ChainValue {
 
 func (l *loader) overrides(set []Override) {
 	for _, o := range set {
-		r := Range{File: "--set " + o.Name}
+		r := Range{File: "--set"}
 		id, ok := l.sh.byName[o.Name]
 		if !ok || l.sh.nodes[id].q == nil {
-			l.errAt(r, o.Name, l.sh.suggest(o.Name, scope{}), "no quantity named %q", o.Name)
+			l.errAt(r, o.Name, l.sh.suggest(o.Name, scope{}), "no such quantity")
 			continue
 		}
 		n := l.sh.nodes[id]
 		if n.q.Formula != "" {
-			l.errAt(r, o.Name, "only inputs can be set; it is \"= "+n.q.Formula+"\"", "%s is derived from a formula", o.Name)
+			l.errAt(r, o.Name, "only inputs can be set; it is \"= "+n.q.Formula+"\"", "derived from a formula")
 			continue
 		}
 		v, u, err := units.Parse(o.Value)
@@ -112,7 +112,7 @@ func (l *loader) overrides(set []Override) {
 			continue
 		}
 		if n.ok && (v.D != n.input.D || (v.K == units.Rate) != (n.input.K == units.Rate)) {
-			l.errAt(r, o.Name, "", "%s is %s, not %s", o.Name, n.q.Text, o.Value)
+			l.errAt(r, o.Name, "", "is %s; %s is not of the same kind", n.q.Text, o.Value)
 			continue
 		}
 		n.q.Text, n.q.Unit, n.q.Value, n.q.Known = strings.TrimSpace(o.Value), u, v, true
