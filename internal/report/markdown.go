@@ -313,7 +313,7 @@ func (p *page) sensitivity() {
 	p.f("Change of `%s` when one input rises by 1 dB (decibel inputs) or 10 %% (linear inputs), every other input at its nominal value; largest first:\n\n", a.Focus.Name)
 	p.f("| input | step | change of %s |\n| --- | ---: | ---: |\n", mdText(a.Focus.Name))
 	for _, s := range a.Sensitivity {
-		p.f("| %s | +%s | %s %s |\n", code(s.Input), s.Per, signed(s.Change), a.ChangeUnit)
+		p.f("| %s | +%s | %s %s |\n", p.inputName(s.Input), s.Per, signed(s.Change), a.ChangeUnit)
 	}
 	p.f("\n")
 }
@@ -330,8 +330,8 @@ func (p *page) tolerance() {
 	p.f("Spread of `%s` from the input tolerances (a normal tolerance is its 3σ limit):\n\n", a.Focus.Name)
 	p.f("| measure | %s |\n| --- | ---: |\n", mdText(a.Focus.Name))
 	p.f("| nominal | %s |\n", fmtNum(t.Nominal, u))
-	p.f("| worst case low (every input at its unfavourable limit) | %s |\n", fmtNum(t.WorstLow, u))
-	p.f("| worst case high | %s |\n", fmtNum(t.WorstHigh, u))
+	p.f("| worst case low (every input at the limit that lowers it) | %s |\n", fmtNum(t.WorstLow, u))
+	p.f("| worst case high (every input at the limit that raises it) | %s |\n", fmtNum(t.WorstHigh, u))
 	p.f("| root-sum-square σ | %s |\n", fmtNum(t.RSSSigma, a.ChangeUnit))
 	p.f("| Monte Carlo 1 %% point | %s |\n", fmtNum(t.P01, u))
 	p.f("| Monte Carlo median | %s |\n", fmtNum(t.P50, u))
@@ -344,7 +344,7 @@ func (p *page) tolerance() {
 	p.f(".\n\n")
 	p.f("| input | share of the variance |\n| --- | ---: |\n")
 	for _, s := range t.Shares {
-		p.f("| %s | %s |\n", code(s.Input), pct(s.Share))
+		p.f("| %s | %s |\n", p.inputName(s.Input), pct(s.Share))
 	}
 	p.f("\n")
 	p.histChart()
@@ -485,4 +485,19 @@ func inUnitOf(sh *engine.Sheet, name string, v units.Q) string {
 		}
 	}
 	return v.String()
+}
+
+// inputName writes an input's name as code, with the stage's label for a chain stage value
+// ("rx.chain[2].loss" (SAW filter)).
+func (p *page) inputName(name string) string {
+	for _, ci := range p.chains {
+		for _, st := range ci.chain.Stages {
+			for _, q := range st.Values {
+				if q.Name == name {
+					return code(name) + " (" + cell(st.Label) + ")"
+				}
+			}
+		}
+	}
+	return code(name)
 }
