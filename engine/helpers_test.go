@@ -3,34 +3,22 @@ package engine_test
 import (
 	"math"
 	"testing"
-	"testing/fstest"
 
 	"rfledger/engine"
-	"rfledger/internal/rflib"
-	"rfledger/units"
+	"rfledger/internal/sheettest"
 )
-
-// lib is the function library every test sheet is loaded with.
-var lib = rflib.Library()
 
 // loadFS loads files (name → text) from an in-memory folder, starting at main.
 func loadFS(files map[string]string, main string, set ...engine.Override) (*engine.Sheet, engine.Diagnostics) {
-	fsys := fstest.MapFS{}
-	for name, text := range files {
-		fsys[name] = &fstest.MapFile{Data: []byte(text)}
-	}
-	return engine.Load(main, engine.Options{Library: lib, FS: fsys, Set: set})
+	return sheettest.Load(files, main, set...)
 }
 
 // evalSrc loads and evaluates a one-file sheet and fails the test on any error.
 func evalSrc(t testing.TB, src string, set ...engine.Override) *engine.Sheet {
 	t.Helper()
-	sh, diags := loadFS(map[string]string{"sheet.toml": src}, "sheet.toml", set...)
+	sh, diags := sheettest.Eval(src, set...)
 	if err := diags.Err(); err != nil {
-		t.Fatalf("load:\n%v", err)
-	}
-	if err := sh.Eval().Err(); err != nil {
-		t.Fatalf("eval:\n%v", err)
+		t.Fatalf("load or eval:\n%v", err)
 	}
 	return sh
 }
@@ -38,22 +26,7 @@ func evalSrc(t testing.TB, src string, set ...engine.Override) *engine.Sheet {
 // value returns a known quantity's value in the unit named (e.g. "dBm", "m", "").
 func value(t testing.TB, sh *engine.Sheet, name, unit string) float64 {
 	t.Helper()
-	q, ok := sh.Quantity(name)
-	if !ok {
-		t.Fatalf("no quantity %q", name)
-	}
-	if !q.Known {
-		t.Fatalf("%s is unknown", name)
-	}
-	u, err := units.ParseUnit(unit)
-	if err != nil {
-		t.Fatalf("unit %q: %v", unit, err)
-	}
-	x, err := q.Value.In(u)
-	if err != nil {
-		t.Fatalf("%s in %s: %v", name, unit, err)
-	}
-	return x
+	return sheettest.Value(t, sh, name, unit)
 }
 
 func near(t testing.TB, what string, got, want, tol float64) {
@@ -75,3 +48,6 @@ func ktbDBm(b, t float64) float64 {
 	const k = 1.380649e-23
 	return 10*math.Log10(k*t*b) + 30
 }
+
+// lib is the function library every test sheet is loaded with.
+var lib = sheettest.Lib

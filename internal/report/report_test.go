@@ -4,24 +4,19 @@ import (
 	"bytes"
 	"strings"
 	"testing"
-	"testing/fstest"
 
 	"github.com/yuin/goldmark"
 	"github.com/yuin/goldmark/extension"
 
 	"rfledger/engine"
-	"rfledger/internal/rflib"
+	"rfledger/internal/sheettest"
 )
 
 func load(t *testing.T, src string) *engine.Sheet {
 	t.Helper()
-	fsys := fstest.MapFS{"s.toml": {Data: []byte(src)}}
-	sh, diags := engine.Load("s.toml", engine.Options{FS: fsys, Library: rflib.Library()})
+	sh, diags := sheettest.Eval(src)
 	if diags.HasErrors() {
 		t.Fatal(diags)
-	}
-	if ds := sh.Eval(); ds.HasErrors() {
-		t.Fatal(ds)
 	}
 	return sh
 }

@@ -5,11 +5,9 @@ import (
 	"math"
 	"strings"
 	"testing"
-	"testing/fstest"
 
 	"rfledger/engine"
-	"rfledger/internal/rflib"
-	"rfledger/units"
+	"rfledger/internal/sheettest"
 )
 
 // ref is one reference check: a formula evaluated by the real engine, read in unit, compared
@@ -25,30 +23,13 @@ type ref struct {
 // load evaluates a worksheet held in memory and returns the sheet and all diagnostics.
 func load(t *testing.T, src string) (*engine.Sheet, engine.Diagnostics) {
 	t.Helper()
-	fsys := fstest.MapFS{"sheet.toml": {Data: []byte(src)}}
-	sh, diags := engine.Load("sheet.toml", engine.Options{FS: fsys, Library: rflib.Library()})
-	return sh, append(diags, sh.Eval()...)
+	return sheettest.Eval(src)
 }
 
 // value reads quantity name of an evaluated sheet in unit u.
 func value(t *testing.T, sh *engine.Sheet, name, u string) float64 {
 	t.Helper()
-	q, ok := sh.Quantity(name)
-	if !ok {
-		t.Fatalf("no quantity %q", name)
-	}
-	if !q.Known {
-		t.Fatalf("%s is unknown", name)
-	}
-	un, err := units.ParseUnit(u)
-	if err != nil {
-		t.Fatal(err)
-	}
-	v, err := q.Value.In(un)
-	if err != nil {
-		t.Fatalf("%s = %s: %v", name, q.Value, err)
-	}
-	return v
+	return sheettest.Value(t, sh, name, u)
 }
 
 // runRefs evaluates every check as one quantity of a single worksheet (with the given

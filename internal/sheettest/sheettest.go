@@ -1,0 +1,54 @@
+// Package sheettest loads worksheets held in memory for the tests of the engine, the function
+// library and the report writers, with rfledger's own function library.
+package sheettest
+
+import (
+	"testing"
+	"testing/fstest"
+
+	"rfledger/engine"
+	"rfledger/internal/rflib"
+	"rfledger/units"
+)
+
+// Lib is the function library every test sheet is loaded with.
+var Lib = rflib.Library()
+
+// Load loads files (name → text) from an in-memory folder, starting at main, and returns the
+// sheet and what loading found (nothing is evaluated yet).
+func Load(files map[string]string, main string, set ...engine.Override) (*engine.Sheet, engine.Diagnostics) {
+	fsys := fstest.MapFS{}
+	for name, text := range files {
+		fsys[name] = &fstest.MapFile{Data: []byte(text)}
+	}
+	return engine.Load(main, engine.Options{Library: Lib, FS: fsys, Set: set})
+}
+
+// Eval loads and evaluates a one-file sheet and returns it with every diagnostic, from
+// loading and from evaluation.
+func Eval(src string, set ...engine.Override) (*engine.Sheet, engine.Diagnostics) {
+	sh, diags := Load(map[string]string{"sheet.toml": src}, "sheet.toml", set...)
+	return sh, append(diags, sh.Eval()...)
+}
+
+// Value returns a known quantity's value in the unit named ("dBm", "m", "" for a plain
+// number), failing the test when there is none.
+func Value(t testing.TB, sh *engine.Sheet, name, unit string) float64 {
+	t.Helper()
+	q, ok := sh.Quantity(name)
+	if !ok {
+		t.Fatalf("no quantity %q", name)
+	}
+	if !q.Known {
+		t.Fatalf("%s is unknown", name)
+	}
+	u, err := units.ParseUnit(unit)
+	if err != nil {
+		t.Fatalf("unit %q: %v", unit, err)
+	}
+	x, err := q.Value.In(u)
+	if err != nil {
+		t.Fatalf("%s = %s in %s: %v", name, q.Value, unit, err)
+	}
+	return x
+}
