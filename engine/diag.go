@@ -86,27 +86,23 @@ func (ds Diagnostics) HasErrors() bool {
 
 // Err returns the errors among the diagnostics as an error, or nil when there are none.
 func (ds Diagnostics) Err() error {
-	var errs Diagnostics
-	for _, d := range ds {
-		if d.Severity == Error {
-			errs = append(errs, d)
-		}
+	if errs := ds.only(Error); len(errs) > 0 {
+		return errs
 	}
-	if len(errs) == 0 {
-		return nil
-	}
-	return errs
+	return nil
 }
 
 // Warnings returns the warnings only.
-func (ds Diagnostics) Warnings() Diagnostics {
-	var ws Diagnostics
+func (ds Diagnostics) Warnings() Diagnostics { return ds.only(Warning) }
+
+func (ds Diagnostics) only(s Severity) Diagnostics {
+	var out Diagnostics
 	for _, d := range ds {
-		if d.Severity == Warning {
-			ws = append(ws, d)
+		if d.Severity == s {
+			out = append(out, d)
 		}
 	}
-	return ws
+	return out
 }
 
 // sortDiags orders diagnostics by file and position and drops exact repeats.
