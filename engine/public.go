@@ -229,8 +229,6 @@ func (l *loader) checkStudies() {
 		case l.sh.nodes[id].q.Formula != "":
 			l.errAt(r, what, "vary an input; this one is derived", "%s is derived from a formula", name)
 			return false
-		case l.sh.nodes[id].ok && (l.sh.nodes[id].input.K == units.Level):
-			return true
 		}
 		return true
 	}
@@ -244,8 +242,9 @@ func (l *loader) checkStudies() {
 			}
 		}
 		if ok {
-			if id := l.sh.byName[sw.Vary]; l.sh.nodes[id].input.D != sw.From.D || sw.From.D != sw.To.D {
-				l.errAt(sw.Range, "sweep", "", "from and to must be in the same dimension as %s (%s)", sw.Vary, l.sh.nodes[id].q.Text)
+			in := l.sh.nodes[l.sh.byName[sw.Vary]].input
+			if in.D != sw.From.D || in.D != sw.To.D || in.K != sw.From.K || in.K != sw.To.K {
+				l.errAt(sw.Range, "sweep", "write from and to in a unit like the input's", "from and to must be of the same kind as %s (%s)", sw.Vary, l.sh.nodes[l.sh.byName[sw.Vary]].q.Text)
 				ok = false
 			}
 		}
