@@ -14,11 +14,13 @@ import (
 
 // BarSpec describes a signed horizontal bar chart, one bar per label, for
 // example the gains (+) and losses (−) of a budget in dB. Unit labels the
-// value axis and follows each value.
+// value axis and follows each value, unless Units (optional, one per bar)
+// names the bar's own unit, as when a budget mixes dBm and dB terms.
 type BarSpec struct {
 	Title, Unit string
 	Labels      []string
 	Values      []float64
+	Units       []string
 }
 
 // Bars writes a horizontal signed bar chart of s as SVG to w. The first
@@ -50,10 +52,10 @@ func Bars(w io.Writer, s BarSpec) error {
 	// Room for the value annotations beyond the bar ends.
 	span := hi - lo
 	if lo < 0 {
-		lo -= 0.16 * span
+		lo -= 0.35 * span
 	}
 	if hi > 0 {
-		hi += 0.16 * span
+		hi += 0.35 * span
 	}
 
 	p := newPlot(s.Title, s.Unit, "")
@@ -68,7 +70,14 @@ func Bars(w io.Writer, s BarSpec) error {
 	p.X.Min, p.X.Max = lo, hi
 
 	p.Add(grid(true, false))
-	p.Add(&signedBars{values: s.Values, unit: s.Unit, text: smallText(p, 9)})
+	units := make([]string, n)
+	for i := range units {
+		units[i] = s.Unit
+		if i < len(s.Units) && s.Units[i] != "" {
+			units[i] = s.Units[i]
+		}
+	}
+	p.Add(&signedBars{values: s.Values, units: units, text: smallText(p, 9)})
 	return render(w, p, Width, max(Height, 2.2*vg.Centimeter+vg.Length(n)*0.5*vg.Centimeter))
 }
 
@@ -76,7 +85,7 @@ func Bars(w io.Writer, s BarSpec) error {
 // value written beyond the bar end, and the zero line.
 type signedBars struct {
 	values []float64
-	unit   string
+	units  []string
 	text   draw.TextStyle
 }
 
@@ -108,7 +117,7 @@ func (b *signedBars) Plot(c draw.Canvas, p *plot.Plot) {
 			}
 			c.FillPolygon(clr, rectLine(r)[:4])
 		}
-		label := formatValue(v, b.unit)
+		label := formatValue(v, b.units[i])
 		if v < 0 {
 			sty.XAlign = draw.XRight
 			c.FillText(sty, vg.Point{X: x1 - gap, Y: trY(y)}, label)

@@ -54,8 +54,9 @@ func (p *page) budgetChart() {
 	a := p.in.Analysis
 	spec := chart.BarSpec{Title: "Where the budget goes: " + a.Focus.Name, Unit: "dB"}
 	for _, c := range a.Budget {
-		spec.Labels = append(spec.Labels, c.Item)
+		spec.Labels = append(spec.Labels, shorten(c.Item, 34))
 		spec.Values = append(spec.Values, c.Value)
+		spec.Units = append(spec.Units, c.Unit)
 	}
 	p.addChart("budget", "contributions to "+a.Focus.Name, func(b *bytes.Buffer) error { return chart.Bars(b, spec) })
 }
@@ -111,4 +112,13 @@ func (p *page) sweepChart(i int, sw sweepResult) {
 		spec.Marks = append(spec.Marks, chart.Point{Label: fmtNum(c.X, sw.Unit), X: c.X, Y: c.Y})
 	}
 	p.addChart("sweep-"+strconv.Itoa(i+1), "sweep of "+sw.Sweep.Vary, func(b *bytes.Buffer) error { return chart.Line(b, spec) })
+}
+
+// shorten keeps a chart label to n characters (the table beside the chart has it in full).
+func shorten(s string, n int) string {
+	r := []rune(s)
+	if len(r) <= n {
+		return s
+	}
+	return string(r[:n-1]) + "…"
 }
