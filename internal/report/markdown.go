@@ -313,7 +313,7 @@ func (p *page) sensitivity() {
 	p.f("Change of `%s` when one input rises by 1 dB (decibel inputs) or 10 %% (linear inputs), every other input at its nominal value; largest first:\n\n", a.Focus.Name)
 	p.f("| input | step | change of %s |\n| --- | ---: | ---: |\n", mdText(a.Focus.Name))
 	for _, s := range a.Sensitivity {
-		p.f("| %s | +%s | %s %s |\n", p.inputName(s.Input), s.Per, signed(s.Change), a.ChangeUnit)
+		p.f("| %s | +%s | %s |\n", p.inputName(s.Input), s.Per, signedIn(s.Change, a.ChangeUnit))
 	}
 	p.f("\n")
 }
@@ -500,4 +500,17 @@ func (p *page) inputName(name string) string {
 		}
 	}
 	return code(name)
+}
+
+// signedIn writes a change with its sign in its unit: decibels with 2 decimals, linear
+// values with 4 significant digits.
+func signedIn(v float64, unit string) string {
+	if strings.HasPrefix(unit, "dB") || math.IsNaN(v) {
+		return strings.TrimSpace(signed(v) + " " + unit)
+	}
+	s := units.FormatNum(v)
+	if v > 0 {
+		s = "+" + s
+	}
+	return strings.TrimSpace(s + " " + unit)
 }
