@@ -464,25 +464,49 @@ func (s *Sheet) tolerance(focus int, opt AnalysisOptions) *Tolerance {
 // independent inputs).
 func varianceShares(f, draws []float64, k int, name func(int) string) []Share {
 	n := len(f)
-	corr2 := make([]float64, k)
-	for i := range k {
-		var sx, sy, sxx, syy, sxy, m float64
-		for t := range n {
-			y := f[t]
-			if math.IsNaN(y) {
-				continue
-			}
-			x := draws[t*k+i]
-			sx, sy, sxx, syy, sxy, m = sx+x, sy+y, sxx+x*x, syy+y*y, sxy+x*y, m+1
-		}
-		if m < 2 {
+	// Two passes (means, then centred sums): the one-pass formula cancels catastrophically
+	// when the focus barely moves.
+	var my float64
+	var m int
+	mx := make([]float64, k)
+	for t := range n {
+		if math.IsNaN(f[t]) {
 			continue
 		}
-		cov := sxy/m - sx/m*sy/m
-		vx := sxx/m - sx/m*sx/m
-		vy := syy/m - sy/m*sy/m
-		if vx > 0 && vy > 0 {
-			corr2[i] = cov * cov / (vx * vy)
+		my += f[t]
+		for i := range k {
+			mx[i] += draws[t*k+i]
+		}
+		m++
+	}
+	corr2 := make([]float64, k)
+	if m >= 2 {
+		my /= float64(m)
+		for i := range k {
+			mx[i] /= float64(m)
+		}
+		var vy float64
+		vx := make([]float64, k)
+		cov := make([]float64, k)
+		for t := range n {
+			if math.IsNaN(f[t]) {
+				continue
+			}
+			dy := f[t] - my
+			vy += dy * dy
+			for i := range k {
+				dx := draws[t*k+i] - mx[i]
+				vx[i] += dx * dx
+				cov[i] += dx * dy
+			}
+		}
+		// A focus that moves by less than rounding noise has no variance to share out.
+		if vy > float64(m)*1e-24*max(1, my*my) {
+			for i := range k {
+				if vx[i] > 0 {
+					corr2[i] = cov[i] * cov[i] / (vx[i] * vy)
+				}
+			}
 		}
 	}
 	total := 0.0

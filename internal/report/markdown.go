@@ -342,11 +342,19 @@ func (p *page) tolerance() {
 		p.f("; %d trials could not be evaluated and count as failing", t.Failed)
 	}
 	p.f(".\n\n")
-	p.f("| input | share of the variance |\n| --- | ---: |\n")
+	moved := false
 	for _, s := range t.Shares {
-		p.f("| %s | %s |\n", p.inputName(s.Input), pct(s.Share))
+		moved = moved || s.Share > 0
 	}
-	p.f("\n")
+	if !moved {
+		p.f("The tolerances given do not move `%s`.\n\n", a.Focus.Name)
+	} else {
+		p.f("| input | share of the variance |\n| --- | ---: |\n")
+		for _, s := range t.Shares {
+			p.f("| %s | %s |\n", p.inputName(s.Input), pct(s.Share))
+		}
+		p.f("\n")
+	}
 	p.histChart()
 }
 
