@@ -281,3 +281,29 @@ func TestBudgetSumsToFocus(t *testing.T) {
 		near(t, "budget item "+item, got, want, 1e-12)
 	}
 }
+
+// TestSharesOfAFocusThatDoesNotMove: an input whose tolerance cannot move the focus (the
+// noise figure of a filter followed by an LNA does not depend on the LNA's gain, Friis 1944)
+// gets no share of a variance that is only rounding noise.
+func TestSharesOfAFocusThatDoesNotMove(t *testing.T) {
+	sh := evalSrc(t, `focus = "rx.nf"
+[rx]
+g  = { is = "18 dB", tol = "0.5 dB" }
+nf = "= cascade_nf(chain)"
+[[rx.chain]]
+loss = "1 dB"
+[[rx.chain]]
+gain = "= g"
+nf = "0.8 dB"
+`)
+	a, diags := sh.Analyze(engine.AnalysisOptions{Trials: 2000, Seed: 1})
+	if diags.HasErrors() {
+		t.Fatal(diags)
+	}
+	for _, s := range a.Tolerance.Shares {
+		if s.Share != 0 {
+			t.Errorf("%s has a %.3g share of a focus that does not move", s.Input, s.Share)
+		}
+	}
+	near(t, "rx.nf", value(t, sh, "rx.nf", "dB"), 1.8, 1e-12) // passive 1 dB (NF = loss at T0) + 0.8 dB, Friis 1944
+}
