@@ -1,4 +1,4 @@
-module rfledger
+module github.com/rfledger/rfledger
 
 go 1.26.8
 

@@ -7,8 +7,8 @@ import (
 	"runtime"
 	"sort"
 
-	"rfledger/engine/numeric"
-	"rfledger/units"
+	"github.com/rfledger/rfledger/engine/numeric"
+	"github.com/rfledger/rfledger/units"
 )
 
 // Limits on analyses.

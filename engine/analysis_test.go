@@ -9,7 +9,7 @@ import (
 
 	"gonum.org/v1/gonum/stat/distuv"
 
-	"rfledger/engine"
+	"github.com/rfledger/rfledger/engine"
 )
 
 func analyze(t *testing.T, src string, opt engine.AnalysisOptions, set ...engine.Override) (*engine.Sheet, *engine.Analysis) {

@@ -6,7 +6,7 @@ import (
 	"strings"
 	"testing"
 
-	"rfledger/engine"
+	"github.com/rfledger/rfledger/engine"
 )
 
 const demo = "../worksheets/field-probe-uplink.toml"

@@ -10,7 +10,7 @@ import (
 	"github.com/expr-lang/expr/compiler"
 	"github.com/expr-lang/expr/parser"
 
-	"rfledger/units"
+	"github.com/rfledger/rfledger/units"
 )
 
 // budget breaks a decibel focus into its signed line items: the focus's formula is followed

@@ -8,7 +8,7 @@ import (
 	"strings"
 	"testing"
 
-	"rfledger/engine"
+	"github.com/rfledger/rfledger/engine"
 )
 
 // Expected errors are written into the broken sheets themselves, as go/parser's tests do:

@@ -7,7 +7,7 @@ import (
 
 	"github.com/expr-lang/expr/vm"
 
-	"rfledger/units"
+	"github.com/rfledger/rfledger/units"
 )
 
 func sortStrings(s []string) { sort.Strings(s) }

@@ -19,7 +19,7 @@ import (
 	"github.com/expr-lang/expr/parser"
 	"github.com/expr-lang/expr/vm"
 
-	"rfledger/units"
+	"github.com/rfledger/rfledger/units"
 )
 
 // Limits on a single formula.

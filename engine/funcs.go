@@ -9,7 +9,7 @@ import (
 
 	"github.com/expr-lang/expr/conf"
 
-	"rfledger/units"
+	"github.com/rfledger/rfledger/units"
 )
 
 // ArgKind is what a function argument is: a quantity, a text (a scheme name), or a chain.

@@ -9,7 +9,7 @@ import (
 	"testing/fstest"
 	"time"
 
-	"rfledger/engine"
+	"github.com/rfledger/rfledger/engine"
 )
 
 // checkRanges fails when an error diagnostic has no file.

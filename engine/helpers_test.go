@@ -4,8 +4,8 @@ import (
 	"math"
 	"testing"
 
-	"rfledger/engine"
-	"rfledger/internal/sheettest"
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/internal/sheettest"
 )
 
 // loadFS loads files (name → text) from an in-memory folder, starting at main.

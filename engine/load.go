@@ -15,7 +15,7 @@ import (
 
 	"github.com/BurntSushi/toml"
 
-	"rfledger/units"
+	"github.com/rfledger/rfledger/units"
 )
 
 // Limits on a worksheet, each with its own error.

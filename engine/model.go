@@ -4,7 +4,7 @@ import (
 	"fmt"
 	"math"
 
-	"rfledger/units"
+	"github.com/rfledger/rfledger/units"
 )
 
 // Sheet is a loaded worksheet: its groups of quantities in file order, its chains,

@@ -5,7 +5,7 @@ import (
 
 	"github.com/expr-lang/expr/builtin"
 
-	"rfledger/units"
+	"github.com/rfledger/rfledger/units"
 )
 
 // operatorFuncs are the unit-checked operators: the rewriter turns every + - * / ^ and

@@ -12,7 +12,7 @@ import (
 	"github.com/expr-lang/expr/ast"
 	"github.com/expr-lang/expr/file"
 
-	"rfledger/units"
+	"github.com/rfledger/rfledger/units"
 )
 
 // Options configure loading.

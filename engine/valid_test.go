@@ -6,7 +6,7 @@ import (
 	"reflect"
 	"testing"
 
-	"rfledger/engine"
+	"github.com/rfledger/rfledger/engine"
 )
 
 func loadValid(t *testing.T, name string) *engine.Sheet {

@@ -5,7 +5,7 @@ package main
 import (
 	"os"
 
-	"rfledger/internal/cli"
+	"github.com/rfledger/rfledger/internal/cli"
 )
 
 func main() {

@@ -9,8 +9,8 @@ import (
 	"strings"
 	"testing/fstest"
 
-	"rfledger/engine"
-	"rfledger/units"
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/units"
 )
 
 func cmdDiff(e *Env, args []string) int {

@@ -3,8 +3,8 @@ package cli
 import (
 	"fmt"
 
-	"rfledger/internal/report"
-	"rfledger/internal/watch"
+	"github.com/rfledger/rfledger/internal/report"
+	"github.com/rfledger/rfledger/internal/watch"
 )
 
 func cmdExport(e *Env, args []string) int {

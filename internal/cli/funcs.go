@@ -4,8 +4,8 @@ import (
 	"fmt"
 	"strings"
 
-	"rfledger/internal/rflib"
-	"rfledger/units"
+	"github.com/rfledger/rfledger/internal/rflib"
+	"github.com/rfledger/rfledger/units"
 )
 
 func cmdFuncs(e *Env, args []string) int {

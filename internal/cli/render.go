@@ -7,10 +7,10 @@ import (
 	"path/filepath"
 	"strings"
 
-	"rfledger/engine"
-	"rfledger/internal/report"
-	"rfledger/internal/rflib"
-	"rfledger/internal/watch"
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/internal/report"
+	"github.com/rfledger/rfledger/internal/rflib"
+	"github.com/rfledger/rfledger/internal/watch"
 )
 
 // evaluated is a loaded, evaluated and analysed worksheet.

@@ -9,8 +9,8 @@ import (
 	"path/filepath"
 	"strings"
 
-	"rfledger/engine"
-	"rfledger/internal/watch"
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/internal/watch"
 )
 
 func cmdWatch(e *Env, args []string) int {

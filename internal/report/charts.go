@@ -5,7 +5,7 @@ import (
 	"fmt"
 	"strconv"
 
-	"rfledger/internal/chart"
+	"github.com/rfledger/rfledger/internal/chart"
 )
 
 // addChart renders a chart into a file beside the page and links it.

@@ -8,7 +8,7 @@ import (
 	"strconv"
 	"strings"
 
-	"rfledger/engine"
+	"github.com/rfledger/rfledger/engine"
 )
 
 var notIdent = regexp.MustCompile(`[^A-Za-z0-9]+`)

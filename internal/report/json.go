@@ -5,7 +5,7 @@ import (
 	"encoding/json"
 	"math"
 
-	"rfledger/engine"
+	"github.com/rfledger/rfledger/engine"
 )
 
 // The JSON contract, "format": 1. Field names are stable: fields may be added, never renamed.

@@ -7,8 +7,8 @@ import (
 	"path/filepath"
 	"strings"
 
-	"rfledger/engine"
-	"rfledger/units"
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/units"
 )
 
 // page accumulates the Markdown and the chart files.

@@ -9,10 +9,10 @@ import (
 	"path"
 	"strings"
 
-	"rfledger/engine"
-	"rfledger/internal/rflib"
-	"rfledger/internal/rfmath"
-	"rfledger/units"
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/internal/rflib"
+	"github.com/rfledger/rfledger/internal/rfmath"
+	"github.com/rfledger/rfledger/units"
 )
 
 // Input is what a report is made from.

@@ -8,8 +8,8 @@ import (
 	"github.com/yuin/goldmark"
 	"github.com/yuin/goldmark/extension"
 
-	"rfledger/engine"
-	"rfledger/internal/sheettest"
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/internal/sheettest"
 )
 
 func load(t *testing.T, src string) *engine.Sheet {

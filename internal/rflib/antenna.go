@@ -4,9 +4,9 @@ import (
 	"fmt"
 	"math"
 
-	"rfledger/engine"
-	"rfledger/internal/rfmath"
-	"rfledger/units"
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/internal/rfmath"
+	"github.com/rfledger/rfledger/units"
 )
 
 var (

@@ -6,8 +6,8 @@ import (
 	"strings"
 	"testing"
 
-	"rfledger/engine"
-	"rfledger/internal/sheettest"
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/internal/sheettest"
 )
 
 // ref is one reference check: a formula evaluated by the real engine, read in unit, compared

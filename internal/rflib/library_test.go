@@ -10,7 +10,7 @@ import (
 	"strings"
 	"testing"
 
-	"rfledger/internal/rflib"
+	"github.com/rfledger/rfledger/internal/rflib"
 )
 
 // calledInTests collects the function names called inside the formula strings of this

@@ -1,9 +1,9 @@
 package rflib
 
 import (
-	"rfledger/engine"
-	"rfledger/internal/rfmath"
-	"rfledger/units"
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/internal/rfmath"
+	"github.com/rfledger/rfledger/units"
 )
 
 var linearity = []*engine.Func{

@@ -4,8 +4,8 @@ import (
 	"fmt"
 	"math"
 
-	"rfledger/engine"
-	"rfledger/units"
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/units"
 )
 
 var mathFuncs = []*engine.Func{

@@ -3,9 +3,9 @@ package rflib
 import (
 	"fmt"
 
-	"rfledger/engine"
-	"rfledger/internal/rfmath"
-	"rfledger/units"
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/internal/rfmath"
+	"github.com/rfledger/rfledger/units"
 )
 
 var (

@@ -5,9 +5,9 @@ import (
 	"math"
 	"strings"
 
-	"rfledger/engine"
-	"rfledger/internal/rfmath"
-	"rfledger/units"
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/internal/rfmath"
+	"github.com/rfledger/rfledger/units"
 )
 
 var uM = unit("m")

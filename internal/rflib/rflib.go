@@ -20,8 +20,8 @@ import (
 	"math"
 	"strings"
 
-	"rfledger/engine"
-	"rfledger/units"
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/units"
 )
 
 // Library returns every built-in function.

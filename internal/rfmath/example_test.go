@@ -3,7 +3,7 @@ package rfmath_test
 import (
 	"fmt"
 
-	"rfledger/internal/rfmath"
+	"github.com/rfledger/rfledger/internal/rfmath"
 )
 
 func ExampleFSPL() {

@@ -6,9 +6,9 @@ import (
 	"testing"
 	"testing/fstest"
 
-	"rfledger/engine"
-	"rfledger/internal/rflib"
-	"rfledger/units"
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/internal/rflib"
+	"github.com/rfledger/rfledger/units"
 )
 
 // Lib is the function library every test sheet is loaded with.
