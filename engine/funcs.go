@@ -51,18 +51,63 @@ const (
 	AsLevel
 )
 
-// Func is a built-in function: its name, arguments, documentation, published source, and the
-// Go code that computes it. Call receives the arguments in declared order (units.Q, string or
-// *ChainValue); an optional argument that was left out is nil; a variadic function's last
-// argument repeats. Call reports out-of-validity inputs with c.Warn and impossible ones as errors.
+// Value is one argument as a function receives it: a quantity already converted to the form
+// its Arg declares, a text, or a chain. Given is false for an optional argument that was left
+// out. When the checker asks a function's Infer rule for its result type, Q carries the
+// argument's dimension, form and display family, and Const says whether Q.V is its value too
+// (a literal such as 3 dB or 2).
+type Value struct {
+	Q     units.Q
+	Text  string
+	Chain *ChainValue
+	Given bool
+	Const bool
+}
+
+// Func is a built-in function: its name, arguments, the unit of its result, documentation,
+// published source, and the Go code that computes it.
+//
+// The result's unit is declared, so that formulas are unit-checked when the sheet loads:
+// Result names a fixed unit ("dB", "dBm", "m", "bit/s"; "1" for a plain number), or, when the
+// result's unit follows from the arguments' (sqrt, min, to), Infer computes it from the
+// arguments' types and ResultDoc describes it for the signature.
+//
+// Call receives the arguments in declared order; a variadic function's last argument repeats.
+// It reports out-of-validity inputs with c.Warn and impossible ones as errors. Its result
+// must have the declared unit's dimension and form.
 type Func struct {
-	Name     string
-	Args     []Arg
-	Variadic bool
-	Result   string // the unit or kind of the result, for the signature
-	Doc      string
-	Source   string
-	Call     func(c *Call, args []any) (units.Q, error)
+	Name      string
+	Args      []Arg
+	Variadic  bool
+	Result    string
+	Infer     func(args []Value) (units.Q, error)
+	ResultDoc string
+	Doc       string
+	Source    string
+	Call      func(c *Call, args []Value) (units.Q, error)
+}
+
+// ResultType returns the type of f's result for arguments of the given types (converted to
+// their declared forms). It fails when the arguments do not fit the rule.
+func (f *Func) ResultType(args []Value) (units.Q, error) {
+	if f.Infer != nil {
+		return f.Infer(args)
+	}
+	return resultUnit(f.Result)
+}
+
+// resultUnit parses a fixed result unit.
+func resultUnit(sym string) (units.Q, error) {
+	if sym == "1" {
+		return units.Num(0), nil
+	}
+	u, err := units.ParseUnit(sym)
+	if err != nil {
+		return units.Q{}, err
+	}
+	q := u.Of(0)
+	q.V = 0
+	return q, nil
 }
 
 // Call is the context of one function call: it collects validity warnings for the quantity
@@ -95,7 +140,12 @@ func (f *Func) Signature() string {
 		parts = append(parts, s)
 	}
 	sig := f.Name + "(" + strings.Join(parts, ", ") + ")"
-	if f.Result != "" {
+	switch {
+	case f.ResultDoc != "":
+		sig += " -> " + f.ResultDoc
+	case f.Result == "1":
+		sig += " -> plain number"
+	case f.Result != "":
 		sig += " -> " + f.Result
 	}
 	return sig
@@ -298,18 +348,24 @@ func (f *Func) exprTypes() []any {
 // invoke is what expr calls: it checks and converts arguments, then calls f.
 func (f *Func) invoke(params ...any) (any, error) {
 	c, _ := params[0].(*Call)
-	args := make([]any, len(f.Args), max(len(f.Args), len(params)-1))
+	args := make([]Value, len(f.Args), max(len(f.Args), len(params)-1))
 	for i := 1; i < len(params); i++ {
 		ai := min(i-1, len(f.Args)-1)
 		a := f.Args[ai]
-		v := params[i]
-		if q, ok := v.(units.Q); ok && a.Kind == ArgQuantity {
-			cq, err := a.check(q)
+		var v Value
+		switch p := params[i].(type) {
+		case units.Q:
+			cq, err := a.check(p)
 			if err != nil {
 				return nil, fmt.Errorf("%s: %w", f.Name, err)
 			}
-			v = cq
+			v.Q = cq
+		case string:
+			v.Text = p
+		case *ChainValue:
+			v.Chain = p
 		}
+		v.Given = true
 		if i-1 < len(args) {
 			args[i-1] = v
 		} else {

@@ -41,8 +41,8 @@ var chains = []*engine.Func{
 func cascadeFunc(name, res, doc, src string, pick func(rfmath.Cascade) (units.Q, error)) *engine.Func {
 	return &engine.Func{
 		Name: name, Args: []engine.Arg{chainArg()}, Result: res, Doc: doc, Source: src,
-		Call: func(c *engine.Call, a []any) (units.Q, error) {
-			cas, notes, err := Cascade(a[0].(*engine.ChainValue))
+		Call: func(c *engine.Call, a []engine.Value) (units.Q, error) {
+			cas, notes, err := Cascade(a[0].Chain)
 			if err != nil {
 				return units.Q{}, err
 			}

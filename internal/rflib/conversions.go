@@ -10,11 +10,11 @@ import (
 
 var conversions = []*engine.Func{
 	{
-		Name: "db", Args: []engine.Arg{anyQ("x")}, Result: "dB (dBK, dBHz, dBm… by dimension)",
+		Name: "db", Args: []engine.Arg{anyQ("x")}, ResultDoc: "dB (dBK, dBHz, dBm… by dimension)", Infer: inferDB,
 		Doc:    "Decibel level of a linear value: 10·log10(x), or 20·log10 for voltage-like quantities; db(2) = 3.01 dB, db(290 K) = 24.62 dBK.",
 		Source: "IEC 60027-3 (logarithmic quantities and units)",
-		Call: func(_ *engine.Call, a []any) (units.Q, error) {
-			x := a[0].(units.Q)
+		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
+			x := a[0].Q
 			if x.K != units.Linear {
 				return units.Q{}, fmt.Errorf("x: already in decibels (%s)", x.UnitName())
 			}
@@ -22,11 +22,11 @@ var conversions = []*engine.Func{
 		},
 	},
 	{
-		Name: "lin", Args: []engine.Arg{anyQ("x")}, Result: "linear value",
+		Name: "lin", Args: []engine.Arg{anyQ("x")}, ResultDoc: "linear value", Infer: inferLin,
 		Doc:    "Linear value of a decibel level: 10^(x/10) (ratio for dB, watts for dBm); lin(3 dB) = 1.995.",
 		Source: "IEC 60027-3 (logarithmic quantities and units)",
-		Call: func(_ *engine.Call, a []any) (units.Q, error) {
-			x := a[0].(units.Q)
+		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
+			x := a[0].Q
 			if x.K != units.Level {
 				return units.Q{}, fmt.Errorf("x: got %s, want a value in decibels", nameOf(x))
 			}
@@ -39,22 +39,22 @@ var conversions = []*engine.Func{
 	convert("dbhz", "b", units.Frequency, uDBHz, "Bandwidth or rate as a level in dBHz: 10·log10(b / 1 Hz)."),
 	convert("dbk", "t", units.Temperature, uDBK, "Temperature as a level in dBK: 10·log10(t / 1 K)."),
 	{
-		Name: "to", Args: []engine.Arg{anyQ("x"), text("unit")}, Result: "x in that unit",
+		Name: "to", Args: []engine.Arg{anyQ("x"), text("unit")}, ResultDoc: "x in that unit", Infer: inferTo,
 		Doc:    "Converts x to another unit of the same dimension, e.g. to(p, 'mW') or to(d, 'km'); between decibel and linear forms too.",
 		Source: "SI Brochure, 9th edition (units and prefixes)",
-		Call: func(_ *engine.Call, a []any) (units.Q, error) {
-			u, err := units.ParseUnit(a[1].(string))
+		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
+			u, err := units.ParseUnit(a[1].Text)
 			if err != nil {
 				return units.Q{}, err
 			}
-			return a[0].(units.Q).As(u)
+			return a[0].Q.As(u)
 		},
 	},
 	{
-		Name: "psum", Args: []engine.Arg{anyQ("p")}, Variadic: true, Result: "level of the sum",
+		Name: "psum", Args: []engine.Arg{anyQ("p")}, Variadic: true, ResultDoc: "level of the sum", Infer: inferPowerSum,
 		Doc:    "Power sum of levels: 10·log10(Σ 10^(pᵢ/10)), e.g. psum(-90 dBm, -90 dBm) = -86.99 dBm. Adds uncorrelated powers (noise plus interference).",
 		Source: "common practice, no source (power addition of uncorrelated signals)",
-		Call: func(_ *engine.Call, a []any) (units.Q, error) {
+		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
 			if len(a) < 2 {
 				return units.Q{}, fmt.Errorf("needs at least two levels")
 			}
@@ -62,10 +62,10 @@ var conversions = []*engine.Func{
 		},
 	},
 	{
-		Name: "pdiff", Args: []engine.Arg{anyQ("a"), anyQ("b")}, Result: "level of the difference",
+		Name: "pdiff", Args: []engine.Arg{anyQ("a"), anyQ("b")}, ResultDoc: "level of the difference", Infer: inferPowerSum,
 		Doc:    "Power difference of levels: 10·log10(10^(a/10) − 10^(b/10)), e.g. the signal left when noise b is removed from a measured a. a must exceed b.",
 		Source: "common practice, no source (power subtraction of uncorrelated signals)",
-		Call: func(_ *engine.Call, a []any) (units.Q, error) {
+		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
 			return sumPowers(a, -1)
 		},
 	},
@@ -75,19 +75,19 @@ func convert(name, arg string, d units.Dim, u *units.Unit, doc string) *engine.F
 	return &engine.Func{
 		Name: name, Args: []engine.Arg{either(arg, d)}, Result: u.Sym, Doc: doc,
 		Source: "IEC 60027-3 (logarithmic quantities and units)",
-		Call: func(_ *engine.Call, a []any) (units.Q, error) {
-			return a[0].(units.Q).As(u)
+		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
+			return a[0].Q.As(u)
 		},
 	}
 }
 
 // sumPowers adds (sign 1) or subtracts (sign −1, two terms) the linear values of levels of one
 // dimension and returns the level of the result in the first term's unit family.
-func sumPowers(a []any, sign float64) (units.Q, error) {
-	first := a[0].(units.Q)
+func sumPowers(a []engine.Value, sign float64) (units.Q, error) {
+	first := a[0].Q
 	total := 0.0
 	for i, x := range a {
-		v := x.(units.Q)
+		v := x.Q
 		if v.D != first.D || v.K == units.Rate {
 			return units.Q{}, fmt.Errorf("term %d is %s, term 1 is %s", i+1, nameOf(v), nameOf(first))
 		}

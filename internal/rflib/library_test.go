@@ -66,6 +66,13 @@ func TestLibraryComplete(t *testing.T) {
 		if f.Call == nil {
 			t.Errorf("%s: no Call", f.Name)
 		}
+		if f.Infer == nil {
+			if _, err := f.ResultType(nil); err != nil {
+				t.Errorf("%s: result unit %q: %v", f.Name, f.Result, err)
+			}
+		} else if f.ResultDoc == "" {
+			t.Errorf("%s: an inferred result needs a ResultDoc for the signature", f.Name)
+		}
 		if !called[f.Name] {
 			t.Errorf("%s: no test calls it", f.Name)
 		}

@@ -10,15 +10,15 @@ import (
 
 var mathFuncs = []*engine.Func{
 	{
-		Name: "sqrt", Args: []engine.Arg{anyQ("x")}, Result: "half the dimension (m^2 → m)",
+		Name: "sqrt", Args: []engine.Arg{anyQ("x")}, ResultDoc: "half the dimension (m^2 → m)", Infer: inferSqrt,
 		Doc: "Square root; the dimension's exponents halve, so sqrt(m^2) is a length.", Source: "ISO 80000-1 (quantities and units)",
-		Call: func(_ *engine.Call, a []any) (units.Q, error) { return units.Sqrt(a[0].(units.Q)) },
+		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) { return units.Sqrt(a[0].Q) },
 	},
 	{
-		Name: "abs", Args: []engine.Arg{anyQ("x")}, Result: "same unit",
+		Name: "abs", Args: []engine.Arg{anyQ("x")}, ResultDoc: "same unit", Infer: inferAbs,
 		Doc: "Absolute value of a linear value, a ratio in dB or a rate.", Source: "ISO 80000-1",
-		Call: func(_ *engine.Call, a []any) (units.Q, error) {
-			x := a[0].(units.Q)
+		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
+			x := a[0].Q
 			if x.K == units.Level && !x.D.IsNone() {
 				return units.Q{}, fmt.Errorf("x: the absolute value of an absolute level (%s) has no meaning", nameOf(x))
 			}
@@ -35,16 +35,16 @@ var mathFuncs = []*engine.Func{
 
 func extreme(name string, want int, doc string) *engine.Func {
 	return &engine.Func{
-		Name: name, Args: []engine.Arg{anyQ("x")}, Variadic: true, Result: "one of the arguments", Doc: doc, Source: "ISO 80000-1",
-		Call: func(_ *engine.Call, a []any) (units.Q, error) {
-			best := a[0].(units.Q)
+		Name: name, Args: []engine.Arg{anyQ("x")}, Variadic: true, ResultDoc: "one of the arguments", Infer: inferExtreme, Doc: doc, Source: "ISO 80000-1",
+		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
+			best := a[0].Q
 			for _, x := range a[1:] {
-				c, err := units.Compare(x.(units.Q), best)
+				c, err := units.Compare(x.Q, best)
 				if err != nil {
 					return units.Q{}, err
 				}
 				if c == want {
-					best = x.(units.Q)
+					best = x.Q
 				}
 			}
 			return best, nil
@@ -54,8 +54,8 @@ func extreme(name string, want int, doc string) *engine.Func {
 
 func plain(name string, f func(float64) float64, doc string) *engine.Func {
 	return &engine.Func{
-		Name: name, Args: []engine.Arg{lin("x", units.None)}, Result: "plain number", Doc: doc, Source: "ISO 80000-2 (mathematics)",
-		Call: func(_ *engine.Call, a []any) (units.Q, error) {
+		Name: name, Args: []engine.Arg{lin("x", units.None)}, Result: "1", Doc: doc, Source: "ISO 80000-2 (mathematics)",
+		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
 			v := f(q(a, 0))
 			if math.IsNaN(v) || math.IsInf(v, 0) {
 				return units.Q{}, fmt.Errorf("x = %s is outside the function's domain", units.FormatNum(q(a, 0)))

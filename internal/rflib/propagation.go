@@ -20,16 +20,16 @@ var (
 
 var propagation = []*engine.Func{
 	{
-		Name: "wavelength", Args: []engine.Arg{lin("f", units.Frequency)}, Result: "length",
+		Name: "wavelength", Args: []engine.Arg{lin("f", units.Frequency)}, Result: "m",
 		Doc: "Free-space wavelength λ = c0 / f.", Source: "ITU-R P.525 (c0 = 299 792 458 m/s, SI definition)",
-		Call: func(_ *engine.Call, a []any) (units.Q, error) {
+		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
 			return result(rfmath.Wavelength(q(a, 0)), uM, "wavelength")
 		},
 	},
 	{
 		Name: "fspl", Args: []engine.Arg{lin("d", units.Length), lin("f", units.Frequency)}, Result: "dB",
 		Doc: "Free-space path loss between isotropic antennas, 20·log10(4π d f / c0) (Friis transmission formula).", Source: "ITU-R P.525-4, eq. (4)",
-		Call: func(c *engine.Call, a []any) (units.Q, error) {
+		Call: func(c *engine.Call, a []engine.Value) (units.Q, error) {
 			d, f := q(a, 0), q(a, 1)
 			if d < 2*rfmath.Wavelength(f) {
 				c.Warn("distance %s is within two wavelengths: the far-field free-space formula does not hold", units.Lin(d, units.Length))
@@ -41,7 +41,7 @@ var propagation = []*engine.Func{
 		Name: "logdist", Args: []engine.Arg{lin("d", units.Length), lin("f", units.Frequency), lin("d0", units.Length), lin("n", units.None)}, Result: "dB",
 		Doc:    "Log-distance path loss: free space out to the reference distance d0, then 10·n·log10(d/d0) with path-loss exponent n (2 free space, about 2.7–3.5 urban, 4–6 obstructed indoor). Warns when d < d0, where the model only extrapolates.",
 		Source: "Rappaport, Wireless Communications: Principles and Practice, log-distance path loss model; free-space anchor ITU-R P.525-4",
-		Call: func(c *engine.Call, a []any) (units.Q, error) {
+		Call: func(c *engine.Call, a []engine.Value) (units.Q, error) {
 			d, f, d0, n := q(a, 0), q(a, 1), q(a, 2), q(a, 3)
 			if d > 0 && d0 > 0 && d < d0 {
 				c.Warn("logdist: distance %s is shorter than the reference distance d0 = %s; the model is anchored at d0 and only extrapolates below it",
@@ -55,7 +55,7 @@ var propagation = []*engine.Func{
 		Doc: "Two-ray ground-reflection path loss, large-distance asymptote 40·log10(d) − 20·log10(ht) − 20·log10(hr) (isotropic antennas, flat perfectly reflecting ground; independent of frequency). " +
 			"With f given, warns when d is shorter than the crossover distance 4π·ht·hr/λ, where the asymptote is optimistic and free space is the better estimate; without f no crossover check is made.",
 		Source: "Rappaport, Wireless Communications: Principles and Practice, two-ray ground reflection model",
-		Call: func(c *engine.Call, a []any) (units.Q, error) {
+		Call: func(c *engine.Call, a []engine.Value) (units.Q, error) {
 			f := math.SmallestNonzeroFloat64 // no frequency: λ → ∞, crossover distance 0, so no check
 			if has(a, 3) {
 				f = q(a, 3)
@@ -74,8 +74,8 @@ var propagation = []*engine.Func{
 			"env 'urban' (small/medium city a(hm)), 'urban-large' (large-city a(hm)), 'suburban' (− 2·(log(f/28))² − 5.4), 'open' (− 4.78·(log f)² + 18.33·log f − 40.94). " +
 			"Valid for 150–1500 MHz, 1–20 km, hb 30–200 m, hm 1–10 m; outside, a warning names the input.",
 		Source: "M. Hata, Empirical formula for propagation loss in land mobile radio services, IEEE Trans. Veh. Technol. VT-29(3), 1980",
-		Call: func(c *engine.Call, a []any) (units.Q, error) {
-			loss, notes, err := rfmath.Hata(q(a, 0), q(a, 1), q(a, 2), q(a, 3), a[4].(string))
+		Call: func(c *engine.Call, a []engine.Value) (units.Q, error) {
+			loss, notes, err := rfmath.Hata(q(a, 0), q(a, 1), q(a, 2), q(a, 3), a[4].Text)
 			if err != nil {
 				return units.Q{}, clean(err)
 			}
@@ -88,8 +88,8 @@ var propagation = []*engine.Func{
 		Doc: "COST 231–Hata median path loss: 46.3 + 33.9·log f − 13.82·log hb − a(hm) + (44.9 − 6.55·log hb)·log d + Cm (f in MHz, d in km, small/medium-city a(hm)), " +
 			"Cm = 0 dB for env 'medium' (medium cities, suburban centres), 3 dB for 'metro' (metropolitan centres). Valid for 1500–2000 MHz, 1–20 km, hb 30–200 m, hm 1–10 m; outside, a warning names the input.",
 		Source: "COST Action 231 final report, Digital mobile radio towards future generation systems (1999), COST 231–Hata model",
-		Call: func(c *engine.Call, a []any) (units.Q, error) {
-			loss, notes, err := rfmath.COST231(q(a, 0), q(a, 1), q(a, 2), q(a, 3), a[4].(string))
+		Call: func(c *engine.Call, a []engine.Value) (units.Q, error) {
+			loss, notes, err := rfmath.COST231(q(a, 0), q(a, 1), q(a, 2), q(a, 3), a[4].Text)
 			if err != nil {
 				return units.Q{}, clean(err)
 			}
@@ -98,10 +98,10 @@ var propagation = []*engine.Func{
 		},
 	},
 	{
-		Name: "fresnel", Args: []engine.Arg{lin("d1", units.Length), lin("d2", units.Length), lin("f", units.Frequency), optional(lin("n", units.None))}, Result: "length",
+		Name: "fresnel", Args: []engine.Arg{lin("d1", units.Length), lin("d2", units.Length), lin("f", units.Frequency), optional(lin("n", units.None))}, Result: "m",
 		Doc:    "Radius of the n-th Fresnel zone (n = 1 by default) at d1 from one end and d2 from the other: sqrt(n·λ·d1·d2/(d1 + d2)). Keep at least 60 % of the first zone clear of obstacles.",
 		Source: "ITU-R P.526 (Fresnel ellipsoids and zones)",
-		Call: func(_ *engine.Call, a []any) (units.Q, error) {
+		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
 			n := 1.0
 			if has(a, 3) {
 				n = q(a, 3)
@@ -117,10 +117,10 @@ var propagation = []*engine.Func{
 		},
 	},
 	{
-		Name: "horizon", Args: []engine.Arg{lin("h", units.Length), optional(lin("k", units.None))}, Result: "length",
+		Name: "horizon", Args: []engine.Arg{lin("h", units.Length), optional(lin("k", units.None))}, Result: "m",
 		Doc:    "Distance to the radio horizon from an antenna at height h over a smooth Earth: sqrt(2·k·R·h), R = 6371 km, effective Earth-radius factor k (4/3 by default, the standard atmosphere). For a link, add both ends' horizons.",
 		Source: "ITU-R P.452 (effective Earth radius a_e = k·6371 km, k = 4/3 median); ITU-R P.834 (effective Earth-radius factor)",
-		Call: func(_ *engine.Call, a []any) (units.Q, error) {
+		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
 			k := 4.0 / 3
 			if has(a, 1) {
 				k = q(a, 1)
@@ -139,12 +139,12 @@ var propagation = []*engine.Func{
 		Doc: "Specific attenuation due to rain, γ = k·R^α dB/km, for rain rate R (mm/h) and polarisation 'h' (horizontal) or 'v' (vertical), with k and α from the frequency regressions. " +
 			"Multiply by an effective path length to get dB. Valid for 1–1000 GHz; outside, a warning.",
 		Source: "ITU-R P.838-3, Specific attenuation model for rain for use in prediction methods (2005), eqs. (1)–(3), Tables 1–4",
-		Call: func(c *engine.Call, a []any) (units.Q, error) {
-			rate, err := a[1].(units.Q).In(uMMh)
+		Call: func(c *engine.Call, a []engine.Value) (units.Q, error) {
+			rate, err := a[1].Q.In(uMMh)
 			if err != nil {
 				return units.Q{}, err
 			}
-			g, notes, err := rfmath.Rain(q(a, 0), rate, a[2].(string))
+			g, notes, err := rfmath.Rain(q(a, 0), rate, a[2].Text)
 			if err != nil {
 				return units.Q{}, clean(err)
 			}
@@ -157,7 +157,7 @@ var propagation = []*engine.Func{
 		Doc: "Fade margin over the mean received power that a Rayleigh-faded signal exceeds with probability availability (0.99 or 99 %): −10·log10(−ln availability); " +
 			"about 20 dB for 99 %, 30 dB for 99.9 %.",
 		Source: "Rayleigh fading: exponentially distributed received power (Sklar, Digital Communications, ch. 15; Proakis, Digital Communications, fading multipath channels)",
-		Call: func(_ *engine.Call, a []any) (units.Q, error) {
+		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
 			m, err := rfmath.RayleighMargin(q(a, 0))
 			if err != nil {
 				return units.Q{}, clean(err)

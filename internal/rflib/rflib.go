@@ -63,10 +63,10 @@ func text(name string) engine.Arg { return engine.Arg{Name: name, Kind: engine.A
 func chainArg() engine.Arg { return engine.Arg{Name: "chain", Kind: engine.ArgChain} }
 
 // q returns argument i as a quantity's number (dB for levels, SI for linear values).
-func q(args []any, i int) float64 { return args[i].(units.Q).V }
+func q(args []engine.Value, i int) float64 { return args[i].Q.V }
 
 // has reports whether optional argument i was given.
-func has(args []any, i int) bool { return i < len(args) && args[i] != nil }
+func has(args []engine.Value, i int) bool { return i < len(args) && args[i].Given }
 
 // unit returns the named unit; the names are constants of this package, so failure is a bug.
 func unit(sym string) *units.Unit {
