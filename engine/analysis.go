@@ -28,6 +28,7 @@ type AnalysisOptions struct {
 // Analysis is what the analyses found about the focus quantity, and the sweeps and solves.
 type Analysis struct {
 	Focus       *Quantity
+	FocusValue  units.Q
 	Unit        string // the unit focus values below are in ("dB", "dBm", "m" …)
 	ChangeUnit  string // the unit of changes of the focus ("dB" for a decibel focus)
 	Sensitivity []Sensitivity
@@ -106,12 +107,11 @@ type SolveResult struct {
 	Note  string // why nothing was found, or what went wrong
 }
 
-// Analyze runs the analyses on the focus quantity, and the sweeps and solves. Call it after
-// Eval. Problems (a solve that failed to evaluate, say) come back as diagnostics.
-func (s *Sheet) Analyze(opt AnalysisOptions) (*Analysis, Diagnostics) {
-	if s.values == nil {
-		s.Eval()
-	}
+// Analyze runs the analyses on the focus quantity of r's sheet, and the sweeps and solves,
+// around the values of r (overrides included). r is not changed. Problems (a solve that
+// failed to evaluate, say) come back as diagnostics.
+func Analyze(r *Result, opt AnalysisOptions) (*Analysis, Diagnostics) {
+	s := r.sh
 	if opt.Trials <= 0 {
 		opt.Trials = DefaultTrials
 	}
@@ -120,42 +120,45 @@ func (s *Sheet) Analyze(opt AnalysisOptions) (*Analysis, Diagnostics) {
 	}
 	a := &Analysis{}
 	var diags Diagnostics
-	if id, ok := s.byName[s.Focus]; ok && s.nodes[id].q != nil && s.nodes[id].q.Known {
+	if id, ok := s.byName[s.Focus]; ok && s.nodes[id].q != nil && r.known[id] {
 		f := s.nodes[id].q
 		a.Focus = f
+		a.FocusValue, _ = r.Value(f)
 		a.Unit = unitName(f)
 		a.ChangeUnit = a.Unit
-		if f.Value.K == units.Level {
+		if a.FocusValue.K == units.Level {
 			a.ChangeUnit = "dB"
 		}
-		a.Sensitivity = s.sensitivity(id)
-		a.Budget = s.budget(id)
+		sc := newScenario(r, id)
+		a.Sensitivity = sc.sensitivity()
+		a.Budget = s.budget(sc.e, id)
 		if opt.Trials > MaxTrials {
 			diags = append(diags, Diagnostic{Severity: Error, Quantity: "trials", Summary: fmt.Sprintf("at most %d Monte Carlo trials", MaxTrials), Range: Range{File: s.File}})
 		} else {
-			a.Tolerance = s.tolerance(id, opt)
+			a.Tolerance = sc.tolerance(opt)
 		}
 	}
 	for _, sw := range s.Sweeps {
-		a.Sweeps = append(a.Sweeps, s.sweep(sw))
+		a.Sweeps = append(a.Sweeps, sweep(r, sw))
 	}
 	for _, so := range s.Solves {
-		r, err := s.solve(so)
+		res, err := solve(r, so)
 		if err != nil {
 			diags = append(diags, Diagnostic{Severity: Warning, Quantity: "solve " + so.Name, Summary: err.Error(), Range: so.Range})
 		}
-		a.Solves = append(a.Solves, r)
+		a.Solves = append(a.Solves, res)
 	}
 	return a, diags
 }
 
 // unitOf returns the unit a quantity's numbers are reported in: its display unit, else the
-// unit its value's algebra gives.
+// unit its type gives.
 func unitOf(q *Quantity) *units.Unit {
 	if u := q.DisplayUnit(); u != nil && u.Sym != "" {
 		return u
 	}
-	u, err := units.ParseUnit(q.Value.UnitName())
+	t, _ := q.Type()
+	u, err := units.ParseUnit(t.UnitName())
 	if err != nil {
 		return nil
 	}
@@ -169,9 +172,12 @@ func unitName(q *Quantity) string {
 	return ""
 }
 
-// Number returns a quantity's value as a number in the unit unitName reports.
+// Number returns a value of quantity q as a number in the unit the report uses for q.
 func Number(q *Quantity, v units.Q) float64 {
-	u := unitOf(q)
+	return numberIn(unitOf(q), v)
+}
+
+func numberIn(u *units.Unit, v units.Q) float64 {
 	if u == nil {
 		return v.V
 	}
@@ -182,135 +188,56 @@ func Number(q *Quantity, v units.Q) float64 {
 	return x
 }
 
-// QuantityNumber returns a quantity's current value as a number and the unit it is in.
-func QuantityNumber(q *Quantity) (float64, string) {
-	return Number(q, q.Value), unitName(q)
+// scenario re-evaluates a sheet around a result with some inputs changed: only the cone of
+// the changed inputs (what depends on them, in evaluation order) is recomputed, and put back
+// from the nominal values afterwards.
+type scenario struct {
+	nom   *Result
+	e     *Result
+	focus int
+	fu    *units.Unit // the focus's report unit
 }
 
-// users returns, for every node, the nodes that read it.
-func (s *Sheet) users() [][]int {
-	if s.userCache != nil {
-		return s.userCache
-	}
-	us := make([][]int, len(s.nodes))
-	for id, n := range s.nodes {
-		for _, d := range n.deps {
-			us[d] = append(us[d], id)
-		}
-	}
-	s.userCache = us
-	return us
+func newScenario(r *Result, focus int) *scenario {
+	return &scenario{nom: r, e: r.clone(), focus: focus, fu: unitOf(r.sh.nodes[focus].q)}
 }
 
-// downstream returns, in evaluation order, the nodes that depend on any of the given ones
-// (excluding them).
-func (s *Sheet) downstream(from []int) []int {
-	us := s.users()
-	mark := make([]bool, len(s.nodes))
-	stack := append([]int(nil), from...)
-	for len(stack) > 0 {
-		id := stack[len(stack)-1]
-		stack = stack[:len(stack)-1]
-		for _, u := range us[id] {
-			if !mark[u] {
-				mark[u] = true
-				stack = append(stack, u)
-			}
-		}
-	}
-	var out []int
-	for _, id := range s.order {
-		if mark[id] {
-			out = append(out, id)
-		}
-	}
-	return out
-}
-
-// upstreamInputs returns the input quantities a node depends on, in file order.
-func (s *Sheet) upstreamInputs(ids ...int) []int {
-	mark := make([]bool, len(s.nodes))
-	stack := append([]int(nil), ids...)
-	for len(stack) > 0 {
-		id := stack[len(stack)-1]
-		stack = stack[:len(stack)-1]
-		if mark[id] {
-			continue
-		}
-		mark[id] = true
-		stack = append(stack, s.nodes[id].deps...)
-	}
-	var out []int
-	for id, n := range s.nodes {
-		if mark[id] && n.q != nil && n.code == nil && n.ok {
-			out = append(out, id)
-		}
-	}
-	return out
-}
-
-// clone copies the nominal evaluation, for a scenario of its own.
-func (s *Sheet) clone() *evaluator {
-	e := s.newEvaluator(true)
-	for k, v := range s.values.env {
-		e.env[k] = v
-	}
-	e.env[ctxName] = &e.call
-	copy(e.failed, s.values.failed)
-	return e
-}
-
-// set replaces the values of some inputs and recomputes the given downstream nodes.
-func (e *evaluator) set(ids []int, vals []units.Q, down []int) {
+// at evaluates the focus with inputs ids set to vals (over cone), then restores the nominal.
+func (sc *scenario) at(ids []int, vals []units.Q, cone []int32) (float64, bool) {
+	e := sc.e
 	for i, id := range ids {
-		e.env[e.sh.nodes[id].env] = vals[i]
-		e.failed[id] = false
+		e.vals[id], e.known[id] = vals[i].V, true
 	}
-	for _, id := range down {
-		_ = e.evalNode(id)
+	e.runCone(cone)
+	x, ok := math.NaN(), e.known[sc.focus]
+	if ok {
+		v := e.sh.nodes[sc.focus].ty
+		v.V = e.vals[sc.focus]
+		x = numberIn(sc.fu, v)
 	}
-}
-
-// value reads a node's value; ok is false when it failed.
-func (e *evaluator) value(id int) (units.Q, bool) {
-	if e.failed[id] {
-		return units.Q{}, false
+	for _, id := range ids {
+		e.vals[id], e.known[id] = sc.nom.vals[id], sc.nom.known[id]
 	}
-	q, ok := e.env[e.sh.nodes[id].env].(units.Q)
-	return q, ok
-}
-
-// requirementsPass reports whether every requirement holds in this scenario.
-func (e *evaluator) requirementsPass() bool {
-	for _, rq := range e.sh.Requires {
-		if rq.prog == nil {
-			return false
-		}
-		for _, d := range rq.prog.deps {
-			if e.failed[d] {
-				return false
-			}
-		}
-		out, err := e.vm.Run(rq.prog.prog, e.env)
-		if err != nil || out != true {
-			return false
-		}
-	}
-	return true
-}
-
-// focusAt evaluates the focus with some inputs replaced, and puts the nominal values back.
-func (s *Sheet) focusAt(e *evaluator, focus int, ids []int, vals []units.Q) (float64, bool) {
-	down := s.downstream(ids)
-	nominal := make([]units.Q, len(ids))
-	for i, id := range ids {
-		nominal[i], _ = e.value(id)
-	}
-	e.set(ids, vals, down)
-	v, ok := e.value(focus)
-	x := Number(s.nodes[focus].q, v)
-	e.set(ids, nominal, down)
+	e.restore(sc.nom, cone)
 	return x, ok && !math.IsNaN(x)
+}
+
+// runCone evaluates the nodes of a cone, quietly.
+func (r *Result) runCone(cone []int32) {
+	r.quiet, r.call.quiet = true, true
+	for _, id := range cone {
+		r.evalNode(int(id))
+	}
+}
+
+// restore copies the nominal values of a cone back.
+func (r *Result) restore(nom *Result, cone []int32) {
+	for _, id := range cone {
+		r.vals[id], r.known[id] = nom.vals[id], nom.known[id]
+		if n := r.sh.nodes[id]; n.chain != nil {
+			copy(r.chains[n.chainIdx].Stages, nom.chains[n.chainIdx].Stages)
+		}
+	}
 }
 
 // step returns an input raised by 1 dB (decibel inputs) or by 10 % (linear inputs).
@@ -323,14 +250,21 @@ func step(q units.Q) (units.Q, string) {
 	return q, "10 %"
 }
 
-func (s *Sheet) sensitivity(focus int) []Sensitivity {
-	e := s.clone()
-	f0 := Number(s.nodes[focus].q, s.nodes[focus].q.Value)
+// inputValue returns an input's value in a result.
+func (r *Result) inputValue(id int) units.Q {
+	v := r.sh.nodes[id].ty
+	v.V = r.vals[id]
+	return v
+}
+
+func (sc *scenario) sensitivity() []Sensitivity {
+	s := sc.nom.sh
+	f0 := numberIn(sc.fu, sc.nom.inputValue(sc.focus))
 	var out []Sensitivity
-	for _, id := range s.upstreamInputs(focus) {
+	for _, id := range s.upstreamInputs(sc.focus) {
 		q := s.nodes[id].q
-		up, per := step(q.Value)
-		v, ok := s.focusAt(e, focus, []int{id}, []units.Q{up})
+		up, per := step(sc.nom.inputValue(id))
+		v, ok := sc.at([]int{id}, []units.Q{up}, s.cone(id))
 		change := v - f0
 		if !ok {
 			change = math.NaN()
@@ -342,11 +276,12 @@ func (s *Sheet) sensitivity(focus int) []Sensitivity {
 }
 
 // tolerance computes worst cases, RSS and the Monte Carlo spread of the focus.
-func (s *Sheet) tolerance(focus int, opt AnalysisOptions) *Tolerance {
+func (sc *scenario) tolerance(opt AnalysisOptions) *Tolerance {
+	s, nom, focus := sc.nom.sh, sc.nom, sc.focus
 	sinks := []int{focus}
 	for _, rq := range s.Requires {
-		if rq.prog != nil {
-			sinks = append(sinks, rq.prog.deps...)
+		if rq.code != nil {
+			sinks = append(sinks, rq.deps...)
 		}
 	}
 	type tolIn struct {
@@ -360,30 +295,30 @@ func (s *Sheet) tolerance(focus int, opt AnalysisOptions) *Tolerance {
 		if q.Tol == nil {
 			continue
 		}
-		lo, hi, err := q.Tol.Limits(q.Value)
+		v := nom.inputValue(id)
+		lo, hi, err := q.Tol.Limits(v)
 		if err != nil {
 			continue
 		}
 		d, _ := numeric.ParseDist(q.Tol.Dist)
-		ins = append(ins, tolIn{id, q.Value, lo, hi, d})
+		ins = append(ins, tolIn{id, v, lo, hi, d})
 	}
 	if len(ins) == 0 {
 		return nil
 	}
-	fq := s.nodes[focus].q
-	t := &Tolerance{Nominal: Number(fq, fq.Value), Trials: opt.Trials, Seed: opt.Seed}
+	t := &Tolerance{Nominal: numberIn(sc.fu, nom.inputValue(focus)), Trials: opt.Trials, Seed: opt.Seed}
 
 	// Worst case: find which limit of each input lowers (raises) the focus, then evaluate
 	// the corner where all of them sit at those limits together.
-	e := s.clone()
 	lowCorner := make([]units.Q, len(ins))
 	highCorner := make([]units.Q, len(ins))
 	ids := make([]int, len(ins))
 	var rss float64
 	for i, in := range ins {
 		ids[i] = in.id
-		fl, okl := s.focusAt(e, focus, []int{in.id}, []units.Q{in.lo})
-		fh, okh := s.focusAt(e, focus, []int{in.id}, []units.Q{in.hi})
+		cone := s.cone(in.id)
+		fl, okl := sc.at([]int{in.id}, []units.Q{in.lo}, cone)
+		fh, okh := sc.at([]int{in.id}, []units.Q{in.hi}, cone)
 		lowCorner[i], highCorner[i] = in.nom, in.nom
 		if okl && okh {
 			if fl < fh {
@@ -398,41 +333,44 @@ func (s *Sheet) tolerance(focus int, opt AnalysisOptions) *Tolerance {
 			}
 		}
 	}
-	t.WorstLow, _ = s.focusAt(e, focus, ids, lowCorner)
-	t.WorstHigh, _ = s.focusAt(e, focus, ids, highCorner)
+	union := s.coneOf(ids)
+	t.WorstLow, _ = sc.at(ids, lowCorner, union)
+	t.WorstHigh, _ = sc.at(ids, highCorner, union)
 	t.RSSSigma = math.Sqrt(rss)
 
-	// Monte Carlo: every trial draws every toleranced input, recomputes what depends on
-	// them, and records the focus and whether all requirements hold.
-	down := s.downstream(ids)
+	// Monte Carlo: every trial draws every toleranced input, recomputes the cone of all of
+	// them, and records the focus and whether all requirements hold. Each worker has its own
+	// copy of the result; nothing is allocated per trial.
 	n := opt.Trials
 	focusVals := make([]float64, n)
 	pass := make([]bool, n)
 	draws := make([]float64, n*len(ins))
-	workers := make([]*evaluator, opt.Workers)
+	workers := make([]*Result, opt.Workers)
 	for w := range workers {
-		workers[w] = s.clone()
+		workers[w] = nom.clone()
 	}
 	var progress func(int)
 	if opt.Progress != nil {
 		progress = func(done int) { opt.Progress("Monte Carlo", done, n) }
 	}
+	fty := s.nodes[focus].ty
 	numeric.Trials(n, opt.Workers, opt.Seed, func(w, trial int, r *rand.Rand) {
 		ev := workers[w]
-		vals := make([]units.Q, len(ins))
+		row := draws[trial*len(ins) : (trial+1)*len(ins)]
 		for i, in := range ins {
-			q := in.nom
-			q.V = numeric.Draw(r, in.dist, in.nom.V, in.lo.V, in.hi.V)
-			vals[i] = q
-			draws[trial*len(ins)+i] = q.V
+			x := numeric.Draw(r, in.dist, in.nom.V, in.lo.V, in.hi.V)
+			row[i] = x
+			ev.vals[in.id], ev.known[in.id] = x, true
 		}
-		ev.set(ids, vals, down)
-		v, ok := ev.value(focus)
+		ev.runCone(union)
 		focusVals[trial] = math.NaN()
-		if ok {
-			focusVals[trial] = Number(fq, v)
+		if ev.known[focus] {
+			v := fty
+			v.V = ev.vals[focus]
+			focusVals[trial] = numberIn(sc.fu, v)
 		}
-		pass[trial] = ok && ev.requirementsPass()
+		ev.requirements()
+		pass[trial] = ev.known[focus] && ev.allPass()
 	}, progress)
 
 	passed := 0
@@ -540,13 +478,19 @@ func sweepPoints(sw *Sweep) []float64 {
 	return xs
 }
 
-func (s *Sheet) sweep(sw *Sweep) SweepResult {
+func sweep(nom *Result, sw *Sweep) SweepResult {
+	s := nom.sh
 	vid := s.byName[sw.Vary]
 	vq := s.nodes[vid].q
 	res := SweepResult{Sweep: sw, Unit: unitName(vq)}
-	e := s.clone()
-	down := s.downstream([]int{vid})
+	e := nom.clone()
+	down := s.cone(vid)
 	xs := sweepPoints(sw)
+	base := nom.inputValue(vid)
+	set := func(q units.Q) {
+		e.vals[vid], e.known[vid] = q.V, true
+		e.runCone(down)
+	}
 	var plots []int
 	for _, p := range sw.Plot {
 		id := s.byName[p]
@@ -554,12 +498,12 @@ func (s *Sheet) sweep(sw *Sweep) SweepResult {
 		res.Series = append(res.Series, Series{Quantity: p, Unit: unitName(s.nodes[id].q)})
 	}
 	for _, x := range xs {
-		q := vq.Value
+		q := base
 		q.V = x
-		e.set([]int{vid}, []units.Q{q}, down)
+		set(q)
 		res.X = append(res.X, Number(vq, q))
 		for i, id := range plots {
-			v, ok := e.value(id)
+			v, ok := e.Value(s.nodes[id].q)
 			y := math.NaN()
 			if ok {
 				y = Number(s.nodes[id].q, v)
@@ -567,7 +511,7 @@ func (s *Sheet) sweep(sw *Sweep) SweepResult {
 			res.Series[i].Y = append(res.Series[i].Y, y)
 		}
 	}
-	e.set([]int{vid}, []units.Q{vq.Value}, down)
+	set(base)
 	// Where a plotted quantity crosses a requirement's bound, refine the crossing on the model.
 	for ri, rq := range s.Requires {
 		for si, id := range plots {
@@ -582,19 +526,19 @@ func (s *Sheet) sweep(sw *Sweep) SweepResult {
 					continue
 				}
 				g := func(x float64) (float64, error) {
-					q := vq.Value
+					q := base
 					q.V = x
-					e.set([]int{vid}, []units.Q{q}, down)
-					v, ok := e.value(id)
+					set(q)
+					v, ok := e.Value(s.nodes[id].q)
 					if !ok {
 						return math.NaN(), nil
 					}
 					return Number(s.nodes[id].q, v) - bound, nil
 				}
 				x, found, err := numeric.Brent(g, xs[i-1], xs[i], false, 1e-9)
-				e.set([]int{vid}, []units.Q{vq.Value}, down)
+				set(base)
 				if err == nil && found {
-					q := vq.Value
+					q := base
 					q.V = x
 					res.Crossings = append(res.Crossings, Crossing{Quantity: s.nodes[id].name, Require: ri, X: Number(vq, q), Y: bound})
 				}
@@ -607,16 +551,18 @@ func (s *Sheet) sweep(sw *Sweep) SweepResult {
 	return res
 }
 
-func (s *Sheet) solve(so *Solve) (SolveResult, error) {
+func solve(nom *Result, so *Solve) (SolveResult, error) {
+	s := nom.sh
 	vid := s.byName[so.Vary]
 	tid := s.byName[so.SoThat]
 	vq, tq := s.nodes[vid].q, s.nodes[tid].q
 	res := SolveResult{Solve: so, Unit: unitName(vq)}
-	if so.Within[0].D != vq.Value.D || so.Within[1].D != vq.Value.D || so.Within[0].K != vq.Value.K {
+	base := nom.inputValue(vid)
+	if so.Within[0].D != base.D || so.Within[1].D != base.D || so.Within[0].K != base.K {
 		res.Note = fmt.Sprintf("within must be in the same unit kind as %s", so.Vary)
 		return res, fmt.Errorf("%s", res.Note)
 	}
-	if !tq.Known {
+	if !nom.known[tid] {
 		res.Note = so.SoThat + " could not be evaluated"
 		return res, nil
 	}
@@ -625,20 +571,19 @@ func (s *Sheet) solve(so *Solve) (SolveResult, error) {
 		res.Note = fmt.Sprintf("equals %s does not fit %s: %v", so.Equals, so.SoThat, err)
 		return res, fmt.Errorf("%s", res.Note)
 	}
-	e := s.clone()
-	down := s.downstream([]int{vid})
+	e := nom.clone()
+	down := s.cone(vid)
 	g := func(x float64) (float64, error) {
-		q := vq.Value
-		q.V = x
-		e.set([]int{vid}, []units.Q{q}, down)
-		v, ok := e.value(tid)
+		e.vals[vid], e.known[vid] = x, true
+		e.runCone(down)
+		v, ok := e.Value(tq)
 		if !ok {
 			return math.NaN(), nil
 		}
 		return Number(tq, v) - target, nil
 	}
 	lo, hi := so.Within[0].V, so.Within[1].V
-	logScale := vq.Value.K == units.Linear && lo > 0 && hi > 0 && math.Max(lo, hi)/math.Min(lo, hi) >= 100
+	logScale := base.K == units.Linear && lo > 0 && hi > 0 && math.Max(lo, hi)/math.Min(lo, hi) >= 100
 	x, found, err := numeric.Brent(g, lo, hi, logScale, 1e-10)
 	if err != nil {
 		res.Note = err.Error()
@@ -648,7 +593,7 @@ func (s *Sheet) solve(so *Solve) (SolveResult, error) {
 		res.Note = "no crossing in range"
 		return res, nil
 	}
-	q := vq.Value
+	q := base
 	q.V = x
 	res.Found, res.Value = true, Number(vq, q)
 	return res, nil

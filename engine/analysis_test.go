@@ -12,10 +12,10 @@ import (
 	"github.com/rfledger/rfledger/engine"
 )
 
-func analyze(t *testing.T, src string, opt engine.AnalysisOptions, set ...engine.Override) (*engine.Sheet, *engine.Analysis) {
+func analyze(t *testing.T, src string, opt engine.AnalysisOptions, set ...engine.Override) (*engine.Result, *engine.Analysis) {
 	t.Helper()
 	sh := evalSrc(t, src, set...)
-	a, diags := sh.Analyze(opt)
+	a, diags := engine.Analyze(sh, opt)
 	if diags.HasErrors() {
 		t.Fatalf("analyze:\n%v", diags)
 	}
@@ -110,7 +110,7 @@ within  = ["10 m", "1 km"]
 
 func TestSweepPointsMatchDirectEvaluation(t *testing.T) {
 	sh := loadValid(t, "link.toml")
-	a, diags := sh.Analyze(engine.AnalysisOptions{Trials: 10})
+	a, diags := engine.Analyze(sh, engine.AnalysisOptions{Trials: 10})
 	if diags.HasErrors() {
 		t.Fatal(diags)
 	}
@@ -124,12 +124,7 @@ func TestSweepPointsMatchDirectEvaluation(t *testing.T) {
 	near(t, "middle x", sw.X[10], math.Sqrt(0.2*10), 1e-9)
 	for i, x := range sw.X {
 		// The same sheet, loaded again with the input set to the point (--set), evaluated directly.
-		direct, diags := engine.Load("../testdata/valid/link.toml", engine.Options{Library: lib,
-			Set: []engine.Override{{Name: "path.distance", Value: fmt.Sprintf("%.17g km", x)}}})
-		if err := diags.Err(); err != nil {
-			t.Fatal(err)
-		}
-		direct.Eval()
+		direct := evalFile(t, "../testdata/valid/link.toml", engine.Override{Name: "path.distance", Value: fmt.Sprintf("%.17g km", x)})
 		want := value(t, direct, "link.margin", "dB")
 		near(t, fmt.Sprintf("sweep point %d (%g km)", i, x), sw.Series[0].Y[i], want, 1e-9)
 	}
@@ -143,16 +138,17 @@ func TestSweepPointsMatchDirectEvaluation(t *testing.T) {
 	near(t, "margin at the crossing", value(t, direct, "link.margin", "dB"), 20, 1e-6)
 }
 
-func evalFile(t *testing.T, path string, set ...engine.Override) *engine.Sheet {
+func evalFile(t *testing.T, path string, set ...engine.Override) *engine.Result {
 	t.Helper()
-	sh, diags := engine.Load(path, engine.Options{Library: lib, Set: set})
+	sh, diags := engine.Load(path, engine.Options{Library: lib})
 	if err := diags.Err(); err != nil {
 		t.Fatal(err)
 	}
-	if err := sh.Eval().Err(); err != nil {
+	r, diags := sh.Eval(set...)
+	if err := diags.Err(); err != nil {
 		t.Fatal(err)
 	}
-	return sh
+	return r
 }
 
 func sensitivityOf(a *engine.Analysis, input string) (engine.Sensitivity, bool) {
@@ -236,7 +232,7 @@ func TestTrialsDeterministic(t *testing.T) {
 	run := func(workers, procs int) *engine.Tolerance {
 		defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(procs))
 		sh := evalFile(t, path)
-		a, _ := sh.Analyze(engine.AnalysisOptions{Trials: 3000, Seed: 42, Workers: workers})
+		a, _ := engine.Analyze(sh, engine.AnalysisOptions{Trials: 3000, Seed: 42, Workers: workers})
 		if a.Tolerance == nil {
 			t.Fatal("no tolerance analysis")
 		}
@@ -253,7 +249,7 @@ func TestTrialsDeterministic(t *testing.T) {
 func TestBudgetSumsToFocus(t *testing.T) {
 	for _, path := range []string{"../testdata/valid/link.toml", "../worksheets/field-probe-uplink.toml"} {
 		sh := evalFile(t, path)
-		a, _ := sh.Analyze(engine.AnalysisOptions{Trials: 10})
+		a, _ := engine.Analyze(sh, engine.AnalysisOptions{Trials: 10})
 		if len(a.Budget) < 2 {
 			t.Fatalf("%s: budget %+v", path, a.Budget)
 		}
@@ -262,11 +258,11 @@ func TestBudgetSumsToFocus(t *testing.T) {
 			total += c.Value
 		}
 		// The signed line items of a sum of decibel terms add up to the sum.
-		f, _ := engine.QuantityNumber(a.Focus)
+		f, _ := sh.Number(a.Focus)
 		near(t, path+": budget total", total, f, 1e-9)
 	}
 	sh := loadValid(t, "link.toml")
-	a, _ := sh.Analyze(engine.AnalysisOptions{Trials: 10})
+	a, _ := engine.Analyze(sh, engine.AnalysisOptions{Trials: 10})
 	items := map[string]float64{}
 	for _, c := range a.Budget {
 		items[c.Item] = c.Value
@@ -296,7 +292,7 @@ loss = "1 dB"
 gain = "= g"
 nf = "0.8 dB"
 `)
-	a, diags := sh.Analyze(engine.AnalysisOptions{Trials: 2000, Seed: 1})
+	a, diags := engine.Analyze(sh, engine.AnalysisOptions{Trials: 2000, Seed: 1})
 	if diags.HasErrors() {
 		t.Fatal(diags)
 	}

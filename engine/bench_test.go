@@ -31,9 +31,9 @@ func BenchmarkEvalDemo(b *testing.B) {
 
 func BenchmarkMonteCarlo10k(b *testing.B) {
 	sh, _ := engine.Load(demo, engine.Options{Library: lib})
-	sh.Eval()
+	r, _ := sh.Eval()
 	for b.Loop() {
-		sh.Analyze(engine.AnalysisOptions{Trials: 10_000, Seed: 1})
+		engine.Analyze(r, engine.AnalysisOptions{Trials: 10_000, Seed: 1})
 	}
 }
 

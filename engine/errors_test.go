@@ -97,11 +97,11 @@ func checkDiagnostics(t *testing.T, exps []*expectation, diags engine.Diagnostic
 }
 
 // loadAndEval loads a sheet and, when loading left something to evaluate, evaluates it too.
-func loadAndEval(path string, opt engine.Options) (*engine.Sheet, engine.Diagnostics) {
+func loadAndEval(path string, opt engine.Options, set ...engine.Override) (*engine.Result, engine.Diagnostics) {
 	sh, diags := engine.Load(path, opt)
-	all := append(engine.Diagnostics(nil), diags...)
-	all = append(all, sh.Eval()...)
-	return sh, engine.SortDiagnostics(all)
+	r, ediags := sh.Eval(set...)
+	all := append(append(engine.Diagnostics(nil), diags...), ediags...)
+	return r, engine.SortDiagnostics(all)
 }
 
 func TestInvalidSheets(t *testing.T) {
@@ -119,7 +119,7 @@ func TestInvalidSheets(t *testing.T) {
 			if len(exps) == 0 {
 				t.Fatal("no # ERROR comment: an invalid sheet must say what is wrong with it")
 			}
-			_, diags := loadAndEval(path, engine.Options{Library: lib, Set: set})
+			_, diags := loadAndEval(path, engine.Options{Library: lib}, set...)
 			checkDiagnostics(t, exps, diags)
 		})
 	}
@@ -136,10 +136,8 @@ func checkFS(t *testing.T, files map[string]string, main string) {
 		exps = append(exps, e...)
 		set = append(set, s...)
 	}
-	sh, diags := loadFS(files, main, set...)
-	all := append(engine.Diagnostics(nil), diags...)
-	all = append(all, sh.Eval()...)
-	checkDiagnostics(t, exps, engine.SortDiagnostics(all))
+	_, all := evalFS(files, main, set...)
+	checkDiagnostics(t, exps, all)
 }
 
 func TestPartLoop(t *testing.T) {
@@ -191,20 +189,19 @@ total = "= rx.extra + rx.margin"
 [[require]]
 that = "= link.total >= 0 dB"
 `
-	sh, diags := loadFS(map[string]string{"s.toml": src}, "s.toml")
-	all := append(diags, sh.Eval()...)
+	sh, all := evalFS(map[string]string{"s.toml": src}, "s.toml")
 	if n := len(all); n != 1 {
 		t.Fatalf("want exactly 1 diagnostic, got %d:\n%v", n, all)
 	}
 	for _, name := range []string{"rx.snr", "rx.margin", "rx.extra", "link.total"} {
-		if q, _ := sh.Quantity(name); q == nil || q.Known {
+		if q, _ := sh.Sheet().Quantity(name); q == nil || sh.Known(q) {
 			t.Errorf("%s should be unknown", name)
 		}
 	}
-	if q, _ := sh.Quantity("rx.gain"); q == nil || !q.Known {
+	if q, _ := sh.Sheet().Quantity("rx.gain"); q == nil || !sh.Known(q) {
 		t.Errorf("rx.gain should be known")
 	}
-	if sh.Requires[0].Known {
+	if _, known := sh.Pass(sh.Sheet().Requires[0]); known {
 		t.Errorf("the requirement on a failed quantity should be unknown")
 	}
 }
@@ -217,7 +214,7 @@ func TestOverrideErrors(t *testing.T) {
 		{"tx.power", "10 km", `^--set: tx\.power: is 14 dBm; 10 km is not of the same kind$`},
 		{"tx.power", "10 dQ", `unknown unit "dQ"`},
 	} {
-		_, diags := loadFS(map[string]string{"s.toml": src}, "s.toml", engine.Override{Name: c.name, Value: c.value})
+		_, diags := evalFS(map[string]string{"s.toml": src}, "s.toml", engine.Override{Name: c.name, Value: c.value})
 		if len(diags) != 1 || !regexp.MustCompile(c.want).MatchString(diags[0].String()) {
 			t.Errorf("--set %s=%s: got %v, want one error matching %q", c.name, c.value, diags, c.want)
 		}

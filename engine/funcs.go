@@ -2,7 +2,6 @@ package engine
 
 import (
 	"fmt"
-	"reflect"
 	"sort"
 	"strings"
 	"sync"
@@ -199,35 +198,6 @@ func dimWord(d units.Dim) string {
 	return d.String()
 }
 
-// check converts and checks one quantity argument against its declaration.
-func (a Arg) check(q units.Q) (units.Q, error) {
-	if a.Form == AnyQuantity {
-		return q, nil
-	}
-	if q.D != a.Dim || q.K == units.Rate {
-		return q, fmt.Errorf("%s: got %s, want %s", a.Name, unitOrNumber(q), a.want())
-	}
-	switch a.Form {
-	case LinearOnly:
-		if q.K != units.Linear {
-			return q, fmt.Errorf("%s: got %s, want %s", a.Name, unitOrNumber(q), a.want())
-		}
-	case LevelOnly:
-		if q.K != units.Level {
-			return q, fmt.Errorf("%s: got %s, want %s", a.Name, unitOrNumber(q), a.want())
-		}
-	case AsLinear:
-		return q.Linear(), nil
-	case AsLevel:
-		l, err := q.ToLevel()
-		if err != nil {
-			return q, fmt.Errorf("%s: %v", a.Name, err)
-		}
-		return l, nil
-	}
-	return q, nil
-}
-
 func (a Arg) want() string {
 	switch {
 	case a.Form == LevelOnly && a.Dim.IsNone():
@@ -257,9 +227,9 @@ func unitOrNumber(q units.Q) string {
 
 // Library is a set of built-in functions, looked up by name.
 type Library struct {
-	funcs map[string]*Func
-	once  sync.Once
-	table conf.FunctionsTable // expr's view of funcs, built on first use
+	funcs  map[string]*Func
+	once   sync.Once
+	config *conf.Config // what expr's parser needs to know, built on first use
 }
 
 // NewLibrary returns a library holding the given functions. A later function with the same
@@ -300,81 +270,4 @@ func (l *Library) names() []string {
 		out = append(out, f.Name)
 	}
 	return out
-}
-
-var (
-	qType     = reflect.TypeOf(units.Q{})
-	strType   = reflect.TypeOf("")
-	chainType = reflect.TypeOf((*ChainValue)(nil))
-	callType  = reflect.TypeOf((*Call)(nil))
-	boolType  = reflect.TypeOf(true)
-)
-
-func (k ArgKind) goType() reflect.Type {
-	switch k {
-	case ArgText:
-		return strType
-	case ArgChain:
-		return chainType
-	}
-	return qType
-}
-
-// exprTypes lists the Go function types expr's checker accepts for f: one per arity when
-// arguments are optional, with the *Call context first.
-func (f *Func) exprTypes() []any {
-	var out []any
-	required := 0
-	for _, a := range f.Args {
-		if !a.Optional {
-			required++
-		}
-	}
-	for n := required; n <= len(f.Args); n++ {
-		in := []reflect.Type{callType}
-		for _, a := range f.Args[:n] {
-			in = append(in, a.Kind.goType())
-		}
-		variadic := f.Variadic && n == len(f.Args)
-		if variadic {
-			in[len(in)-1] = reflect.SliceOf(in[len(in)-1])
-		}
-		ft := reflect.FuncOf(in, []reflect.Type{qType}, variadic)
-		out = append(out, reflect.New(ft).Interface())
-	}
-	return out
-}
-
-// invoke is what expr calls: it checks and converts arguments, then calls f.
-func (f *Func) invoke(params ...any) (any, error) {
-	c, _ := params[0].(*Call)
-	args := make([]Value, len(f.Args), max(len(f.Args), len(params)-1))
-	for i := 1; i < len(params); i++ {
-		ai := min(i-1, len(f.Args)-1)
-		a := f.Args[ai]
-		var v Value
-		switch p := params[i].(type) {
-		case units.Q:
-			cq, err := a.check(p)
-			if err != nil {
-				return nil, fmt.Errorf("%s: %w", f.Name, err)
-			}
-			v.Q = cq
-		case string:
-			v.Text = p
-		case *ChainValue:
-			v.Chain = p
-		}
-		v.Given = true
-		if i-1 < len(args) {
-			args[i-1] = v
-		} else {
-			args = append(args, v)
-		}
-	}
-	q, err := f.Call(c, args)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", f.Name, err)
-	}
-	return q, nil
 }

@@ -42,8 +42,9 @@ func FuzzLoad(f *testing.F) {
 		}
 		sh, diags := engine.Load("sheet.toml", engine.Options{Library: lib, FS: fsys})
 		checkRanges(t, diags)
-		checkRanges(t, sh.Eval())
-		_, ad := sh.Analyze(engine.AnalysisOptions{Trials: 20, Seed: 1, Workers: 1})
+		r, ed := sh.Eval()
+		checkRanges(t, ed)
+		_, ad := engine.Analyze(r, engine.AnalysisOptions{Trials: 20, Seed: 1, Workers: 1})
 		checkRanges(t, ad)
 	})
 }
@@ -95,8 +96,9 @@ func FuzzFormula(f *testing.F) {
 			defer close(done)
 			sh, diags := loadFS(map[string]string{"sheet.toml": src}, "sheet.toml")
 			checkRanges(t, diags)
-			checkRanges(t, sh.Eval())
-			_, ad := sh.Analyze(engine.AnalysisOptions{Trials: 20, Seed: 1, Workers: 1})
+			r, ed := sh.Eval()
+			checkRanges(t, ed)
+			_, ad := engine.Analyze(r, engine.AnalysisOptions{Trials: 20, Seed: 1, Workers: 1})
 			checkRanges(t, ad)
 		}()
 		select {

@@ -9,12 +9,17 @@ import (
 )
 
 // loadFS loads files (name → text) from an in-memory folder, starting at main.
-func loadFS(files map[string]string, main string, set ...engine.Override) (*engine.Sheet, engine.Diagnostics) {
-	return sheettest.Load(files, main, set...)
+func loadFS(files map[string]string, main string) (*engine.Sheet, engine.Diagnostics) {
+	return sheettest.Load(files, main)
+}
+
+// evalFS loads and evaluates files from an in-memory folder, with every diagnostic.
+func evalFS(files map[string]string, main string, set ...engine.Override) (*engine.Result, engine.Diagnostics) {
+	return sheettest.EvalFS(files, main, set...)
 }
 
 // evalSrc loads and evaluates a one-file sheet and fails the test on any error.
-func evalSrc(t testing.TB, src string, set ...engine.Override) *engine.Sheet {
+func evalSrc(t testing.TB, src string, set ...engine.Override) *engine.Result {
 	t.Helper()
 	sh, diags := sheettest.Eval(src, set...)
 	if err := diags.Err(); err != nil {
@@ -24,7 +29,7 @@ func evalSrc(t testing.TB, src string, set ...engine.Override) *engine.Sheet {
 }
 
 // value returns a known quantity's value in the unit named (e.g. "dBm", "m", "").
-func value(t testing.TB, sh *engine.Sheet, name, unit string) float64 {
+func value(t testing.TB, sh *engine.Result, name, unit string) float64 {
 	t.Helper()
 	return sheettest.Value(t, sh, name, unit)
 }

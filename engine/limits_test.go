@@ -52,8 +52,19 @@ func TestHundredThousandInGroups(t *testing.T) {
 	start := time.Now()
 	sh := evalSrc(t, b.String())
 	t.Logf("load + eval of 100,001 quantities in 1,000 groups: %v", time.Since(start))
-	if got := len(sh.Quantities()); got != 100_001 {
+	if got := len(sh.Sheet().Quantities()); got != 100_001 {
 		t.Errorf("%d quantities, want 100001", got)
 	}
 	near(t, "g999.v99 = v98 + base", value(t, sh, "g999.v99", "dB"), 98+1, 1e-12)
+}
+
+// A flat sum is long, not deep: 1,000 terms load and evaluate (the nesting limit counts
+// parentheses and calls, not the terms of one sum).
+func TestFlatSumOfAThousandTerms(t *testing.T) {
+	terms := make([]string, 1000)
+	for i := range terms {
+		terms[i] = "0.5 dB"
+	}
+	sh := evalSrc(t, "x = \"= "+strings.Join(terms, " + ")+"\"\n")
+	near(t, "x", value(t, sh, "x", "dB"), 500, 1e-9) // 1000 × 0.5 dB
 }

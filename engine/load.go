@@ -303,7 +303,6 @@ func hasAny(m map[string]any, keys []string) bool {
 }
 
 func (l *loader) addNode(n *node) int {
-	n.env = "@" + n.name
 	id := len(l.sh.nodes)
 	l.sh.nodes = append(l.sh.nodes, n)
 	l.sh.byName[n.name] = id
@@ -325,12 +324,8 @@ func (l *loader) quantity(f *sheetFile, g *Group, path, key string, m map[string
 		return
 	}
 	q := &Quantity{Name: full, Group: g.Name, Range: r}
-	ok := l.quantityFields(f, q, path, m)
-	n := &node{name: full, q: q, ok: ok}
-	if ok && q.Formula == "" {
-		n.input = q.Value
-		q.Known = true
-	}
+	val, ok := l.quantityFields(f, q, path, m)
+	n := &node{name: full, q: q, ok: ok, input: val}
 	q.node = l.addNode(n)
 	l.formulaSites = append(l.formulaSites, site{f: f, path: path + isPath(m), node: q.node, sc: scope{group: g.Name, part: f.prefix}})
 	g.Quantities = append(g.Quantities, q)
@@ -345,9 +340,11 @@ func isPath(m map[string]any) string {
 	return ".is"
 }
 
-// quantityFields reads the long form of a quantity; it reports whether the value is usable.
-func (l *loader) quantityFields(f *sheetFile, q *Quantity, path string, m map[string]any) bool {
-	ok := true
+// quantityFields reads the long form of a quantity and returns an input's value; it reports
+// whether the quantity is usable.
+func (l *loader) quantityFields(f *sheetFile, q *Quantity, path string, m map[string]any) (value units.Q, ok bool) {
+	q.sh = l.sh
+	ok = true
 	for _, k := range l.ordered(f, path, m) {
 		if !contains(quantityKeys, k) {
 			l.errAt(f.rangeOf(join(path, k)), q.Name, didYouMean(k, quantityKeys, "a quantity's keys are is, tol, dist, note, show, source, export"), "unknown key %q", k)
@@ -357,7 +354,7 @@ func (l *loader) quantityFields(f *sheetFile, q *Quantity, path string, m map[st
 	isv, has := m["is"]
 	if !has {
 		l.errAt(f.rangeOf(path), q.Name, "add is = \"<value>\"", "the long form needs \"is\"")
-		return false
+		return value, false
 	}
 	vr := f.valueRange(path + isPath(m))
 	switch v := isv.(type) {
@@ -376,11 +373,11 @@ func (l *loader) quantityFields(f *sheetFile, q *Quantity, path string, m map[st
 			ok = false
 			break
 		}
-		q.Text, q.Unit, q.Value = strings.TrimSpace(v), u, val
+		q.Text, q.Unit, value = strings.TrimSpace(v), u, val
 	case int64:
-		q.Text, q.Value = strconv.FormatInt(v, 10), units.Num(float64(v))
+		q.Text, value = strconv.FormatInt(v, 10), units.Num(float64(v))
 	case float64:
-		q.Text, q.Value = strconv.FormatFloat(v, 'g', -1, 64), units.Num(v)
+		q.Text, value = strconv.FormatFloat(v, 'g', -1, 64), units.Num(v)
 	default:
 		l.errAt(vr, q.Name, "write a number, a number with a unit in quotes (\"3 dB\"), or \"= formula\"", "a %s is not a quantity", tomlType(v))
 		ok = false
@@ -442,12 +439,12 @@ func (l *loader) quantityFields(f *sheetFile, q *Quantity, path string, m map[st
 		q.Tol.Dist = "normal"
 	}
 	if ok && q.Tol != nil && q.Formula == "" {
-		if _, _, err := q.Tol.Limits(q.Value); err != nil {
+		if _, _, err := q.Tol.Limits(value); err != nil {
 			l.errAt(f.valueRange(join(path, "tol")), q.Name, unitHint(err), "tol %s does not fit %s: %s", q.Tol.Text, q.Text, unitMsg(err))
 			ok = false
 		}
 	}
-	return ok
+	return value, ok
 }
 
 func parseTol(v any) (*Tol, error) {
@@ -588,11 +585,8 @@ func (l *loader) chain(f *sheetFile, g *Group, path, key string, tables []map[st
 					m = map[string]any{"is": v}
 				}
 				q := &Quantity{Name: qname, Group: g.Name, Range: kr}
-				ok := l.quantityFields(f, q, join(sp, k), m)
-				qn := &node{name: qname, q: q, ok: ok}
-				if ok && q.Formula == "" {
-					qn.input, q.Known = q.Value, true
-				}
+				val, ok := l.quantityFields(f, q, join(sp, k), m)
+				qn := &node{name: qname, q: q, ok: ok, input: val}
 				q.node = l.addNode(qn)
 				l.formulaSites = append(l.formulaSites, site{f: f, path: join(sp, k) + isPath(m), node: q.node, sc: scope{group: g.Name, part: f.prefix}})
 				st.Values[k] = q

@@ -8,7 +8,9 @@ import (
 )
 
 // Sheet is a loaded worksheet: its groups of quantities in file order, its chains,
-// requirements, sweeps and solves, and (after Eval) their values.
+// requirements, sweeps and solves, with every formula compiled and unit-checked. A Sheet does
+// not change once Load has returned it, and is safe to share between goroutines; evaluating
+// it gives a [Result].
 type Sheet struct {
 	File    string // the worksheet's path as given
 	Title   string
@@ -22,14 +24,15 @@ type Sheet struct {
 	Solves   []*Solve
 	Parts    []string // files brought in with `use`, in load order
 
-	nodes     []*node
-	byName    map[string]int
-	order     []int // evaluation order of nodes (topological)
-	fc        *formulaCompiler
-	diags     Diagnostics
-	trials    int
-	userCache [][]int
-	values    *evaluator // the nominal evaluation, after Eval
+	nodes   []*node
+	byName  map[string]int
+	order   []int // evaluation order of nodes (topological)
+	pos     []int // each node's place in order (-1 when it is not evaluated)
+	lib     *Library
+	diags   Diagnostics
+	nchains int
+	graph   graphCache
+	nparsed int // formulas parsed by Load (the others were reused from Options.Previous)
 }
 
 // Group is a TOML table of the worksheet: quantities and chains under one dotted name.
@@ -54,11 +57,23 @@ type Quantity struct {
 	Export  bool
 	Range   Range
 
-	Value    units.Q // valid when Known (after Eval)
-	Known    bool
-	Warnings []string // validity warnings from the functions its formula called
-
 	node int
+	sh   *Sheet
+}
+
+// Type returns the quantity's type as found when the sheet loaded: its dimension, decibel
+// form and display family, with a zero number. ok is false when the quantity could not be
+// checked (its formula has an error, or depends on one that has).
+func (q *Quantity) Type() (t units.Q, ok bool) {
+	n := q.sh.nodes[q.node]
+	return n.ty, n.typed
+}
+
+// Nominal returns an input's value as written in the worksheet; ok is false for derived
+// quantities and for inputs that could not be read.
+func (q *Quantity) Nominal() (units.Q, bool) {
+	n := q.sh.nodes[q.node]
+	return n.input, n.ok && n.code == nil && q.Formula == ""
 }
 
 // Input reports whether the quantity is an input rather than derived from a formula.
@@ -71,14 +86,6 @@ func (q *Quantity) DisplayUnit() *units.Unit {
 		return q.Show
 	}
 	return q.Unit
-}
-
-// Display formats the quantity's value in its display unit ("14.00 dBm", "2.4 km").
-func (q *Quantity) Display() string {
-	if !q.Known {
-		return "unknown"
-	}
-	return q.Value.Format(q.DisplayUnit())
 }
 
 // Tol is a tolerance: ±Plus/−Minus in the quantity's unit, or relative (fractions of the
@@ -191,8 +198,6 @@ type Require struct {
 	That  string // the formula without "="
 	Note  string
 	Range Range
-	Pass  bool // valid when Known
-	Known bool
 
 	// When the requirement is a plain bound on one quantity ("x >= 8 dB"), Subject names the
 	// quantity, Op is the comparison as written with the quantity on the left, and Bound the limit.
@@ -200,8 +205,11 @@ type Require struct {
 	Op      string
 	Bound   units.Q
 
-	prog *compiled
-	at   site
+	parsed *parsed
+	code   *inode
+	deps   []int
+	at     site
+	index  int
 }
 
 // Sweep varies one input over a range and records chosen quantities at each step.
@@ -226,15 +234,18 @@ type Solve struct {
 
 // node is one vertex of the dependency graph: a quantity or a chain.
 type node struct {
-	name  string
-	env   string // key in the value store
-	q     *Quantity
-	chain *Chain
-	input units.Q // value of an input quantity
-	code  *compiled
-	deps  []int
-	ok    bool // compiled (or parsed) without error
-	at    site // where its formula stands
+	name     string
+	q        *Quantity
+	chain    *Chain
+	chainIdx int     // index of the chain's value in a Result
+	input    units.Q // value of an input quantity
+	parsed   *parsed // a formula's syntax tree (shared with sheets reloaded from this one)
+	code     *inode  // a formula, lowered and checked
+	deps     []int
+	ok       bool    // read, parsed and lowered without error
+	typed    bool    // its type is known (inputs, chains, formulas that checked)
+	ty       units.Q // its type, for quantities
+	at       site    // where its formula stands
 }
 
 func finite(q units.Q) bool { return !math.IsNaN(q.V) && !math.IsInf(q.V, 0) }

@@ -1,16 +1,12 @@
 package engine
 
 import (
-	"errors"
 	"fmt"
 	"io/fs"
 	"os"
 	"path/filepath"
 	"strings"
 	"unicode/utf8"
-
-	"github.com/expr-lang/expr/ast"
-	"github.com/expr-lang/expr/file"
 
 	"github.com/rfledger/rfledger/units"
 )
@@ -19,11 +15,12 @@ import (
 type Options struct {
 	// Library holds the functions formulas may call.
 	Library *Library
-	// Set replaces inputs, in order, as `--set name=value` does.
-	Set []Override
 	// FS is where the worksheet and its parts are read from; nil means the operating system's
 	// files, rooted at the worksheet's folder (parts may not leave it).
 	FS fs.FS
+	// Previous is an earlier load of the same worksheet (by watch, or an editor): formulas
+	// whose text did not change reuse its parses instead of being parsed again.
+	Previous *Sheet
 }
 
 // Override replaces the value of an input quantity.
@@ -32,23 +29,21 @@ type Override struct {
 }
 
 // Load reads, checks and compiles a worksheet and the parts it uses. It always returns a
-// sheet; the diagnostics list every problem found (errors and warnings), sorted by position.
-// Quantities whose formulas failed are left unknown, and Eval skips what depends on them.
+// sheet; the diagnostics list every problem found (errors and warnings), sorted by position,
+// unit errors in every formula among them. Quantities whose formulas failed are left
+// unknown, and evaluation skips what depends on them. The sheet does not change afterwards.
 func Load(path string, opt Options) (*Sheet, Diagnostics) {
 	fsys, fsPath := opt.FS, path
 	if fsys == nil {
 		fsys, fsPath = os.DirFS(filepath.Dir(path)), filepath.Base(path)
 	}
 	fsPath = filepath.ToSlash(fsPath)
-	sh := &Sheet{File: path, byName: map[string]int{}}
+	sh := &Sheet{File: path, byName: map[string]int{}, lib: opt.Library}
 	l := &loader{sh: sh, fsys: fsys}
 	l.load(fsPath, path, "", Range{File: path})
 	sh.Hash = hashHex(l.hash)
-	l.overrides(opt.Set)
-	sh.fc = newFormulaCompiler(sh, opt.Library)
-	l.compile()
+	l.compile(opt.Previous)
 	l.checkFocus()
-	sh.order = l.sortGraph()
 	l.checkStudies()
 	sh.diags = sortDiags(l.diags)
 	return sh, sh.diags
@@ -86,64 +81,6 @@ func (s *Sheet) Chains() []*Chain {
 		}
 	}
 	return out
-}
-
-// ChainValue returns the evaluated stages of a chain (after Eval).
-func (s *Sheet) ChainValue(c *Chain) *ChainValue {
-	return buildChain(c, func(q *Quantity) (units.Q, bool) { return q.Value, q.Known })
-}
-
-func (l *loader) overrides(set []Override) {
-	for _, o := range set {
-		r := Range{File: "--set"}
-		id, ok := l.sh.byName[o.Name]
-		if !ok || l.sh.nodes[id].q == nil {
-			l.errAt(r, o.Name, l.sh.suggest(o.Name, scope{}), "no such quantity")
-			continue
-		}
-		n := l.sh.nodes[id]
-		if n.q.Formula != "" {
-			l.errAt(r, o.Name, "only inputs can be set; it is \"= "+n.q.Formula+"\"", "derived from a formula")
-			continue
-		}
-		v, u, err := units.Parse(o.Value)
-		if err != nil {
-			l.errAt(r, o.Name, unitHint(err), "%s", unitMsg(err))
-			continue
-		}
-		if n.ok && (v.D != n.input.D || (v.K == units.Rate) != (n.input.K == units.Rate)) {
-			l.errAt(r, o.Name, "", "is %s; %s is not of the same kind", n.q.Text, o.Value)
-			continue
-		}
-		n.q.Text, n.q.Unit, n.q.Value, n.q.Known = strings.TrimSpace(o.Value), u, v, true
-		n.input, n.ok = v, true
-	}
-}
-
-// compile compiles every formula once all names are known.
-func (l *loader) compile() {
-	for _, st := range l.formulaSites {
-		n := l.sh.nodes[st.node]
-		if !n.ok || n.q.Formula == "" {
-			continue
-		}
-		code, errs := l.sh.fc.compile(n.q.Formula, st.sc, tQ)
-		if len(errs) > 0 {
-			n.ok = false
-			l.formulaErrs(st, n.q.Name, n.q.Formula, errs)
-			continue
-		}
-		n.code, n.deps, n.at = code, code.deps, st
-	}
-	for _, st := range l.reqSites {
-		code, errs := l.sh.fc.compile(st.req.That, scope{}, tBool)
-		if len(errs) > 0 {
-			l.formulaErrs(st, "require", st.req.That, errs)
-			continue
-		}
-		st.req.prog, st.req.at = code, st
-		l.sh.bound(st.req)
-	}
 }
 
 // formulaErrs reports formula errors at their place in the file.
@@ -318,60 +255,4 @@ func (s *Sheet) suggest(name string, sc scope) string {
 		}
 	}
 	return ""
-}
-
-// runtimeErr splits an evaluation error into message and hint.
-func runtimeErr(err error) (msg, hint string, from int) {
-	var fe *file.Error
-	if errors.As(err, &fe) {
-		from = fe.From
-	}
-	var ue *units.Error
-	if errors.As(err, &ue) {
-		msg, hint = ue.Msg, ue.Hint
-		// keep the function name prefix, if any ("fspl: distance: ...")
-		if fe != nil && fe.Prev != nil {
-			if full := fe.Prev.Error(); strings.HasSuffix(full, ue.Error()) {
-				msg = strings.TrimSuffix(full, ue.Error()) + ue.Msg
-			}
-		}
-		return msg, hint, from
-	}
-	if fe != nil {
-		if fe.Prev != nil {
-			return cleanExprMsg(fe.Prev.Error()), "", from
-		}
-		return cleanExprMsg(fe.Message), "", from
-	}
-	return err.Error(), "", from
-}
-
-var flipped = map[string]string{"_ge": "<=", "_gt": "<", "_le": ">=", "_lt": ">", "_eq": "==", "_ne": "!="}
-var direct = map[string]string{"_ge": ">=", "_gt": ">", "_le": "<=", "_lt": "<", "_eq": "==", "_ne": "!="}
-
-// bound recognises a requirement of the form "quantity OP constant" (either way round).
-func (s *Sheet) bound(rq *Require) {
-	c, ok := rq.prog.tree.(*ast.CallNode)
-	if !ok || len(c.Arguments) != 2 {
-		return
-	}
-	fn := c.Callee.(*ast.IdentifierNode).Value
-	if _, ok := direct[fn]; !ok {
-		return
-	}
-	a, b := c.Arguments[0], c.Arguments[1]
-	op := direct[fn]
-	if _, isConst := a.(*ast.ConstantNode); isConst {
-		a, b, op = b, a, flipped[fn]
-	}
-	id, ok1 := a.(*ast.IdentifierNode)
-	k, ok2 := b.(*ast.ConstantNode)
-	if !ok1 || !ok2 {
-		return
-	}
-	q, isQ := k.Value.(units.Q)
-	if !isQ || !strings.HasPrefix(id.Value, "@") {
-		return
-	}
-	rq.Subject, rq.Op, rq.Bound = strings.TrimPrefix(id.Value, "@"), op, q
 }

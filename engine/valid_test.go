@@ -9,16 +9,17 @@ import (
 	"github.com/rfledger/rfledger/engine"
 )
 
-func loadValid(t *testing.T, name string) *engine.Sheet {
+func loadValid(t *testing.T, name string) *engine.Result {
 	t.Helper()
 	sh, diags := engine.Load(filepath.Join("..", "testdata", "valid", name), engine.Options{Library: lib})
 	if err := diags.Err(); err != nil {
 		t.Fatalf("load:\n%v", err)
 	}
-	if err := sh.Eval().Err(); err != nil {
+	r, diags := sh.Eval()
+	if err := diags.Err(); err != nil {
 		t.Fatalf("eval:\n%v", err)
 	}
-	return sh
+	return r
 }
 
 // Every valid sheet loads, evaluates and analyses without an error, and every quantity is known.
@@ -30,17 +31,17 @@ func TestValidSheets(t *testing.T) {
 	for _, path := range files {
 		t.Run(filepath.Base(path), func(t *testing.T) {
 			sh := loadValid(t, filepath.Base(path))
-			for _, q := range sh.Quantities() {
-				if !q.Known {
+			for _, q := range sh.Sheet().Quantities() {
+				if !sh.Known(q) {
 					t.Errorf("%s is unknown", q.Name)
 				}
 			}
-			for i, rq := range sh.Requires {
-				if !rq.Known {
+			for i, rq := range sh.Sheet().Requires {
+				if _, known := sh.Pass(rq); !known {
 					t.Errorf("requirement %d (%s) is unknown", i, rq.That)
 				}
 			}
-			if _, diags := sh.Analyze(engine.AnalysisOptions{Trials: 200, Seed: 1}); diags.HasErrors() {
+			if _, diags := engine.Analyze(sh, engine.AnalysisOptions{Trials: 200, Seed: 1}); diags.HasErrors() {
 				t.Errorf("analyze:\n%v", diags)
 			}
 		})
@@ -81,8 +82,8 @@ func TestValidLink(t *testing.T) {
 	near(t, "rx.level", value(t, sh, "rx.level", "dBm"), level, 1e-9)
 	near(t, "link.margin", value(t, sh, "link.margin", "dB"), level-floor-8, 1e-9)
 	// The margin is about 25 dB, so the requirement (>= 20 dB) passes.
-	if rq := sh.Requires[0]; !rq.Known || rq.Pass != (level-floor-8 >= 20) {
-		t.Errorf("requirement: known %v pass %v", rq.Known, rq.Pass)
+	if pass, known := sh.Pass(sh.Sheet().Requires[0]); !known || pass != (level-floor-8 >= 20) {
+		t.Errorf("requirement: known %v pass %v", known, pass)
 	}
 }
 
@@ -96,7 +97,7 @@ func TestValidGroups(t *testing.T) {
 	near(t, "a.b.c.v = a.b.c.gain", value(t, sh, "a.b.c.v", "dB"), 10, 1e-12)
 	near(t, "a.b.c.m = a.n * 2", value(t, sh, "a.b.c.m", ""), 8, 1e-12)
 
-	p, _ := sh.Quantity("a.p")
+	p, _ := sh.Sheet().Quantity("a.p")
 	if p.Note != "asymmetric" || p.Source != "measurement" || !p.Export || p.Show == nil || p.Show.Sym != "mW" {
 		t.Errorf("a.p long form: note %q source %q export %v show %v", p.Note, p.Source, p.Export, p.Show)
 	}
@@ -105,18 +106,20 @@ func TestValidGroups(t *testing.T) {
 	if tl := p.Tol; tl == nil || tl.Relative || tl.Dist != "uniform" {
 		t.Fatalf("a.p tolerance: %+v", tl)
 	}
-	lo, hi, err := p.Tol.Limits(p.Value)
+	pv, _ := p.Nominal()
+	lo, hi, err := p.Tol.Limits(pv)
 	if err != nil {
 		t.Fatal(err)
 	}
 	near(t, "a.p low limit", lo.V+30, 13.5, 1e-12) // 14 dBm − 0.5 dB (stored as dB re 1 W)
 	near(t, "a.p high limit", hi.V+30, 15.5, 1e-12)
 
-	d, _ := sh.Quantity("a.d")
+	d, _ := sh.Sheet().Quantity("a.d")
 	if d.Tol == nil || !d.Tol.Relative || d.Tol.Dist != "normal" {
 		t.Fatalf("a.d tolerance: %+v", d.Tol)
 	}
-	lo, hi, _ = d.Tol.Limits(d.Value)
+	dv, _ := d.Nominal()
+	lo, hi, _ = d.Tol.Limits(dv)
 	near(t, "a.d low limit", lo.V, 1800, 1e-9) // 2 km − 10 %
 	near(t, "a.d high limit", hi.V, 2200, 1e-9)
 }
@@ -157,9 +160,9 @@ func TestValidLiterals(t *testing.T) {
 	near(t, "calc.power = 1 kHz × 2 s", value(t, sh, "calc.power", ""), 2000, 1e-9)
 	near(t, "calc.neg = x − 3 dB", value(t, sh, "calc.neg", "dB"), 7, 1e-12)
 	// margin = −90 + 124 − 18 = 16 dB ≥ 0, and 25 mW ≥ 20 mW; pick is 3 dB, 25 mW ≈ 14 dBm ≥ 13 dBm.
-	for i, rq := range sh.Requires {
-		if !rq.Known || !rq.Pass {
-			t.Errorf("requirement %d (%s): known %v pass %v", i, rq.That, rq.Known, rq.Pass)
+	for i, rq := range sh.Sheet().Requires {
+		if pass, known := sh.Pass(rq); !known || !pass {
+			t.Errorf("requirement %d (%s): known %v pass %v", i, rq.That, known, pass)
 		}
 	}
 }
@@ -171,11 +174,11 @@ func TestValidParts(t *testing.T) {
 	near(t, "lna.doubled", value(t, sh, "lna.doubled", "dB"), 34, 1e-12) // bare name resolved inside the part
 	near(t, "rx.twice", value(t, sh, "rx.twice", "dB"), 34, 1e-12)
 	near(t, "lna.bias.current", value(t, sh, "lna.bias.current", "A"), 0.012, 1e-15)
-	if sh.Title != "A sheet that uses parts" {
-		t.Errorf("title %q: a part's title must not replace the sheet's", sh.Title)
+	if sh.Sheet().Title != "A sheet that uses parts" {
+		t.Errorf("title %q: a part's title must not replace the sheet's", sh.Sheet().Title)
 	}
-	if len(sh.Parts) != 2 {
-		t.Errorf("parts: %v", sh.Parts)
+	if len(sh.Sheet().Parts) != 2 {
+		t.Errorf("parts: %v", sh.Sheet().Parts)
 	}
 }
 
@@ -192,7 +195,7 @@ r = "3 m"
 x = "1 dB"
 `)
 	var names []string
-	for _, g := range sh.Groups {
+	for _, g := range sh.Sheet().Groups {
 		names = append(names, g.Name)
 	}
 	want := []string{"", "rx", "link", "path", "path.fresnel", "alpha"}

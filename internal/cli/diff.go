@@ -44,7 +44,7 @@ func cmdDiff(e *Env, args []string) int {
 	if !oldEv.ok() || !newEv.ok() {
 		return ExitBadSheet
 	}
-	_, _ = e.Stdout.Write(diffMarkdown(oldName, newName, oldEv.sheet, newEv.sheet))
+	_, _ = e.Stdout.Write(diffMarkdown(oldName, newName, oldEv.result, newEv.result))
 	return ExitOK
 }
 
@@ -75,7 +75,8 @@ func (r *revFS) Open(name string) (fs.File, error) {
 }
 
 // diffMarkdown writes what changed in the results, as Markdown.
-func diffMarkdown(oldName, newName string, a, b *engine.Sheet) []byte {
+func diffMarkdown(oldName, newName string, ra, rb *engine.Result) []byte {
+	a, b := ra.Sheet(), rb.Sheet()
 	var w bytes.Buffer
 	title := b.Title
 	if title == "" {
@@ -86,17 +87,17 @@ func diffMarkdown(oldName, newName string, a, b *engine.Sheet) []byte {
 	if f, ok := b.Quantity(b.Focus); ok {
 		old := "—"
 		if g, ok := a.Quantity(b.Focus); ok {
-			old = g.Display()
+			old = ra.Display(g)
 		}
-		ch := change(a, f)
+		ch := change(ra, rb, f)
 		if ch != "" {
 			ch = " (" + ch + ")"
 		}
-		fmt.Fprintf(&w, "| focus `%s` | %s | %s%s |\n", f.Name, old, f.Display(), ch)
+		fmt.Fprintf(&w, "| focus `%s` | %s | %s%s |\n", f.Name, old, rb.Display(f), ch)
 	}
 	reqs := map[string]string{}
 	for _, rq := range a.Requires {
-		reqs[rq.That] = passText(rq)
+		reqs[rq.That] = passText(ra, rq)
 	}
 	for _, rq := range b.Requires {
 		old, ok := reqs[rq.That]
@@ -104,7 +105,7 @@ func diffMarkdown(oldName, newName string, a, b *engine.Sheet) []byte {
 			old = "(new)"
 		}
 		delete(reqs, rq.That)
-		fmt.Fprintf(&w, "| `%s` | %s | %s |\n", rq.That, old, passText(rq))
+		fmt.Fprintf(&w, "| `%s` | %s | %s |\n", rq.That, old, passText(rb, rq))
 	}
 	for _, rq := range a.Requires {
 		if old, ok := reqs[rq.That]; ok {
@@ -116,18 +117,18 @@ func diffMarkdown(oldName, newName string, a, b *engine.Sheet) []byte {
 		old, ok := a.Quantity(q.Name)
 		switch {
 		case !ok:
-			rows = append(rows, fmt.Sprintf("| `%s` | (new) | %s | |", q.Name, q.Display()))
-		case old.Display() != q.Display() || old.Formula != q.Formula || old.Text != q.Text:
+			rows = append(rows, fmt.Sprintf("| `%s` | (new) | %s | |", q.Name, rb.Display(q)))
+		case ra.Display(old) != rb.Display(q) || old.Formula != q.Formula || old.Text != q.Text:
 			how := ""
 			if old.Formula != q.Formula {
 				how = " (formula changed)"
 			}
-			rows = append(rows, fmt.Sprintf("| `%s` | %s | %s | %s%s |", q.Name, old.Display(), q.Display(), change(a, q), how))
+			rows = append(rows, fmt.Sprintf("| `%s` | %s | %s | %s%s |", q.Name, ra.Display(old), rb.Display(q), change(ra, rb, q), how))
 		}
 	}
 	for _, q := range a.Quantities() {
 		if _, ok := b.Quantity(q.Name); !ok {
-			rows = append(rows, fmt.Sprintf("| `%s` | %s | (removed) | |", q.Name, q.Display()))
+			rows = append(rows, fmt.Sprintf("| `%s` | %s | (removed) | |", q.Name, ra.Display(q)))
 		}
 	}
 	fmt.Fprintf(&w, "\n## Quantities\n\n")
@@ -139,23 +140,29 @@ func diffMarkdown(oldName, newName string, a, b *engine.Sheet) []byte {
 	return w.Bytes()
 }
 
-func passText(rq *engine.Require) string {
+func passText(r *engine.Result, rq *engine.Require) string {
+	pass, known := r.Pass(rq)
 	switch {
-	case !rq.Known:
+	case !known:
 		return "cannot evaluate"
-	case rq.Pass:
+	case pass:
 		return "PASS"
 	}
 	return "**FAIL**"
 }
 
 // change writes the difference new − old of a quantity when both are comparable.
-func change(a *engine.Sheet, q *engine.Quantity) string {
-	old, ok := a.Quantity(q.Name)
-	if !ok || !old.Known || !q.Known || old.Value.D != q.Value.D || old.Value.K != q.Value.K {
+func change(ra, rb *engine.Result, q *engine.Quantity) string {
+	old, ok := ra.Sheet().Quantity(q.Name)
+	if !ok {
 		return ""
 	}
-	d, err := units.Sub(q.Value, old.Value)
+	ov, ok1 := ra.Value(old)
+	nv, ok2 := rb.Value(q)
+	if !ok1 || !ok2 || ov.D != nv.D || ov.K != nv.K {
+		return ""
+	}
+	d, err := units.Sub(nv, ov)
 	if err != nil || d.V == 0 {
 		return ""
 	}

@@ -29,7 +29,7 @@ func cmdExport(e *Env, args []string) int {
 	if !ev.ok() {
 		return ExitBadSheet
 	}
-	data, err := report.CHeader(ev.sheet)
+	data, err := report.CHeader(ev.result)
 	if err != nil {
 		fmt.Fprintf(e.Stderr, "rfledger export: %v\n", err)
 		return ExitBadSheet

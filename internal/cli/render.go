@@ -16,19 +16,21 @@ import (
 // evaluated is a loaded, evaluated and analysed worksheet.
 type evaluated struct {
 	sheet    *engine.Sheet
+	result   *engine.Result
 	analysis *engine.Analysis
 	diags    engine.Diagnostics // everything found, sorted; errors mean the sheet cannot be evaluated
 }
 
 // run loads, evaluates and (unless skipped) analyses a worksheet.
 func evaluate(path string, set []engine.Override, fsys fs.FS, ao *engine.AnalysisOptions) *evaluated {
-	sh, diags := engine.Load(path, engine.Options{Library: rflib.Library(), Set: set, FS: fsys})
-	ev := &evaluated{sheet: sh}
+	sh, diags := engine.Load(path, engine.Options{Library: rflib.Library(), FS: fsys})
 	// Evaluate even when loading found errors: failed quantities are skipped, and the
 	// user sees every error in the file at once, run-time ones included.
-	diags = append(diags, sh.Eval()...)
+	r, ediags := sh.Eval(set...)
+	ev := &evaluated{sheet: sh, result: r}
+	diags = append(diags, ediags...)
 	if !diags.HasErrors() && ao != nil {
-		a, ds := sh.Analyze(*ao)
+		a, ds := engine.Analyze(r, *ao)
 		ev.analysis = a
 		diags = append(diags, ds...)
 	}
@@ -73,7 +75,7 @@ func progress(e *Env) func(string, int, int) {
 
 // output is what render produces: the main file and the charts beside it.
 func output(ev *evaluated, asJSON bool, out string) ([]byte, []report.File) {
-	in := report.Input{Sheet: ev.sheet, Analysis: ev.analysis, Warnings: ev.diags}
+	in := report.Input{Result: ev.result, Analysis: ev.analysis, Warnings: ev.diags}
 	if asJSON {
 		return report.JSON(in), nil
 	}
@@ -158,8 +160,9 @@ func cmdCheck(e *Env, args []string) int {
 		}
 		sh := ev.sheet
 		fails := 0
+		r := ev.result
 		for _, rq := range sh.Requires {
-			if !rq.Known || !rq.Pass {
+			if pass, _ := r.Pass(rq); !pass {
 				fails++
 			}
 		}
@@ -172,14 +175,14 @@ func cmdCheck(e *Env, args []string) int {
 		}
 		fmt.Fprintf(e.Stdout, "%s: %s, %d of %d requirements hold", p, verdict, len(sh.Requires)-fails, len(sh.Requires))
 		if f, ok := sh.Quantity(sh.Focus); ok {
-			fmt.Fprintf(e.Stdout, "; %s = %s", f.Name, f.Display())
+			fmt.Fprintf(e.Stdout, "; %s = %s", f.Name, r.Display(f))
 		}
 		fmt.Fprintln(e.Stdout)
 		for _, rq := range sh.Requires {
-			if !rq.Known || !rq.Pass {
+			if pass, _ := r.Pass(rq); !pass {
 				fmt.Fprintf(e.Stdout, "  failed: %s", rq.That)
 				if q, ok := sh.Quantity(rq.Subject); ok {
-					fmt.Fprintf(e.Stdout, " (%s = %s)", q.Name, q.Display())
+					fmt.Fprintf(e.Stdout, " (%s = %s)", q.Name, r.Display(q))
 				}
 				fmt.Fprintln(e.Stdout)
 			}

@@ -137,14 +137,15 @@ func num(v float64) *float64 {
 
 // JSON renders the result as the format-1 JSON contract.
 func JSON(in Input) []byte {
-	sh := in.Sheet
+	in = in.filled()
+	sh, r := in.Sheet, in.Result
 	doc := jsonDoc{Format: 1, Title: sh.Title, Summary: sh.Summary, Focus: sh.Focus, Hash: sh.Hash, Pass: true,
 		Quantities: map[string]jsonQ{}, Chains: map[string]jsonChain{},
 		Requirements: []jsonReq{}, Sensitivity: []jsonSens{}, Sweeps: []jsonSweep{}, Solves: []jsonSolve{}, Warnings: []string{}, Budget: []jsonContribution{}}
 	for _, q := range sh.Quantities() {
-		v, unit := engine.QuantityNumber(q)
-		jq := jsonQ{Unit: unit, Kind: "input", Note: q.Note, Source: q.Source, Warnings: q.Warnings}
-		if q.Known {
+		v, unit := r.Number(q)
+		jq := jsonQ{Unit: unit, Kind: "input", Note: q.Note, Source: q.Source, Warnings: r.Warnings(q)}
+		if r.Known(q) {
 			jq.Value = num(v)
 		}
 		if !q.Input() {
@@ -156,11 +157,11 @@ func JSON(in Input) []byte {
 		doc.Quantities[q.Name] = jq
 	}
 	for _, rq := range sh.Requires {
-		pass := rq.Known && rq.Pass
+		pass := passes(r, rq)
 		doc.Pass = doc.Pass && pass
 		doc.Requirements = append(doc.Requirements, jsonReq{That: rq.That, Pass: pass, Note: rq.Note})
 	}
-	for _, ci := range chains(sh) {
+	for _, ci := range chains(r) {
 		doc.Chains[ci.chain.Name] = chainJSON(ci)
 	}
 	for _, d := range in.Warnings {

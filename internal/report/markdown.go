@@ -14,6 +14,7 @@ import (
 // page accumulates the Markdown and the chart files.
 type page struct {
 	in     Input
+	r      *engine.Result
 	b      bytes.Buffer
 	files  []File
 	chains []chainInfo
@@ -23,7 +24,8 @@ func (p *page) f(format string, args ...any) { fmt.Fprintf(&p.b, format, args...
 
 // Markdown renders the budget page. The charts it links come back as files to write beside it.
 func Markdown(in Input) ([]byte, []File) {
-	p := &page{in: in, chains: chains(in.Sheet)}
+	in = in.filled()
+	p := &page{in: in, r: in.Result, chains: chains(in.Result)}
 	sh := in.Sheet
 	title := sh.Title
 	if title == "" {
@@ -61,9 +63,9 @@ func (p *page) verdict() {
 	fails, unknown := 0, 0
 	for _, rq := range sh.Requires {
 		switch {
-		case !rq.Known:
+		case !known(p.r, rq):
 			unknown++
-		case !rq.Pass:
+		case !passes(p.r, rq):
 			fails++
 		}
 	}
@@ -80,7 +82,7 @@ func (p *page) verdict() {
 		p.f(".**\n\n")
 	}
 	if f, ok := sh.Quantity(sh.Focus); ok {
-		p.f("Focus: `%s` = **%s**.\n\n", f.Name, f.Display())
+		p.f("Focus: `%s` = **%s**.\n\n", f.Name, p.r.Display(f))
 	}
 	if a := p.in.Analysis; a != nil {
 		for _, so := range a.Solves {
@@ -97,13 +99,13 @@ func (p *page) verdict() {
 	for _, rq := range sh.Requires {
 		value := ""
 		if q, ok := sh.Quantity(rq.Subject); ok {
-			value = q.Display()
+			value = p.r.Display(q)
 		}
 		result := "PASS"
 		switch {
-		case !rq.Known:
+		case !known(p.r, rq):
 			result = "**cannot evaluate**"
-		case !rq.Pass:
+		case !passes(p.r, rq):
 			result = "**FAIL**"
 		}
 		p.f("| %s | %s | %s | %s |\n", code(rq.That), value, result, cell(rq.Note))
@@ -153,10 +155,10 @@ func (p *page) lineItems() {
 				how = code("= " + q.Formula)
 			}
 			key := strings.TrimPrefix(q.Name, g.Name+".")
-			if len(q.Warnings) > 0 {
+			if len(p.r.Warnings(q)) > 0 {
 				key += " (warning)"
 			}
-			p.f("| %s | %s | %s | %s | %s | %s |\n", cell(key), q.Display(), how, tolText(q.Tol), cell(q.Note), cell(q.Source))
+			p.f("| %s | %s | %s | %s | %s | %s |\n", cell(key), p.r.Display(q), how, tolText(q.Tol), cell(q.Note), cell(q.Source))
 		}
 		p.f("\n")
 	}
@@ -176,10 +178,10 @@ func (p *page) cascades() {
 		in, hasIn := ci.inputDBm()
 		nin, hasNoise := ci.noiseInDBm()
 		if hasIn {
-			p.f("Signal at the chain input: `%s` = %s. ", ci.input.Name, ci.input.Display())
+			p.f("Signal at the chain input: `%s` = %s. ", ci.input.Name, p.r.Display(ci.input))
 		}
 		if hasNoise {
-			p.f("Noise in `%s` = %s at T0 = 290 K: %s dBm.", ci.noise.Name, ci.noise.Display(), db2(nin))
+			p.f("Noise in `%s` = %s at T0 = 290 K: %s dBm.", ci.noise.Name, p.r.Display(ci.noise), db2(nin))
 		}
 		if hasIn || hasNoise {
 			p.f("\n\n")
@@ -278,14 +280,14 @@ func (p *page) budget() {
 	for _, c := range a.Budget {
 		abs += math.Abs(c.Value)
 	}
-	p.f("`%s` = %s is the sum of these terms, largest first (followed through the quantities its formula names):\n\n", a.Focus.Name, a.Focus.Display())
+	p.f("`%s` = %s is the sum of these terms, largest first (followed through the quantities its formula names):\n\n", a.Focus.Name, p.r.Display(a.Focus))
 	p.f("| # | item | contribution | running total | share of the total swing |\n| ---: | --- | ---: | ---: | ---: |\n")
 	run := 0.0
 	for i, c := range a.Budget {
 		run += c.Value
 		p.f("| %d | %s | %s %s | %s | %s |\n", i+1, code(c.Item), signed(c.Value), c.Unit, db2(run), pct(math.Abs(c.Value)/abs))
 	}
-	p.f("| | **total** | | **%s %s** | |\n\n", db2(engine.Number(a.Focus, a.Focus.Value)), a.Unit)
+	p.f("| | **total** | | **%s %s** | |\n\n", db2(engine.Number(a.Focus, a.FocusValue)), a.Unit)
 	p.budgetChart()
 	p.chainShares()
 }

@@ -17,12 +17,31 @@ import (
 
 // Input is what a report is made from.
 type Input struct {
-	Sheet    *engine.Sheet
+	Result   *engine.Result     // the evaluation the page shows
+	Sheet    *engine.Sheet      // the result's sheet (filled in from Result when nil)
 	Analysis *engine.Analysis   // nil when the analyses were not run
 	Warnings engine.Diagnostics // warnings from evaluation and the analyses
 	// ChartBase is the file name prefix for charts written beside the page ("budget" gives
 	// "budget.sweep-1.svg"); "" leaves the charts out.
 	ChartBase string
+}
+
+// filled returns the input with Sheet set from Result.
+func (in Input) filled() Input {
+	if in.Sheet == nil && in.Result != nil {
+		in.Sheet = in.Result.Sheet()
+	}
+	return in
+}
+
+func known(r *engine.Result, rq *engine.Require) bool {
+	_, k := r.Pass(rq)
+	return k
+}
+
+func passes(r *engine.Result, rq *engine.Require) bool {
+	p, _ := r.Pass(rq)
+	return p
 }
 
 // File is a file written beside the page.
@@ -40,26 +59,33 @@ type chainInfo struct {
 	err    error
 	input  *engine.Quantity // the level entering the chain, when the group has one
 	noise  *engine.Quantity // the bandwidth, for the integrated noise level
+	inV    units.Q          // their values
+	noiseV units.Q
 }
 
 // chains works out every chain's cascade.
-func chains(sh *engine.Sheet) []chainInfo {
+func chains(r *engine.Result) []chainInfo {
+	sh := r.Sheet()
 	var out []chainInfo
 	for _, c := range sh.Chains() {
 		ci := chainInfo{chain: c}
-		ci.stages, ci.notes, ci.err = rflib.Stages(sh.ChainValue(c))
+		ci.stages, ci.notes, ci.err = rflib.Stages(r.Chain(c))
 		if ci.err == nil {
 			ci.cas = rfmath.CascadeChain(ci.stages)
 		}
 		group := c.Name[:max(strings.LastIndex(c.Name, "."), 0)]
 		for _, key := range []string{"level", "input"} {
-			if q, ok := sh.Quantity(join(group, key)); ok && q.Known && q.Value.D == units.Power {
-				ci.input = q
-				break
+			if q, ok := sh.Quantity(join(group, key)); ok {
+				if v, known := r.Value(q); known && v.D == units.Power {
+					ci.input, ci.inV = q, v
+					break
+				}
 			}
 		}
-		if q, ok := sh.Quantity(join(group, "bandwidth")); ok && q.Known && q.Value.D == units.Frequency {
-			ci.noise = q
+		if q, ok := sh.Quantity(join(group, "bandwidth")); ok {
+			if v, known := r.Value(q); known && v.D == units.Frequency {
+				ci.noise, ci.noiseV = q, v
+			}
 		}
 		out = append(out, ci)
 	}
@@ -78,7 +104,7 @@ func (ci chainInfo) inputDBm() (float64, bool) {
 	if ci.input == nil {
 		return 0, false
 	}
-	l, err := ci.input.Value.ToLevel()
+	l, err := ci.inV.ToLevel()
 	if err != nil {
 		return 0, false
 	}
@@ -90,7 +116,7 @@ func (ci chainInfo) noiseInDBm() (float64, bool) {
 	if ci.noise == nil {
 		return 0, false
 	}
-	return rfmath.DBm(rfmath.Thermal(ci.noise.Value.Linear().V, rfmath.T0)), true
+	return rfmath.DBm(rfmath.Thermal(ci.noiseV.Linear().V, rfmath.T0)), true
 }
 
 // db2 formats a decibel number with 2 decimals.

@@ -12,7 +12,7 @@ import (
 	"github.com/rfledger/rfledger/internal/sheettest"
 )
 
-func load(t *testing.T, src string) *engine.Sheet {
+func load(t *testing.T, src string) *engine.Result {
 	t.Helper()
 	sh, diags := sheettest.Eval(src)
 	if diags.HasErrors() {
@@ -25,7 +25,7 @@ func load(t *testing.T, src string) *engine.Sheet {
 // HTML) stays inside its cell and never becomes markup.
 func TestNotesCannotBreakTables(t *testing.T) {
 	sh := load(t, "title = \"A | B <script>\"\n[g]\nx = { is = \"3 dB\", note = \"a | b *c* `d` <b>e</b>\", source = \"x|y\" }\n")
-	page, _ := Markdown(Input{Sheet: sh})
+	page, _ := Markdown(Input{Result: sh})
 	var html bytes.Buffer
 	if err := goldmark.New(goldmark.WithExtensions(extension.GFM)).Convert(page, &html); err != nil {
 		t.Fatal(err)

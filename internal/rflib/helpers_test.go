@@ -21,13 +21,13 @@ type ref struct {
 }
 
 // load evaluates a worksheet held in memory and returns the sheet and all diagnostics.
-func load(t *testing.T, src string) (*engine.Sheet, engine.Diagnostics) {
+func load(t *testing.T, src string) (*engine.Result, engine.Diagnostics) {
 	t.Helper()
 	return sheettest.Eval(src)
 }
 
 // value reads quantity name of an evaluated sheet in unit u.
-func value(t *testing.T, sh *engine.Sheet, name, u string) float64 {
+func value(t *testing.T, sh *engine.Result, name, u string) float64 {
 	t.Helper()
 	return sheettest.Value(t, sh, name, u)
 }
@@ -57,8 +57,8 @@ func runRefs(t *testing.T, preamble string, refs []ref) {
 func evalErr(t *testing.T, formula string) string {
 	t.Helper()
 	sh, diags := load(t, fmt.Sprintf("x = %q\n", "= "+formula))
-	if q, ok := sh.Quantity("x"); ok && q.Known {
-		t.Errorf("%s: evaluated to %s, want an error", formula, q.Display())
+	if q, ok := sh.Sheet().Quantity("x"); ok && sh.Known(q) {
+		t.Errorf("%s: evaluated to %s, want an error", formula, sh.Display(q))
 	}
 	for _, d := range diags {
 		if d.Severity == engine.Error && d.Quantity == "x" {
@@ -76,7 +76,7 @@ func evalWarn(t *testing.T, formula string) []string {
 	if err := diags.Err(); err != nil {
 		t.Fatalf("%s: %v", formula, err)
 	}
-	if q, _ := sh.Quantity("x"); !q.Known {
+	if q, _ := sh.Sheet().Quantity("x"); !sh.Known(q) {
 		t.Fatalf("%s: unknown", formula)
 	}
 	var out []string

@@ -47,6 +47,18 @@ func extreme(name string, want int, doc string) *engine.Func {
 					best = x.Q
 				}
 			}
+			// The result keeps the first argument's form (a level stays a level).
+			if a[0].Q.K == units.Level && best.K == units.Linear {
+				l, err := best.ToLevel()
+				if err != nil {
+					return units.Q{}, err
+				}
+				l.F = a[0].Q.F
+				return l, nil
+			}
+			if a[0].Q.K == units.Linear && best.K == units.Level {
+				return best.Linear(), nil
+			}
 			return best, nil
 		},
 	}

@@ -16,39 +16,46 @@ var Lib = rflib.Library()
 
 // Load loads files (name → text) from an in-memory folder, starting at main, and returns the
 // sheet and what loading found (nothing is evaluated yet).
-func Load(files map[string]string, main string, set ...engine.Override) (*engine.Sheet, engine.Diagnostics) {
+func Load(files map[string]string, main string) (*engine.Sheet, engine.Diagnostics) {
 	fsys := fstest.MapFS{}
 	for name, text := range files {
 		fsys[name] = &fstest.MapFile{Data: []byte(text)}
 	}
-	return engine.Load(main, engine.Options{Library: Lib, FS: fsys, Set: set})
+	return engine.Load(main, engine.Options{Library: Lib, FS: fsys})
 }
 
-// Eval loads and evaluates a one-file sheet and returns it with every diagnostic, from
-// loading and from evaluation.
-func Eval(src string, set ...engine.Override) (*engine.Sheet, engine.Diagnostics) {
-	sh, diags := Load(map[string]string{"sheet.toml": src}, "sheet.toml", set...)
-	return sh, append(diags, sh.Eval()...)
+// EvalFS loads files as Load does and evaluates the sheet with the overrides, returning the
+// result with every diagnostic, from loading and from evaluation.
+func EvalFS(files map[string]string, main string, set ...engine.Override) (*engine.Result, engine.Diagnostics) {
+	sh, diags := Load(files, main)
+	r, ediags := sh.Eval(set...)
+	return r, engine.SortDiagnostics(append(diags, ediags...))
+}
+
+// Eval loads and evaluates a one-file sheet and returns the result with every diagnostic.
+func Eval(src string, set ...engine.Override) (*engine.Result, engine.Diagnostics) {
+	return EvalFS(map[string]string{"sheet.toml": src}, "sheet.toml", set...)
 }
 
 // Value returns a known quantity's value in the unit named ("dBm", "m", "" for a plain
 // number), failing the test when there is none.
-func Value(t testing.TB, sh *engine.Sheet, name, unit string) float64 {
+func Value(t testing.TB, r *engine.Result, name, unit string) float64 {
 	t.Helper()
-	q, ok := sh.Quantity(name)
+	q, ok := r.Sheet().Quantity(name)
 	if !ok {
 		t.Fatalf("no quantity %q", name)
 	}
-	if !q.Known {
+	v, ok := r.Value(q)
+	if !ok {
 		t.Fatalf("%s is unknown", name)
 	}
 	u, err := units.ParseUnit(unit)
 	if err != nil {
 		t.Fatalf("unit %q: %v", unit, err)
 	}
-	x, err := q.Value.In(u)
+	x, err := v.In(u)
 	if err != nil {
-		t.Fatalf("%s = %s in %s: %v", name, q.Value, unit, err)
+		t.Fatalf("%s = %s in %s: %v", name, v, unit, err)
 	}
 	return x
 }

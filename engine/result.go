@@ -1,0 +1,333 @@
+package engine
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/rfledger/rfledger/units"
+)
+
+// Result is one evaluation of a sheet: every quantity's value (or that it is unknown), the
+// validity warnings its functions raised, every requirement's outcome, and the diagnostics
+// of the evaluation. The sheet itself is not changed; a Result is not safe for concurrent
+// changes, but any number of goroutines may read one.
+type Result struct {
+	sh     *Sheet
+	vals   []float64 // per node, in the node's type
+	known  []bool
+	warn   [][]string // per node
+	pass   []int8     // per requirement: 1 holds, 0 fails, -1 unknown
+	chains []ChainValue
+	diags  Diagnostics
+	set    []Override
+
+	call  Call
+	args  []Value // argument stack of function calls
+	quiet bool
+}
+
+// Sheet returns the sheet the result belongs to.
+func (r *Result) Sheet() *Sheet { return r.sh }
+
+// Diagnostics returns the evaluation's errors and warnings, positioned at the quantity
+// concerned (overrides that could not be applied among them).
+func (r *Result) Diagnostics() Diagnostics { return r.diags }
+
+// Overrides returns the overrides the result was evaluated with.
+func (r *Result) Overrides() []Override { return r.set }
+
+// Value returns a quantity's value; ok is false when it could not be evaluated.
+func (r *Result) Value(q *Quantity) (units.Q, bool) {
+	if !r.known[q.node] {
+		return units.Q{}, false
+	}
+	v := r.sh.nodes[q.node].ty
+	v.V = r.vals[q.node]
+	return v, true
+}
+
+// Known reports whether a quantity could be evaluated.
+func (r *Result) Known(q *Quantity) bool { return r.known[q.node] }
+
+// Display formats a quantity's value in its display unit ("14.00 dBm", "2.4 km"), or
+// "unknown".
+func (r *Result) Display(q *Quantity) string {
+	v, ok := r.Value(q)
+	if !ok {
+		return "unknown"
+	}
+	return v.Format(q.DisplayUnit())
+}
+
+// Number returns a quantity's value as a number in the unit the report uses for it (its
+// display unit, else the unit its type gives), and that unit's symbol.
+func (r *Result) Number(q *Quantity) (float64, string) {
+	v, ok := r.Value(q)
+	if !ok {
+		return math.NaN(), unitName(q)
+	}
+	return Number(q, v), unitName(q)
+}
+
+// Warnings returns the validity warnings a quantity's functions raised.
+func (r *Result) Warnings(q *Quantity) []string { return r.warn[q.node] }
+
+// Pass returns whether a requirement holds; known is false when it could not be evaluated.
+func (r *Result) Pass(rq *Require) (pass, known bool) {
+	p := r.pass[rq.index]
+	return p == 1, p >= 0
+}
+
+// Chain returns a chain's evaluated stages.
+func (r *Result) Chain(c *Chain) *ChainValue {
+	cv := r.chains[r.sh.nodes[c.node].chainIdx]
+	cv.Stages = append([]StageValue(nil), cv.Stages...)
+	return &cv
+}
+
+// Eval evaluates every quantity and requirement, with the given inputs replaced. Override
+// problems (no such input, a derived quantity, a value of another kind) come back among the
+// diagnostics and leave the input as written. A quantity that fails is unknown, and what
+// depends on it is skipped quietly.
+func (s *Sheet) Eval(set ...Override) (*Result, Diagnostics) {
+	r := s.newResult()
+	r.set = set
+	r.diags = append(r.diags, r.applyAll(set)...)
+	r.run(false)
+	r.diags = sortDiags(r.diags)
+	return r, r.diags
+}
+
+// newResult returns a result holding the inputs' nominal values, nothing evaluated yet.
+func (s *Sheet) newResult() *Result {
+	r := &Result{
+		sh:     s,
+		vals:   make([]float64, len(s.nodes)),
+		known:  make([]bool, len(s.nodes)),
+		warn:   make([][]string, len(s.nodes)),
+		pass:   make([]int8, len(s.Requires)),
+		chains: make([]ChainValue, s.nchains),
+	}
+	for id, n := range s.nodes {
+		if n.q != nil && n.code == nil && n.ok && n.q.Formula == "" {
+			r.vals[id], r.known[id] = n.input.V, true
+		}
+		if n.chain != nil {
+			cv := &r.chains[n.chainIdx]
+			cv.Name = n.chain.Name
+			cv.Stages = make([]StageValue, len(n.chain.Stages))
+			for i, st := range n.chain.Stages {
+				cv.Stages[i].Label = st.Label
+			}
+		}
+	}
+	return r
+}
+
+// clone returns a copy of r that can be changed on its own (for an analysis scenario).
+func (r *Result) clone() *Result {
+	c := &Result{
+		sh:     r.sh,
+		vals:   append([]float64(nil), r.vals...),
+		known:  append([]bool(nil), r.known...),
+		warn:   make([][]string, len(r.warn)),
+		pass:   append([]int8(nil), r.pass...),
+		chains: make([]ChainValue, len(r.chains)),
+		set:    r.set,
+		quiet:  true,
+	}
+	for i, cv := range r.chains {
+		c.chains[i] = ChainValue{Name: cv.Name, Stages: append([]StageValue(nil), cv.Stages...)}
+	}
+	c.call.quiet = true
+	return c
+}
+
+// applyAll replaces inputs by overrides; it returns what could not be applied.
+func (r *Result) applyAll(set []Override) Diagnostics {
+	var diags Diagnostics
+	for _, o := range set {
+		id, v, d := r.sh.override(o)
+		if d != nil {
+			diags = append(diags, *d)
+			continue
+		}
+		r.vals[id], r.known[id] = v.V, true
+	}
+	return diags
+}
+
+// override checks one override and returns the input's node and the value in its type.
+func (s *Sheet) override(o Override) (int, units.Q, *Diagnostic) {
+	r := Range{File: "--set"}
+	bad := func(hint, format string, args ...any) (int, units.Q, *Diagnostic) {
+		return 0, units.Q{}, &Diagnostic{Severity: Error, Quantity: o.Name, Summary: fmt.Sprintf(format, args...), Hint: hint, Range: r}
+	}
+	id, ok := s.byName[o.Name]
+	if !ok || s.nodes[id].q == nil {
+		return bad(s.suggest(o.Name, scope{}), "no such quantity")
+	}
+	n := s.nodes[id]
+	if n.q.Formula != "" {
+		return bad("only inputs can be set; it is \"= "+n.q.Formula+"\"", "derived from a formula")
+	}
+	v, _, err := units.Parse(o.Value)
+	if err != nil {
+		return bad(unitHint(err), "%s", unitMsg(err))
+	}
+	if !n.ok {
+		return bad("", "cannot be set: it has an error of its own")
+	}
+	if v.D != n.ty.D || (v.K == units.Rate) != (n.ty.K == units.Rate) {
+		return bad("", "is %s; %s is not of the same kind", n.q.Text, o.Value)
+	}
+	if !finite(v) {
+		return bad("", "%s is not a finite number", o.Value)
+	}
+	// Held in the input's own form: a linear value for a level input becomes its level.
+	switch {
+	case n.ty.K == units.Level && v.K == units.Linear:
+		l, err := v.ToLevel()
+		if err != nil {
+			return bad(unitHint(err), "%s", unitMsg(err))
+		}
+		v = l
+	case n.ty.K == units.Linear && v.K == units.Level:
+		v = v.Linear()
+	}
+	return id, v, nil
+}
+
+// run evaluates every node in order and then the requirements. With quiet set, warnings and
+// errors are not recorded (analyses re-evaluate many times).
+func (r *Result) run(quiet bool) {
+	r.quiet, r.call.quiet = quiet, quiet
+	for _, id := range r.sh.order {
+		r.evalNode(id)
+	}
+	r.requirements()
+}
+
+// evalNode computes one node from its dependencies' values, recording warnings and errors
+// unless the result is quiet.
+func (r *Result) evalNode(id int) {
+	n := r.sh.nodes[id]
+	if !n.ok || !n.typed {
+		r.known[id] = false
+		return
+	}
+	for _, d := range n.deps {
+		if !r.known[d] {
+			r.known[id] = false
+			return
+		}
+	}
+	switch {
+	case n.chain != nil:
+		r.fillChain(n)
+	case n.code == nil:
+		// an input: its value is in place
+	default:
+		if !r.quiet {
+			r.call.warnings = r.call.warnings[:0]
+		}
+		v, err := n.code.eval(r)
+		if err == nil && (math.IsNaN(v) || math.IsInf(v, 0)) {
+			err = fmt.Errorf("result is %s", units.FormatNum(v))
+		}
+		if !r.quiet {
+			r.record(n, err)
+		}
+		if err != nil {
+			r.known[id] = false
+			return
+		}
+		r.vals[id] = v
+	}
+	r.known[id] = true
+}
+
+// record keeps a node's warnings and error as diagnostics.
+func (r *Result) record(n *node, err error) {
+	q := n.q
+	if len(r.call.warnings) > 0 {
+		r.warn[q.node] = append([]string(nil), r.call.warnings...)
+		for _, w := range r.call.warnings {
+			r.diags = append(r.diags, Diagnostic{Severity: Warning, Quantity: q.Name, Summary: w, Range: q.Range})
+		}
+	} else {
+		r.warn[q.node] = nil
+	}
+	if err != nil {
+		r.diags = append(r.diags, runtimeDiag(err, q.Name, q.Formula, q.Range, n.at))
+	}
+}
+
+// runtimeDiag positions an evaluation error in its formula.
+func runtimeDiag(err error, name, formula string, rng Range, st site) Diagnostic {
+	msg, hint := splitErr(err)
+	from := 0
+	if ce, ok := err.(*callError); ok {
+		msg, hint, from = ce.msg, ce.hint, ce.from
+	}
+	if st.f != nil {
+		rng = formulaRange(st, formula, from)
+	}
+	return Diagnostic{Severity: Error, Quantity: name, Summary: msg, Hint: hint, Range: rng}
+}
+
+// fillChain gathers a chain's stage values from its stage quantities.
+func (r *Result) fillChain(n *node) {
+	cv := &r.chains[n.chainIdx]
+	for i, st := range n.chain.Stages {
+		sv := &cv.Stages[i]
+		sv.has = 0
+		for _, k := range st.Keys {
+			q := st.Values[k]
+			if !r.known[q.node] {
+				continue
+			}
+			v := r.sh.nodes[q.node].ty
+			v.V = r.vals[q.node]
+			sv.set(k, v)
+		}
+	}
+}
+
+// requirements evaluates every requirement.
+func (r *Result) requirements() {
+	for _, rq := range r.sh.Requires {
+		r.pass[rq.index] = -1
+		if rq.code == nil {
+			continue
+		}
+		skip := false
+		for _, d := range rq.deps {
+			skip = skip || !r.known[d]
+		}
+		if skip {
+			continue
+		}
+		ok, err := rq.code.test(r)
+		if err != nil {
+			if !r.quiet {
+				r.diags = append(r.diags, runtimeDiag(err, "require", rq.That, rq.Range, rq.at))
+			}
+			continue
+		}
+		r.pass[rq.index] = 0
+		if ok {
+			r.pass[rq.index] = 1
+		}
+	}
+}
+
+// allPass reports whether every requirement holds.
+func (r *Result) allPass() bool {
+	for _, p := range r.pass {
+		if p != 1 {
+			return false
+		}
+	}
+	return true
+}
