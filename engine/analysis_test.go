@@ -138,7 +138,7 @@ func TestSweepPointsMatchDirectEvaluation(t *testing.T) {
 	near(t, "margin at the crossing", value(t, direct, "link.margin", "dB"), 20, 1e-6)
 }
 
-func evalFile(t *testing.T, path string, set ...engine.Override) *engine.Result {
+func evalFile(t testing.TB, path string, set ...engine.Override) *engine.Result {
 	t.Helper()
 	sh, diags := engine.Load(path, engine.Options{Library: lib})
 	if err := diags.Err(); err != nil {

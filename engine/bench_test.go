@@ -3,6 +3,7 @@ package engine_test
 import (
 	"fmt"
 	"math"
+	"os"
 	"strings"
 	"testing"
 
@@ -89,4 +90,24 @@ func BenchmarkEvalHandWritten(b *testing.B) {
 func TestDemoMatchesHandWritten(t *testing.T) {
 	sh := evalFile(t, demo)
 	near(t, "link.margin", value(t, sh, "link.margin", "dB"), handMargin(), 1e-9)
+}
+
+// BenchmarkRerunDemo evaluates the demo again into the same result: the evaluator's own cost.
+func BenchmarkRerunDemo(b *testing.B) {
+	r := evalFile(b, demo)
+	for b.Loop() {
+		engine.Rerun(r)
+	}
+}
+
+// BenchmarkLoadFile loads the sheet named by RFLEDGER_BENCH_SHEET (for profiling by hand).
+func BenchmarkLoadFile(b *testing.B) {
+	path := os.Getenv("RFLEDGER_BENCH_SHEET")
+	if path == "" {
+		b.Skip("RFLEDGER_BENCH_SHEET not set")
+	}
+	for b.Loop() {
+		sh, _ := engine.Load(path, engine.Options{Library: lib})
+		sh.Eval()
+	}
 }

@@ -23,6 +23,27 @@ func (l *loader) compile(prev *Sheet) {
 		texts[i], todo[i] = n.q.Formula, n.ok && n.q.Formula != ""
 	}
 	reuse := prev.parses()
+	// A formula text written many times (the same line in every group) is parsed once.
+	first := make(map[string]int, len(sites))
+	unique := make([]int, 0, len(sites))
+	for i := range sites {
+		if !todo[i] {
+			continue
+		}
+		if _, seen := first[texts[i]]; !seen {
+			first[texts[i]] = i
+			unique = append(unique, i)
+		}
+	}
+	parses := make([]*parsed, len(sites))
+	parallel(len(unique), func(j int) {
+		i := unique[j]
+		if p, ok := reuse[texts[i]]; ok {
+			parses[i] = p
+		} else {
+			parses[i] = parseFormula(sh.lib, texts[i])
+		}
+	})
 	type lowered struct {
 		p    *parsed
 		code *inode
@@ -34,10 +55,7 @@ func (l *loader) compile(prev *Sheet) {
 		if !todo[i] {
 			return
 		}
-		p, ok := reuse[texts[i]]
-		if !ok {
-			p = parseFormula(sh.lib, texts[i])
-		}
+		p := parses[first[texts[i]]]
 		o := &out[i]
 		o.p = p
 		if len(p.errs) > 0 {
@@ -57,7 +75,7 @@ func (l *loader) compile(prev *Sheet) {
 			continue
 		}
 		o := out[i]
-		if _, ok := reuse[texts[i]]; !ok {
+		if _, ok := reuse[texts[i]]; !ok && first[texts[i]] == i {
 			sh.nparsed++
 		}
 		if st.req != nil {

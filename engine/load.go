@@ -8,7 +8,7 @@ import (
 	"io/fs"
 	"path"
 	"regexp"
-	"sort"
+	"slices"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -199,34 +199,37 @@ func (l *loader) document(f *sheetFile, doc map[string]any) {
 
 // ordered returns the keys of table m (at path) in file order.
 func (l *loader) ordered(f *sheetFile, path string, m map[string]any) []string {
-	keys := make([]string, 0, len(m))
+	type keyAt struct {
+		key       string
+		line, col int
+	}
+	keys := make([]keyAt, 0, len(m))
 	for k := range m {
-		keys = append(keys, k)
+		full := join(path, k)
+		line, col := 1<<30, 0
+		if p, ok := f.ix.get(full); ok {
+			line, col = p.Key.Line, p.Key.Col
+		} else if p, ok := f.ix.get(full + "[0]"); ok {
+			line, col = p.Key.Line, p.Key.Col
+		} else if p, ok := f.ix.first[full]; ok { // a table only implied by [k.sub] or [[k.chain]]
+			line, col = p.Line, p.Col
+		}
+		keys = append(keys, keyAt{k, line, col})
 	}
-	pos := func(k string) (int, int) {
-		if p, ok := f.ix.get(join(path, k)); ok {
-			return p.Key.Line, p.Key.Col
+	slices.SortFunc(keys, func(a, b keyAt) int {
+		if a.line != b.line {
+			return a.line - b.line
 		}
-		if p, ok := f.ix.get(join(path, k) + "[0]"); ok {
-			return p.Key.Line, p.Key.Col
+		if a.col != b.col {
+			return a.col - b.col
 		}
-		if p, ok := f.ix.first[join(path, k)]; ok { // a table only implied by [k.sub] or [[k.chain]]
-			return p.Line, p.Col
-		}
-		return 1 << 30, 0
-	}
-	sort.Slice(keys, func(i, j int) bool {
-		li, ci := pos(keys[i])
-		lj, cj := pos(keys[j])
-		if li != lj {
-			return li < lj
-		}
-		if ci != cj {
-			return ci < cj
-		}
-		return keys[i] < keys[j]
+		return strings.Compare(a.key, b.key)
 	})
-	return keys
+	out := make([]string, len(keys))
+	for i, k := range keys {
+		out[i] = k.key
+	}
+	return out
 }
 
 // member adds one key of a group: a quantity, a nested group or a chain.

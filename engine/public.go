@@ -212,9 +212,17 @@ func (s *Sheet) resolve(name string, sc scope) (int, bool) {
 		id, ok := s.byName[join(sc.part, name)]
 		return id, ok
 	}
+	// Look "group.name" up for each enclosing group, in one buffer (a map look-up with
+	// string(bytes) does not allocate).
+	var buf [128]byte
 	g := sc.group
 	for {
-		if id, ok := s.byName[join(g, name)]; ok {
+		b := buf[:0]
+		if g != "" {
+			b = append(append(b, g...), '.')
+		}
+		b = append(b, name...)
+		if id, ok := s.byName[string(b)]; ok {
 			return id, true
 		}
 		if g == sc.part {
