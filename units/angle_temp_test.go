@@ -33,7 +33,7 @@ func TestAnglePressureCelsius(t *testing.T) {
 		}
 		// Read back in the unit it was written in, the offset undone.
 		back, err := q.In(u)
-		num, _ := Parse(strings.Fields(c.in)[0])
+		num, _, _ := Parse(strings.Fields(c.in)[0])
 		if err != nil || math.Abs(back-num.V) > 1e-9 {
 			t.Errorf("%s read back in %s = %v, %v", c.in, u.Sym, back, err)
 		}
