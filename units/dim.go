@@ -32,6 +32,9 @@ var (
 	Temperature = Dim{dimK: 1}
 	Area        = Dim{dimL: 2}
 	Speed       = Dim{dimL: 1, dimT: -1}
+	// Pressure is force per area (Pa); Density is mass per volume (kg/m^3, water vapour in g/m^3).
+	Pressure = Dim{dimL: -1, dimM: 1, dimT: -2}
+	Density  = Dim{dimL: -3, dimM: 1}
 	// PowerDensity is power per unit bandwidth (W/Hz), the dimension of noise density N0.
 	PowerDensity = Power.Div(Frequency)
 	// Boltzmann is the dimension of k (W/K/Hz = J/K).
@@ -119,6 +122,7 @@ var dimNames = map[Dim]string{
 	Temperature:                "K",
 	Area:                       "m^2",
 	Speed:                      "m/s",
+	Pressure:                   "Pa",
 	Power.Div(Area):            "W/m^2",
 	Voltage.Div(Length):        "V/m",
 	Current.Div(Length):        "A/m",

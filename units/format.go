@@ -35,6 +35,9 @@ func (q Q) UnitName() string {
 		}
 	}
 	if q.D.IsNone() {
+		if q.F == flavorAngle {
+			return "deg"
+		}
 		return ""
 	}
 	return q.D.String()
@@ -58,6 +61,9 @@ func (q Q) String() string {
 	if name == "" {
 		return FormatNum(q.V)
 	}
+	if name == "deg" {
+		return joinUnit(FormatNum(q.V*180/math.Pi), name)
+	}
 	if !prefixable(name) {
 		return joinUnit(FormatNum(q.V), name)
 	}
@@ -75,7 +81,7 @@ func (q Q) In(u *Unit) (float64, error) {
 	case u.K == q.K && u.K == Level:
 		return q.V - u.Offset, nil
 	case u.K == q.K:
-		return q.V / u.Scale, nil
+		return (q.V - u.Offset) / u.Scale, nil
 	case u.K == Level && q.K == Linear:
 		l, err := q.ToLevel()
 		if err != nil {
@@ -157,7 +163,7 @@ func FormatNum(v float64) string {
 // prefixable units take an SI prefix in engineering notation.
 func prefixable(name string) bool {
 	switch name {
-	case "m", "s", "Hz", "W", "J", "V", "A", "ohm", "bit/s", "Bd", "V/m", "A/m", "W/m^2", "W/Hz", "W/K", "m/s":
+	case "m", "s", "Hz", "W", "J", "V", "A", "ohm", "bit/s", "Bd", "V/m", "A/m", "W/m^2", "W/Hz", "W/K", "m/s", "Pa":
 		return true
 	}
 	return false

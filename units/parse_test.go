@@ -72,8 +72,8 @@ func TestParse(t *testing.T) {
 		{"1 mi", Length, Linear, 1609.344, "m"},
 		// 1 nmi = 1852 m exactly (international nautical mile).
 		{"1 nmi", Length, Linear, 1852, "m"},
-		{"90 deg", None, Linear, math.Pi / 2, ""},
-		{"1 rad", None, Linear, 1, ""},
+		{"90 deg", None, Linear, math.Pi / 2, "deg"}, // an angle shows in degrees (SI Brochure: the degree is accepted for use with the SI)
+		{"1 rad", None, Linear, 1, "deg"},
 		{"5 min", Time, Linear, 300, "s"},
 		{"2 h", Time, Linear, 7200, "s"},
 		{"1 ppm", None, Linear, 1e-6, ""},

@@ -26,14 +26,16 @@ const (
 type Flavor uint8
 
 const (
-	flavorNone  Flavor = iota
-	flavorMilli        // power levels referred to 1 mW (dBm, dBm/Hz)
-	flavorWatt         // power levels referred to 1 W (dBW, dBW/K)
-	flavorMicro        // root-power levels referred to 1 µV (dBuV, dBuV/m)
-	flavorVolt         // root-power levels referred to 1 V
-	flavorIso          // antenna gain over isotropic (dBi)
-	flavorBit          // bit rates (bit/s)
-	flavorSym          // symbol rates (Bd)
+	flavorNone      Flavor = iota
+	flavorMilli            // power levels referred to 1 mW (dBm, dBm/Hz)
+	flavorWatt             // power levels referred to 1 W (dBW, dBW/K)
+	flavorMicro            // root-power levels referred to 1 µV (dBuV, dBuV/m)
+	flavorVolt             // root-power levels referred to 1 V
+	flavorIso              // antenna gain over isotropic (dBi)
+	flavorBit              // bit rates (bit/s)
+	flavorSym              // symbol rates (Bd)
+	flavorAngle            // plane angles written in deg or rad (dimensionless, but not a plain number)
+	flavorRootRatio        // a ratio of two root-power quantities (V/V): its decibels are 20·log10
 )
 
 // Q is a quantity: a number with a dimension and a kind (linear, decibel level, decibel rate).
@@ -62,6 +64,15 @@ func (q Q) IsLevel() bool { return q.K == Level }
 
 // IsRatio reports whether q is a dimensionless decibel ratio (dB, dBi, dBc).
 func (q Q) IsRatio() bool { return q.K == Level && q.D.IsNone() }
+
+// IsAngle reports whether q is a plane angle, a value written in deg or rad (or derived from
+// one by scaling or adding angles). Angles are dimensionless; the flag lets trigonometric
+// functions refuse a bare number, which could be meant in either unit.
+func (q Q) IsAngle() bool { return q.K == Linear && q.D.IsNone() && q.F == flavorAngle }
+
+// IsRootRatio reports whether q is a dimensionless ratio of two root-power quantities (V/V,
+// (V/m)/(V/m)), whose level in decibels is 20·log10, not 10·log10.
+func (q Q) IsRootRatio() bool { return q.K == Linear && q.D.IsNone() && q.F == flavorRootRatio }
 
 // IsNumber reports whether q is a plain dimensionless linear number.
 func (q Q) IsNumber() bool { return q.K == Linear && q.D.IsNone() }
@@ -199,7 +210,11 @@ func Mul(a, b Q) (Q, error) {
 		if !ok {
 			return Q{}, dimRangeErr("multiply", a, b)
 		}
-		return Q{V: a.V * b.V, D: d, F: linFlavor(a, b)}, nil
+		f := linFlavor(a, b)
+		if a.F == flavorAngle && b.F == flavorAngle {
+			f = flavorNone // a product of angles is no angle
+		}
+		return Q{V: a.V * b.V, D: d, F: f}, nil
 	}
 	if a.K == Linear {
 		a, b = b, a // the non-linear operand first
@@ -235,7 +250,14 @@ func Div(a, b Q) (Q, error) {
 		if !ok {
 			return Q{}, dimRangeErr("divide", a, b)
 		}
-		return Q{V: a.V / b.V, D: d, F: linFlavor(a, b)}, nil
+		f := linFlavor(a, b)
+		switch {
+		case d.IsNone() && a.D.root() && b.D.root():
+			f = flavorRootRatio
+		case b.F == flavorAngle:
+			f = flavorNone // angle/angle is a ratio, number/angle no angle
+		}
+		return Q{V: a.V / b.V, D: d, F: f}, nil
 	case a.IsRatio() && b.K == Linear && b.D.IsNone():
 		return Q{V: a.V / b.V, K: Level, F: a.F}, nil
 	case a.IsRatio() && b.K == Linear && b.D == Length:

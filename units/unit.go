@@ -12,7 +12,10 @@ import (
 
 // Unit is a unit a value can be written in. A value v in the unit stands for the quantity
 // Q{V: v*Scale + Offset, D, K}: Scale converts linear and rate values to SI, Offset moves levels
-// to "dB re 1 SI unit" (dBm has Offset −30, dBd +2.15).
+// to "dB re 1 SI unit" (dBm has Offset −30, dBd +2.15). The one linear unit with an offset is
+// the degree Celsius (degC, °C): 15 degC is the absolute temperature 288.15 K, so a °C value is
+// converted to kelvin as it is read, and all arithmetic, differences and tolerances on it are in
+// kelvin (a tolerance is written in K: "15 degC" ± "2 K").
 type Unit struct {
 	Sym    string
 	D      Dim
@@ -28,7 +31,19 @@ func (u *Unit) Of(v float64) Q {
 	if u.K == Level {
 		return Q{V: v + u.Offset, D: u.D, K: Level, F: u.F}
 	}
-	return Q{V: v * u.Scale, D: u.D, K: u.K, F: u.F}
+	return Q{V: v*u.Scale + u.Offset, D: u.D, K: u.K, F: u.F}
+}
+
+// HasOffset reports whether the unit is a linear unit with an offset from zero (degC): its
+// values are absolute and cannot stand for a difference or a tolerance.
+func (u *Unit) HasOffset() bool { return u.K == Linear && u.Offset != 0 }
+
+// celsius are the spellings of the degree Celsius, a temperature scale offset from the kelvin.
+var celsius = map[string]bool{"degC": true, "°C": true, "\u2103": true}
+
+// celsiusUnit returns the degree Celsius written as sym: an absolute temperature in K.
+func celsiusUnit(sym string) *Unit {
+	return &Unit{Sym: sym, D: Temperature, K: Linear, Scale: 1, Offset: 273.15}
 }
 
 // atom is a linear unit without prefix.
@@ -59,8 +74,10 @@ var atoms = []atom{
 	{"Bd", Frequency, 1, flavorSym, true},
 	{"%", None, 0.01, 0, false},
 	{"ppm", None, 1e-6, 0, false},
-	{"deg", None, math.Pi / 180, 0, false},
-	{"rad", None, 1, 0, false},
+	{"deg", None, math.Pi / 180, flavorAngle, false},
+	{"rad", None, 1, flavorAngle, false},
+	{"Pa", Pressure, 1, 0, true},
+	{"hPa", Pressure, 100, 0, false}, // hectopascal, the meteorologists' unit (= mbar)
 	{"min", Time, 60, 0, false},
 	{"h", Time, 3600, 0, false},
 	{"ft", Length, 0.3048, 0, false},
@@ -139,7 +156,8 @@ var spelledOut = map[string]string{
 	"ampere": "A", "amperes": "A", "ohms": "ohm", "kelvin": "K", "joule": "J", "joules": "J",
 	"bits": "bit", "baud": "Bd", "percent": "%", "degree": "deg", "degrees": "deg", "foot": "ft",
 	"feet": "ft", "mile": "mi", "miles": "mi", "minute": "min", "minutes": "min", "hour": "h",
-	"hours": "h", "hr": "h",
+	"hours": "h", "hr": "h", "celsius": "degC", "degreesc": "degC", "mbar": "hPa", "millibar": "hPa",
+	"hectopascal": "hPa", "pascal": "Pa",
 }
 
 func parseUnit(s string) (*Unit, error) {
@@ -151,6 +169,9 @@ func parseUnit(s string) (*Unit, error) {
 	}
 	if strings.HasPrefix(s, "dB") {
 		return parseLevelUnit(s)
+	}
+	if celsius[s] {
+		return celsiusUnit(s), nil
 	}
 	d, scale, f, err := parseCompound(s, false)
 	if err != nil {
@@ -262,7 +283,10 @@ func parseCompound(s string, allowNumber bool) (Dim, float64, Flavor, error) {
 			return Dim{}, 0, 0, errStr("nothing after " + op)
 		}
 	}
-	if d != Frequency {
+	switch {
+	case d == Frequency && f != flavorAngle: // bit/s, Bd
+	case d.IsNone() && f == flavorAngle: // deg, 2*rad
+	default:
 		f = 0
 	}
 	return d, scale, f, nil
@@ -424,7 +448,7 @@ func KnownUnits() []string {
 	for _, a := range atoms {
 		out = append(out, a.sym)
 	}
-	out = append(out, "bit/s", "sym/s", "kbit/s", "Mbit/s", "km", "mm", "cm", "MHz", "GHz", "kHz", "mW", "uW", "us", "ms")
+	out = append(out, "bit/s", "sym/s", "kbit/s", "Mbit/s", "km", "mm", "cm", "MHz", "GHz", "kHz", "mW", "uW", "us", "ms", "degC", "°C", "g/m^3", "mm/h")
 	for _, r := range levelRefs {
 		if r.sym != "" && r.sym[0] != '-' {
 			out = append(out, "dB"+r.sym)

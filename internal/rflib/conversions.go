@@ -11,12 +11,15 @@ import (
 var conversions = []*engine.Func{
 	{
 		Name: "db", Args: []engine.Arg{anyQ("x")}, ResultDoc: "dB (dBK, dBHz, dBm… by dimension)", Infer: inferDB,
-		Doc:    "Decibel level of a linear value: 10·log10(x), or 20·log10 for voltage-like quantities; db(2) = 3.01 dB, db(290 K) = 24.62 dBK.",
+		Doc:    "Decibel level of a linear value: 10·log10(x), or 20·log10 for voltage-like quantities; db(2) = 3.01 dB, db(290 K) = 24.62 dBK. A ratio of two voltages or field strengths is a plain number, so db() gives 10·log10 of it and warns: write 20 * log10(x) for such a ratio.",
 		Source: "IEC 60027-3 (logarithmic quantities and units)",
-		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
+		Call: func(c *engine.Call, a []engine.Value) (units.Q, error) {
 			x := a[0].Q
 			if x.K != units.Linear {
 				return units.Q{}, fmt.Errorf("x: already in decibels (%s)", x.UnitName())
+			}
+			if x.IsRootRatio() {
+				c.Warn("db: x is a ratio of root-power quantities (V/V, (V/m)/(V/m)), and db() of a plain ratio is 10·log10; for a voltage or field ratio write 20 * log10(x), or convert the field itself with to(x, 'dBuV/m')")
 			}
 			return x.ToLevel()
 		},

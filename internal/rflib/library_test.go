@@ -82,7 +82,9 @@ func TestLibraryComplete(t *testing.T) {
 		wavelength fspl logdist tworay hata cost231 fresnel horizon rain rayleigh_margin
 		thermal nf_to_te te_to_nf sensitivity cascade_gain cascade_nf cascade_te cascade_iip3 cascade_oip3 cascade_ip1db
 		im3 sfdr ber ebn0_for ebn0 snr shannon per symbol_rate net_rate
-		dish_gain aperture vswr_to_rl rl_to_vswr mismatch_loss cn0`) {
+		dish_gain aperture vswr_to_rl rl_to_vswr mismatch_loss cn0
+		sin cos tan asin acos atan atan2 log2 floor ceil round slant_range gas_specific gas_loss rain_los rain_es
+		sky_noise fresnel_v knife_edge beamwidth pointing_loss pol_loss field_strength pfd lognormal_margin`) {
 		if _, ok := lib.Lookup(name); !ok {
 			t.Errorf("%s: missing from the library", name)
 		}

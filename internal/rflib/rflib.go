@@ -7,8 +7,13 @@
 // Ratios that the trade writes in decibels (noise figure, SNR, Eb/N0, loss, return loss) must
 // be given in dB: a bare number there is an error rather than a silent linear ratio. shannon is
 // the exception: its snr may be a ratio in dB or a plain linear ratio. Plain-number arguments
-// (availability, efficiency, overhead, BER) accept "%" (99 % = 0.99). tworay checks the
+// (availability, efficiency, overhead, BER) accept "%" (99 % = 0.99); so do the time
+// percentages of the rain methods (0.01 % is 1e-4, a bare 0.01 means 1 %). tworay checks the
 // crossover distance only when its optional frequency is given.
+//
+// Angles (elevation, latitude, pointing offset, the argument of sin) must carry deg or rad: a
+// bare number is refused, since it could be meant in either. Temperatures may be given in degC,
+// read as absolute temperatures in kelvin (15 degC = 288.15 K).
 //
 // Adding a function is one entry in the family file it belongs to: its name, arguments,
 // result unit, doc, source and Call; then a sourced test in that family's test file.
