@@ -475,6 +475,9 @@ func (a Arg) checkType(q units.Q) (units.Q, conv, error) {
 	if q.D != a.Dim || q.K == units.Rate {
 		return q, convNone, bad()
 	}
+	if a.Angle && !q.IsAngle() {
+		return q, convNone, &units.Error{Msg: fmt.Sprintf("%s: got %s, want an angle in deg or rad", a.Name, unitOrNumber(q)), Hint: "write the unit, e.g. 30 deg or 0.52 rad"}
+	}
 	switch a.Form {
 	case LinearOnly:
 		if q.K != units.Linear {

@@ -32,6 +32,9 @@ type Arg struct {
 	Dim      units.Dim
 	Form     Form
 	Optional bool
+	// Angle says the argument is an angle: a plain number must carry deg or rad, since a
+	// bare 30 could mean either.
+	Angle bool
 }
 
 // Form is the form of a quantity argument.
@@ -151,6 +154,9 @@ func (f *Func) Signature() string {
 }
 
 func (a Arg) describe() string {
+	if a.Angle {
+		return "angle"
+	}
 	switch a.Kind {
 	case ArgText:
 		return "name"

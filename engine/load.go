@@ -460,6 +460,9 @@ func parseTol(v any) (*Tol, error) {
 		if q.V < 0 {
 			return nil, fmt.Errorf("a symmetric tolerance is written without a sign, e.g. \"1 dB\"")
 		}
+		if u.HasOffset() {
+			return nil, &units.Error{Msg: fmt.Sprintf("a tolerance in %s would be read from its zero point", u.Sym), Hint: "write a temperature tolerance in K (2 K is 2 °C of difference)"}
+		}
 		if u.Sym == "%" || u.Sym == "ppm" {
 			return &Tol{Text: v, Relative: true, RelMinus: q.V, RelPlus: q.V}, nil
 		}
@@ -478,6 +481,9 @@ func parseTol(v any) (*Tol, error) {
 			q, u, err := units.Parse(s)
 			if err != nil {
 				return nil, err
+			}
+			if u.HasOffset() {
+				return nil, &units.Error{Msg: fmt.Sprintf("a tolerance in %s would be read from its zero point", u.Sym), Hint: "write a temperature tolerance in K (2 K is 2 °C of difference)"}
 			}
 			qs[i], us[i] = q, u
 		}

@@ -74,7 +74,7 @@ var atmosphere = []*engine.Func{
 		},
 	},
 	{
-		Name: "gas_loss", Args: append([]engine.Arg{lin("f", units.Frequency), lin("elev", units.None)}, gasOptional...), Result: "dB",
+		Name: "gas_loss", Args: append([]engine.Arg{lin("f", units.Frequency), angleArg("elev")}, gasOptional...), Result: "dB",
 		Doc: "Attenuation by atmospheric gases on an Earth–space path from a station near sea level at elevation elev: (γo·ho + γw·hw)/sin elev with the equivalent heights ho, hw of oxygen and water vapour " +
 			"(below 5°, the Recommendation's curved-Earth form with Re = 8500 km); " + gasDefaults + ". Valid for 1–350 GHz and 5°–90°; outside, a warning.",
 		Source: "ITU-R P.676-11 (09/2016), Annex 2 §2.2 (slant paths, equivalent heights)",
@@ -138,8 +138,8 @@ var atmosphere = []*engine.Func{
 		},
 	},
 	{
-		Name: "rain_es", Args: []engine.Arg{lin("f", units.Frequency), lin("elev", units.None), lin("r001", units.Speed), lin("p", units.None),
-			lin("hs", units.Length), lin("hr", units.Length), lin("lat", units.None), text("pol")}, Result: "dB",
+		Name: "rain_es", Args: []engine.Arg{lin("f", units.Frequency), angleArg("elev"), lin("r001", units.Speed), lin("p", units.None),
+			lin("hs", units.Length), lin("hr", units.Length), angleArg("lat"), text("pol")}, Result: "dB",
 		Doc: "Rain attenuation exceeded for p % of an average year on an Earth–space path at elevation elev from a station at height hs (above sea level) and latitude lat, for rain rate r001 exceeded 0.01 % of the year and rain height hr " +
 			"(above sea level: ITU-R P.839 gives it as a map, which is not shipped, so take it from P.839 or local data; roughly the 0 °C isotherm height + 0.36 km). " +
 			"Steps 2–10 of the method: slant length through rain, horizontal reduction r0.01, vertical adjustment ν0.01, effective length, A0.01 = γR·LE, then scaling to p with the latitude- and elevation-dependent β. " +

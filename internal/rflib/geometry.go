@@ -41,7 +41,7 @@ func elevation(a []engine.Value, i int, name string) (float64, error) {
 
 func trig(name string, f func(float64) float64, doc string) *engine.Func {
 	return &engine.Func{
-		Name: name, Args: []engine.Arg{lin("x", units.None)}, Result: "1", Doc: doc + " The angle must carry its unit (deg or rad); a bare number is refused.",
+		Name: name, Args: []engine.Arg{angleArg("x")}, Result: "1", Doc: doc + " The angle must carry its unit (deg or rad); a bare number is refused.",
 		Source: "ISO 80000-2 (mathematics); the degree as accepted for use with the SI (SI Brochure, 9th ed., Table 8)",
 		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
 			x, err := angle(a, 0, "x")
@@ -94,7 +94,7 @@ var geometry = []*engine.Func{
 	plain("ceil", math.Ceil, "Smallest whole number not below a plain number (ceil(100/12) = 9 frames)."),
 	plain("round", math.Round, "Nearest whole number to a plain number (halves away from zero)."),
 	{
-		Name: "slant_range", Args: []engine.Arg{lin("elev", units.None), lin("alt", units.Length), optional(lin("h_station", units.Length))}, Result: "m",
+		Name: "slant_range", Args: []engine.Arg{angleArg("elev"), lin("alt", units.Length), optional(lin("h_station", units.Length))}, Result: "m",
 		Doc: "Distance from a station at height h_station (0 m by default) to a point at altitude alt (a satellite, an aircraft) seen at elevation elev, over a spherical Earth of radius R = 6371 km, without refraction: " +
 			"sqrt((R + alt)² − (R + h)²·cos² elev) − (R + h)·sin elev. A 550 km orbit at 10° is 1815 km away.",
 		Source: "spherical-Earth geometry (law of cosines), as in Maral & Bousquet, Satellite Communications Systems, ch. 2; R = 6371 km as in ITU-R P.452",

@@ -59,7 +59,7 @@ var obstruction = []*engine.Func{
 		},
 	},
 	{
-		Name: "beamwidth", Args: []engine.Arg{lin("d", units.Length), lin("f", units.Frequency), optional(lin("k", units.None))}, Result: "deg",
+		Name: "beamwidth", Args: []engine.Arg{lin("d", units.Length), lin("f", units.Frequency), optional(angleArg("k"))}, Result: "deg",
 		Doc:    "Half-power (−3 dB) beamwidth of a parabolic dish of diameter d: k·λ/d, k = 70° by default (a typical tapered feed; common practice, no single source: a uniformly lit aperture gives 58.4°, heavier tapers up to about 75°). A 2.4 m dish at 2.4 GHz has 3.6°.",
 		Source: "common practice, no source (θ3dB ≈ 70 λ/D degrees; Kraus, Antennas, aperture beamwidth)",
 		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
@@ -77,7 +77,7 @@ var obstruction = []*engine.Func{
 		},
 	},
 	{
-		Name: "pointing_loss", Args: []engine.Arg{lin("offset", units.None), lin("beamwidth", units.None)}, Result: "dB",
+		Name: "pointing_loss", Args: []engine.Arg{angleArg("offset"), angleArg("beamwidth")}, Result: "dB",
 		Doc:    "Gain lost when an antenna points off its target by offset, for half-power beamwidth beamwidth: 12·(offset/beamwidth)², the parabolic fit of the main lobe (3 dB at half a beamwidth). Warns past one beamwidth, where the fit fails.",
 		Source: "main-lobe parabolic approximation (Maral & Bousquet, Satellite Communications Systems, antenna pointing loss); common practice",
 		Call: func(c *engine.Call, a []engine.Value) (units.Q, error) {
@@ -98,7 +98,7 @@ var obstruction = []*engine.Func{
 		},
 	},
 	{
-		Name: "pol_loss", Args: []engine.Arg{lin("angle", units.None)}, Result: "dB",
+		Name: "pol_loss", Args: []engine.Arg{angleArg("angle")}, Result: "dB",
 		Doc:    "Polarisation mismatch loss between two linearly polarised antennas whose planes differ by angle: −20·log10|cos angle| (3 dB at 45°). At exactly 90° the ideal loss is unbounded: an error; give the antennas' cross-polar discrimination instead.",
 		Source: "polarisation loss factor PLF = cos²ψ (Balanis, Antenna Theory, §2.12)",
 		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {

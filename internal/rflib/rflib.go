@@ -59,6 +59,11 @@ func ratio(name string) engine.Arg {
 	return engine.Arg{Name: name, Dim: units.None, Form: engine.LevelOnly}
 }
 
+// angleArg is a plain-number argument that must carry an angle unit (deg or rad).
+func angleArg(name string) engine.Arg {
+	return engine.Arg{Name: name, Dim: units.None, Form: engine.LinearOnly, Angle: true}
+}
+
 func anyQ(name string) engine.Arg { return engine.Arg{Name: name} }
 
 func optional(a engine.Arg) engine.Arg { a.Optional = true; return a }
