@@ -34,6 +34,7 @@ const (
 	flavorIso          // antenna gain over isotropic (dBi)
 	flavorBit          // bit rates (bit/s)
 	flavorSym          // symbol rates (Bd)
+	flavorCarrier      // ratios to a carrier (dBc) and phase-noise densities (dBc/Hz)
 )
 
 // Q is a quantity: a number with a dimension and a kind (linear, decibel level, decibel rate).
@@ -178,7 +179,16 @@ func levelFlavor(a, b Q, d Dim, sign float64) Flavor {
 		if (fa == flavorIso) != (fb == flavorIso) && (fa == flavorIso || sign > 0) && da.IsNone() && db.IsNone() {
 			return flavorIso
 		}
+		// dBc + dB and dBc/Hz + dBHz stay relative to the carrier; dBc − dBc is a plain dB.
+		if (fa == flavorCarrier) != (fb == flavorCarrier) && (fa == flavorCarrier || sign > 0) {
+			return flavorCarrier
+		}
 		return flavorNone
+	}
+	if d == Frequency.Pow(-1) {
+		// A level per hertz without a power in it is a density relative to a carrier:
+		// dBm/Hz − dBm is phase noise in dBc/Hz.
+		return flavorCarrier
 	}
 	for _, f := range []Flavor{fa, fb} {
 		switch {
