@@ -26,16 +26,18 @@ const (
 type Flavor uint8
 
 const (
-	flavorNone    Flavor = iota
-	flavorMilli          // power levels referred to 1 mW (dBm, dBm/Hz)
-	flavorWatt           // power levels referred to 1 W (dBW, dBW/K)
-	flavorMicro          // root-power levels referred to 1 µV (dBuV, dBuV/m)
-	flavorVolt           // root-power levels referred to 1 V
-	flavorIso            // antenna gain over isotropic (dBi)
-	flavorBit            // bit rates (bit/s)
-	flavorSym            // symbol rates (Bd)
-	flavorCarrier        // ratios to a carrier (dBc) and phase-noise densities (dBc/Hz)
+	flavorNone  Flavor = iota
+	flavorMilli        // power levels referred to 1 mW (dBm, dBm/Hz)
+	flavorWatt         // power levels referred to 1 W (dBW, dBW/K)
+	flavorMicro        // root-power levels referred to 1 µV (dBuV, dBuV/m)
+	flavorVolt         // root-power levels referred to 1 V
+	flavorIso          // antenna gain over isotropic (dBi)
+	flavorBit          // bit rates (bit/s)
+	flavorSym          // symbol rates (Bd)
 )
+
+// flavorCarrier marks ratios to a carrier (dBc) and phase-noise densities (dBc/Hz).
+const flavorCarrier Flavor = flavorSym + 1
 
 // Q is a quantity: a number with a dimension and a kind (linear, decibel level, decibel rate).
 // The zero Q is the dimensionless number 0. Q is a small value type; copy it freely.
