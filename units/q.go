@@ -36,8 +36,9 @@ const (
 	flavorSym          // symbol rates (Bd)
 )
 
-// flavorCarrier marks ratios to a carrier (dBc) and phase-noise densities (dBc/Hz).
-const flavorCarrier Flavor = flavorSym + 1
+// flavorCarrier marks ratios to a carrier (dBc) and phase-noise densities (dBc/Hz). It is
+// numbered apart from the table above so that flavors added there cannot take its value.
+const flavorCarrier Flavor = 0x80
 
 // Q is a quantity: a number with a dimension and a kind (linear, decibel level, decibel rate).
 // The zero Q is the dimensionless number 0. Q is a small value type; copy it freely.
