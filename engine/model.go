@@ -134,7 +134,7 @@ type Stage struct {
 }
 
 // stageKeys are the value keys a stage may have, in their canonical order.
-var stageKeys = []string{"gain", "nf", "te", "loss", "iip3", "oip3", "ip1db", "op1db"}
+var stageKeys = []string{"gain", "nf", "te", "loss", "iip3", "oip3", "ip1db", "op1db", "iip2", "oip2"}
 
 // ChainValue is what a function receives for a chain argument: the evaluated stages in signal order.
 type ChainValue struct {
@@ -145,8 +145,8 @@ type ChainValue struct {
 // StageValue is one evaluated stage.
 type StageValue struct {
 	Label string
-	vals  [8]units.Q
-	has   uint8
+	vals  [10]units.Q
+	has   uint16
 }
 
 func stageKeyIndex(key string) int {

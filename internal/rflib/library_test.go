@@ -82,6 +82,7 @@ func TestLibraryComplete(t *testing.T) {
 		wavelength fspl logdist tworay hata cost231 fresnel horizon rain rayleigh_margin
 		thermal nf_to_te te_to_nf sensitivity cascade_gain cascade_nf cascade_te cascade_iip3 cascade_oip3 cascade_ip1db
 		im3 sfdr ber ebn0_for ebn0 snr shannon per symbol_rate net_rate
+		recip_mix desense max_blocker im2 hd2 hd3 cascade_iip2 image_reject acir adc_snr
 		dish_gain aperture vswr_to_rl rl_to_vswr mismatch_loss cn0`) {
 		if _, ok := lib.Lookup(name); !ok {
 			t.Errorf("%s: missing from the library", name)
