@@ -22,6 +22,8 @@ type Sheet struct {
 	Solves   []*Solve
 	Parts    []string // files brought in with `use`, in load order
 
+	FreqPlans FreqPlans // [[spurs]] and [[products]] blocks (freqplan.go)
+
 	nodes     []*node
 	byName    map[string]int
 	order     []int // evaluation order of nodes (topological)
