@@ -25,6 +25,8 @@ type jsonDoc struct {
 	Solves       []jsonSolve          `json:"solves"`
 	Warnings     []string             `json:"warnings"`
 	Hash         string               `json:"hash"`
+	Spurs        []jsonSpurs          `json:"spurs"`
+	Products     []jsonProducts       `json:"products"`
 }
 
 type jsonQ struct {
@@ -171,6 +173,7 @@ func JSON(in Input) []byte {
 	if a := in.Analysis; a != nil {
 		analysisJSON(&doc, a, sh)
 	}
+	doc.Spurs, doc.Products = freqPlanJSON(sh)
 	var b bytes.Buffer
 	enc := json.NewEncoder(&b)
 	enc.SetIndent("", "  ")

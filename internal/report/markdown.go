@@ -43,6 +43,7 @@ func Markdown(in Input) ([]byte, []File) {
 	}
 	p.sweeps()
 	p.solves()
+	p.freqPlans()
 	p.warnings()
 	p.cautions()
 	p.footer()
