@@ -58,6 +58,8 @@ type jsonStage struct {
 	NoiseShare float64  `json:"noise_share"`
 	IIP3Share  *float64 `json:"iip3_share,omitempty"`
 	OutDBm     *float64 `json:"signal_out_dbm,omitempty"`
+	IIP2DBm    *float64 `json:"iip2_dbm,omitempty"`
+	CumIIP2DBm *float64 `json:"cum_iip2_dbm,omitempty"`
 }
 
 type jsonChain struct {
@@ -67,6 +69,7 @@ type jsonChain struct {
 	TeK     float64     `json:"te_k"`
 	IIP3DBm *float64    `json:"iip3_dbm,omitempty"`
 	OIP3DBm *float64    `json:"oip3_dbm,omitempty"`
+	IIP2DBm *float64    `json:"iip2_dbm,omitempty"`
 	Error   string      `json:"error,omitempty"`
 }
 
@@ -191,6 +194,9 @@ func chainJSON(ci chainInfo) jsonChain {
 	if c.HasIIP3 {
 		jc.IIP3DBm, jc.OIP3DBm = num(c.IIP3), num(c.OIP3)
 	}
+	if c.HasIIP2 {
+		jc.IIP2DBm = num(c.IIP2)
+	}
 	in, hasIn := ci.inputDBm()
 	for i, st := range ci.stages {
 		r := c.Stages[i]
@@ -200,6 +206,12 @@ func chainJSON(ci chainInfo) jsonChain {
 		}
 		if r.HasIIP3 {
 			js.CumIIP3DBm = num(r.CumIIP3)
+		}
+		if st.HasIIP2 {
+			js.IIP2DBm = num(st.IIP2)
+		}
+		if r.HasIIP2 {
+			js.CumIIP2DBm = num(r.CumIIP2)
 		}
 		if hasIn {
 			js.OutDBm = num(in + r.CumGainDB)
