@@ -88,7 +88,7 @@ func FreqPlan(w io.Writer, s FreqPlanSpec) error {
 		return fmt.Errorf("%w (frequency plan %q)", ErrEmpty, s.Title)
 	}
 	p := newPlot(s.Title, s.XLabel, s.YLabel)
-	p.X.Min, p.X.Max = pad(xmin, xmax, 0.03)
+	p.X.Min, p.X.Max = pad(xmin, xmax, 0.06)
 	p.Y.Min, p.Y.Max = 0, ymax+1
 	p.Add(grid(true, true))
 	fp := &planPlotter{spec: s}

@@ -218,7 +218,7 @@ func gap(r freqplan.Response, rf freqplan.Band) float64 {
 
 func (p *page) spurChart(i int, si spurInfo) {
 	u := si.unit
-	spec := chart.FreqPlanSpec{Title: "Spurious responses: " + si.block.Name, XLabel: "input frequency (" + u.Sym + ")", YLabel: "order m + n"}
+	spec := chart.FreqPlanSpec{Title: shortTitle("Spurious responses: " + si.block.Name), XLabel: "input frequency (" + u.Sym + ")", YLabel: "order m + n"}
 	spec.Spans = []chart.Span{{Label: "RF", Lo: inUnit(si.plan.RF.Lo, u), Hi: inUnit(si.plan.RF.Hi, u)}, {Label: "IF", Lo: inUnit(si.plan.IF.Lo, u), Hi: inUnit(si.plan.IF.Hi, u)}}
 	spec.Tones = []chart.Tone{{Label: "LO", X: inUnit(si.lo, u)}}
 	for _, r := range si.responses {
@@ -236,6 +236,15 @@ func (p *page) spurChart(i int, si spurInfo) {
 		spec.Marks = append(spec.Marks, chart.Mark{Lo: inUnit(r.From, u), Hi: inUnit(r.To, u), Y: float64(r.Order()), Kind: k})
 	}
 	p.addChart(fmt.Sprintf("spurs-%d", i+1), "spurious responses of "+si.block.Name, func(b *bytes.Buffer) error { return chart.FreqPlan(b, spec) })
+}
+
+// shortTitle keeps a chart title within the chart's width (the section heading keeps it whole).
+func shortTitle(s string) string {
+	r := []rune(s)
+	if len(r) <= 60 {
+		return s
+	}
+	return strings.TrimSpace(string(r[:57])) + "…"
 }
 
 // productText writes k1·f1 + k2·f2 + … with the tones' names f1, f2, …
@@ -298,7 +307,7 @@ func (p *page) productSection(i int, pi productInfo) {
 
 func (p *page) productChart(i int, pi productInfo) {
 	u := pi.unit
-	spec := chart.FreqPlanSpec{Title: "Products in protected bands: " + pi.block.Name, XLabel: "frequency (" + u.Sym + ")", YLabel: "order Σ|k|"}
+	spec := chart.FreqPlanSpec{Title: shortTitle("Products: " + pi.block.Name), XLabel: "frequency (" + u.Sym + ")", YLabel: "order Σ|k|"}
 	for j, bd := range pi.bands {
 		spec.Spans = append(spec.Spans, chart.Span{Label: fmt.Sprintf("protected %d", j+1), Lo: inUnit(bd.Lo, u), Hi: inUnit(bd.Hi, u)})
 	}
