@@ -144,7 +144,7 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 	l.document(f, doc)
 }
 
-var topKeys = []string{"title", "summary", "focus", "use", "require", "sweep", "solve"}
+var topKeys = []string{"title", "summary", "focus", "use", "require", "sweep", "solve", "spurs", "products"}
 
 func (l *loader) document(f *sheetFile, doc map[string]any) {
 	top := &Group{Name: f.prefix, Range: Range{File: f.name, Start: Pos{1, 1}}}
@@ -185,6 +185,8 @@ func (l *loader) document(f *sheetFile, doc map[string]any) {
 			if main {
 				l.solves(f, v)
 			}
+		case "spurs", "products":
+			l.freqPlan(f, key, v, main)
 		default:
 			if n := units.Nearest(key, topKeys); n != "" {
 				if text, isText := v.(string); isText && !looksLikeQuantity(text) {
@@ -602,7 +604,7 @@ func (l *loader) chain(f *sheetFile, g *Group, path, key string, tables []map[st
 				st.Keys = append(st.Keys, k)
 				n.deps = append(n.deps, q.node)
 			default:
-				l.errAt(kr, qname, didYouMean(k, stageAllKeys, "a stage's keys are stage, gain, nf, te, loss, iip3, oip3, ip1db, op1db, note"), "unknown stage key %q", k)
+				l.errAt(kr, qname, didYouMean(k, stageAllKeys, "a stage's keys are stage, gain, nf, te, loss, iip3, oip3, iip2, oip2, ip1db, op1db, note"), "unknown stage key %q", k)
 			}
 		}
 		if _, hasGain := st.Values["gain"]; hasGain {

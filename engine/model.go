@@ -24,6 +24,8 @@ type Sheet struct {
 	Solves   []*Solve
 	Parts    []string // files brought in with `use`, in load order
 
+	FreqPlans FreqPlans // [[spurs]] and [[products]] blocks (freqplan.go)
+
 	nodes   []*node
 	byName  map[string]int
 	order   []int // evaluation order of nodes (topological)
@@ -141,7 +143,7 @@ type Stage struct {
 }
 
 // stageKeys are the value keys a stage may have, in their canonical order.
-var stageKeys = []string{"gain", "nf", "te", "loss", "iip3", "oip3", "ip1db", "op1db"}
+var stageKeys = []string{"gain", "nf", "te", "loss", "iip3", "oip3", "ip1db", "op1db", "iip2", "oip2"}
 
 // ChainValue is what a function receives for a chain argument: the evaluated stages in signal order.
 type ChainValue struct {
@@ -152,8 +154,8 @@ type ChainValue struct {
 // StageValue is one evaluated stage.
 type StageValue struct {
 	Label string
-	vals  [8]units.Q
-	has   uint8
+	vals  [10]units.Q
+	has   uint16
 }
 
 func stageKeyIndex(key string) int {

@@ -56,6 +56,14 @@ func TestSpecTable(t *testing.T) {
 		{"40 dBuV", opSub, "20 dBuV", "dB", 20},
 		{"40 dBuV/m", opSub, "6 dB", "dBuV/m", 34},
 		{"0 dBV", opSub, "0 dBuV", "dB", 120},
+		// Carrier-relative levels (issue 14): phase noise L(f) in dBc/Hz integrated over a
+		// channel is a ratio to the carrier; a level plus a carrier ratio is a level.
+		{"-110 dBc/Hz", opAdd, "50 dBHz", "dBc", -60},
+		{"-20 dBm", opAdd, "-60 dBc", "dBm", -80},
+		{"-60 dBc", opAdd, "3 dB", "dBc", -57},
+		{"-60 dBc", opSub, "-40 dBc", "dB", -20},
+		{"-150 dBm/Hz", opSub, "-10 dBm", "dBc/Hz", -140}, // noise density over carrier power
+		{"-60 dBc", opSub, "50 dBHz", "dBc/Hz", -110},
 		{"10 dBK", opAdd, "20 dBHz", "", 0}, // K·Hz has no decibel unit: error checked below
 	}
 	for _, c := range ok {

@@ -77,7 +77,9 @@ func TestParse(t *testing.T) {
 		{"5 min", Time, Linear, 300, "s"},
 		{"2 h", Time, Linear, 7200, "s"},
 		{"1 ppm", None, Linear, 1e-6, ""},
-		{"-20 dBc", None, Level, -20, "dB"},
+		{"-20 dBc", None, Level, -20, "dBc"},
+		// Phase noise: a level of 1/Hz, shown as the trade writes it.
+		{"-100 dBc/Hz", Frequency.Pow(-1), Level, -100, "dBc/Hz"},
 		{"-1 dBFS", None, Level, -1, "dB"},
 		{"3 dB", None, Level, 3, "dB"},
 		{"1e-4", None, Linear, 1e-4, ""},

@@ -38,6 +38,10 @@ const (
 	flavorRootRatio        // a ratio of two root-power quantities (V/V): its decibels are 20·log10
 )
 
+// flavorCarrier marks ratios to a carrier (dBc) and phase-noise densities (dBc/Hz). It is
+// numbered apart from the table above so that flavors added there cannot take its value.
+const flavorCarrier Flavor = 0x80
+
 // Q is a quantity: a number with a dimension and a kind (linear, decibel level, decibel rate).
 // The zero Q is the dimensionless number 0. Q is a small value type; copy it freely.
 type Q struct {
@@ -189,7 +193,16 @@ func levelFlavor(a, b Q, d Dim, sign float64) Flavor {
 		if (fa == flavorIso) != (fb == flavorIso) && (fa == flavorIso || sign > 0) && da.IsNone() && db.IsNone() {
 			return flavorIso
 		}
+		// dBc + dB and dBc/Hz + dBHz stay relative to the carrier; dBc − dBc is a plain dB.
+		if (fa == flavorCarrier) != (fb == flavorCarrier) && (fa == flavorCarrier || sign > 0) {
+			return flavorCarrier
+		}
 		return flavorNone
+	}
+	if d == Frequency.Pow(-1) {
+		// A level per hertz without a power in it is a density relative to a carrier:
+		// dBm/Hz − dBm is phase noise in dBc/Hz.
+		return flavorCarrier
 	}
 	for _, f := range []Flavor{fa, fb} {
 		switch {

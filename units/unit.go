@@ -104,7 +104,7 @@ var levelRefs = []struct {
 	{"uV", Voltage, -120, flavorMicro}, {"µV", Voltage, -120, flavorMicro}, {"μV", Voltage, -120, flavorMicro},
 	{"mV", Voltage, -60, flavorVolt}, {"uA", Current, -120, flavorMicro}, {"µA", Current, -120, flavorMicro}, {"μA", Current, -120, flavorMicro},
 	{"m", Power, -30, flavorMilli}, {"W", Power, 0, flavorWatt}, {"i", None, 0, flavorIso},
-	{"d", None, 2.15, flavorIso}, {"c", None, 0, 0}, {"K", Temperature, 0, 0}, {"V", Voltage, 0, flavorVolt},
+	{"d", None, 2.15, flavorIso}, {"c", None, 0, flavorCarrier}, {"K", Temperature, 0, 0}, {"V", Voltage, 0, flavorVolt},
 	{"A", Current, 0, 0}, {"", None, 0, 0},
 }
 
@@ -397,10 +397,15 @@ func hasLevelUnit(d Dim) bool {
 func levelSym(d Dim, f Flavor) (string, float64, bool) {
 	switch d {
 	case None:
-		if f == flavorIso {
+		switch f {
+		case flavorIso:
 			return "dBi", 0, true
+		case flavorCarrier:
+			return "dBc", 0, true
 		}
 		return "dB", 0, true
+	case Frequency.Pow(-1):
+		return "dBc/Hz", 0, true
 	case Frequency:
 		return "dBHz", 0, true
 	case Temperature:
@@ -454,7 +459,7 @@ func KnownUnits() []string {
 			out = append(out, "dB"+r.sym)
 		}
 	}
-	out = append(out, "dB", "dB-Hz", "dBm/Hz", "dBW/Hz", "dBW/K", "dBW/K/Hz", "dB/K", "dBuV/m", "dB/km", "dB/m", "dB/100m", "dB/ft")
+	out = append(out, "dB", "dB-Hz", "dBm/Hz", "dBW/Hz", "dBW/K", "dBW/K/Hz", "dB/K", "dBc/Hz", "dBuV/m", "dB/km", "dB/m", "dB/100m", "dB/ft")
 	sort.Strings(out)
 	return out
 }

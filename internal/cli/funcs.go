@@ -39,6 +39,7 @@ bit and sym are counts, so bit/s has the dimension of Hz.
 
 Decibel units (a level is the log of a linear value with a reference):
   ratios      dB dBi dBd (= dBi - 2.15 dB) dBc dBFS
+  phase noise dBc/Hz (a density relative to the carrier)
   power       dBm dBW         densities  dBm/Hz dBW/Hz dBm/MHz
   bandwidth   dBHz (dB-Hz)    temperature dBK   G/T dB/K
   voltage     dBV dBmV dBuV   field      dBuV/m
@@ -49,6 +50,7 @@ Rules:
   dBm + dB -> dBm        dBm - dBm -> dB       dB + dB -> dB
   dBm/Hz + dBHz -> dBm   dBm - dBHz -> dBm/Hz  dBW - dBK -> dBW/K
   dBW + dB/K - dBW/K/Hz -> dBHz (C/N0)
+  dBc/Hz + dBHz -> dBc   dBm + dBc -> dBm      dBc + dB -> dBc     dBc - dBc -> dB
   number * dB -> dB      dB/km * km -> dB
   dBm + dBm   error: adding levels multiplies the powers; psum(a, b) adds powers
   W + dB      error: convert with dbm() or watts()

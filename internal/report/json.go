@@ -25,6 +25,8 @@ type jsonDoc struct {
 	Solves       []jsonSolve          `json:"solves"`
 	Warnings     []string             `json:"warnings"`
 	Hash         string               `json:"hash"`
+	Spurs        []jsonSpurs          `json:"spurs"`
+	Products     []jsonProducts       `json:"products"`
 }
 
 type jsonQ struct {
@@ -56,6 +58,8 @@ type jsonStage struct {
 	NoiseShare float64  `json:"noise_share"`
 	IIP3Share  *float64 `json:"iip3_share,omitempty"`
 	OutDBm     *float64 `json:"signal_out_dbm,omitempty"`
+	IIP2DBm    *float64 `json:"iip2_dbm,omitempty"`
+	CumIIP2DBm *float64 `json:"cum_iip2_dbm,omitempty"`
 }
 
 type jsonChain struct {
@@ -65,6 +69,7 @@ type jsonChain struct {
 	TeK     float64     `json:"te_k"`
 	IIP3DBm *float64    `json:"iip3_dbm,omitempty"`
 	OIP3DBm *float64    `json:"oip3_dbm,omitempty"`
+	IIP2DBm *float64    `json:"iip2_dbm,omitempty"`
 	Error   string      `json:"error,omitempty"`
 }
 
@@ -172,6 +177,7 @@ func JSON(in Input) []byte {
 	if a := in.Analysis; a != nil {
 		analysisJSON(&doc, a, sh)
 	}
+	doc.Spurs, doc.Products = freqPlanJSON(r)
 	var b bytes.Buffer
 	enc := json.NewEncoder(&b)
 	enc.SetIndent("", "  ")
@@ -189,6 +195,9 @@ func chainJSON(ci chainInfo) jsonChain {
 	if c.HasIIP3 {
 		jc.IIP3DBm, jc.OIP3DBm = num(c.IIP3), num(c.OIP3)
 	}
+	if c.HasIIP2 {
+		jc.IIP2DBm = num(c.IIP2)
+	}
 	in, hasIn := ci.inputDBm()
 	for i, st := range ci.stages {
 		r := c.Stages[i]
@@ -198,6 +207,12 @@ func chainJSON(ci chainInfo) jsonChain {
 		}
 		if r.HasIIP3 {
 			js.CumIIP3DBm = num(r.CumIIP3)
+		}
+		if st.HasIIP2 {
+			js.IIP2DBm = num(st.IIP2)
+		}
+		if r.HasIIP2 {
+			js.CumIIP2DBm = num(r.CumIIP2)
 		}
 		if hasIn {
 			js.OutDBm = num(in + r.CumGainDB)

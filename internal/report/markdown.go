@@ -45,6 +45,7 @@ func Markdown(in Input) ([]byte, []File) {
 	}
 	p.sweeps()
 	p.solves()
+	p.freqPlans()
 	p.warnings()
 	p.cautions()
 	p.footer()
@@ -187,6 +188,10 @@ func (p *page) cascades() {
 			p.f("\n\n")
 		}
 		p.f("| # | stage | gain | NF | IIP3 | cum. gain | cum. NF | cum. IIP3 | share of F−1 | share of 1/IIP3 |")
+		hasIP2 := ci.cas.HasIIP2
+		if hasIP2 {
+			p.f(" IIP2 | cum. IIP2 |")
+		}
 		if hasIn {
 			p.f(" signal out |")
 		}
@@ -194,6 +199,9 @@ func (p *page) cascades() {
 			p.f(" noise out |")
 		}
 		p.f("\n| ---: | --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |")
+		if hasIP2 {
+			p.f(" ---: | ---: |")
+		}
 		if hasIn {
 			p.f(" ---: |")
 		}
@@ -212,6 +220,9 @@ func (p *page) cascades() {
 				cumIIP3 = db2(r.CumIIP3) + " dBm"
 			}
 			p.f("| %d | %s | %s dB | %s dB | %s | %s dB | %s dB | %s | %s | %s |", i+1, cell(st.Name), db2(st.GainDB), db2(st.NFDB), iip3, db2(r.CumGainDB), db2(r.CumNFDB), cumIIP3, pct(r.NoiseShare), share3)
+			if hasIP2 {
+				p.f(" %s | %s |", dbmIf(st.IIP2, st.HasIIP2), dbmIf(r.CumIIP2, r.HasIIP2))
+			}
 			if hasIn {
 				p.f(" %s dBm |", db2(in+r.CumGainDB))
 			}
@@ -232,6 +243,9 @@ func (p *page) cascades() {
 		if c.HasIP1dB {
 			p.f(", input P1dB %s dBm", db2(c.IP1dB))
 		}
+		if c.HasIIP2 {
+			p.f(", IIP2 %s dBm (stages added in phase, a worst case)", db2(c.IIP2))
+		}
 		p.f(".\n\n")
 		p.f("%s\n\n", dominantStages(ci))
 		for _, n := range ci.notes {
@@ -242,6 +256,14 @@ func (p *page) cascades() {
 		}
 		p.levelChart(ci)
 	}
+}
+
+// dbmIf writes a level in dBm, or nothing when there is none.
+func dbmIf(v float64, ok bool) string {
+	if !ok {
+		return ""
+	}
+	return db2(v) + " dBm"
 }
 
 // dominantStages names the stages that set the noise figure and the intercept.

@@ -54,7 +54,7 @@ func cascadeFunc(name, res, doc, src string, pick func(rfmath.Cascade) (units.Q,
 
 // Stages converts a chain's evaluated stages into the cascade model: gain and noise figure in
 // dB (te converted through T0, a passive `loss` giving gain −loss and NF = loss), IIP3 from
-// iip3 or oip3 − gain, IP1dB from ip1db or op1db − gain + 1 dB (the gain is 1 dB compressed
+// iip3 or oip3 − gain, IIP2 from iip2 or oip2 − gain, IP1dB from ip1db or op1db − gain + 1 dB (the gain is 1 dB compressed
 // at that point; common practice). Notes say what was assumed.
 func Stages(cv *engine.ChainValue) ([]rfmath.Stage, []string, error) {
 	var out []rfmath.Stage
@@ -91,6 +91,10 @@ func Stages(cv *engine.ChainValue) ([]rfmath.Stage, []string, error) {
 			return nil, nil, err
 		}
 		st.IP1dB, st.HasIP1dB, err = intercept(sv, "ip1db", "op1db", g.V, 1)
+		if err != nil {
+			return nil, nil, err
+		}
+		st.IIP2, st.HasIIP2, err = intercept(sv, "iip2", "oip2", g.V, 0)
 		if err != nil {
 			return nil, nil, err
 		}

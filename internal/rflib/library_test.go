@@ -84,7 +84,8 @@ func TestLibraryComplete(t *testing.T) {
 		im3 sfdr ber ebn0_for ebn0 snr shannon per symbol_rate net_rate
 		dish_gain aperture vswr_to_rl rl_to_vswr mismatch_loss cn0
 		sin cos tan asin acos atan atan2 log2 floor ceil round slant_range gas_specific gas_loss rain_los rain_es
-		sky_noise fresnel_v knife_edge beamwidth pointing_loss pol_loss field_strength pfd lognormal_margin`) {
+		sky_noise fresnel_v knife_edge beamwidth pointing_loss pol_loss field_strength pfd lognormal_margin
+		recip_mix desense max_blocker im2 hd2 hd3 cascade_iip2 image_reject acir adc_snr`) {
 		if _, ok := lib.Lookup(name); !ok {
 			t.Errorf("%s: missing from the library", name)
 		}

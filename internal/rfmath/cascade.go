@@ -11,6 +11,8 @@ type Stage struct {
 	HasIIP3  bool
 	IP1dB    float64 // input 1 dB compression point, dBm; valid only if HasIP1dB
 	HasIP1dB bool
+	IIP2     float64 // input second-order intercept, dBm; valid only if HasIIP2
+	HasIIP2  bool
 }
 
 // StageResult holds the cascade figures from the chain input up to and
@@ -27,6 +29,11 @@ type StageResult struct {
 	// cascade up to and including this stage.
 	CumIP1dB float64
 	HasIP1dB bool
+
+	// CumIIP2 is the input-referred IIP2 (dBm) of the cascade up to and
+	// including this stage; HasIIP2 is false while no stage so far has one.
+	CumIIP2 float64
+	HasIIP2 bool
 
 	// NoiseShare is this stage's share (0..1) of the whole chain's excess
 	// noise factor F−1; the shares sum to 1 (all zero if F−1 = 0).
@@ -50,6 +57,9 @@ type Cascade struct {
 
 	IP1dB    float64 // input-referred 1 dB compression point, dBm
 	HasIP1dB bool
+
+	IIP2, OIP2 float64 // input / output second-order intercept, dBm
+	HasIIP2    bool
 }
 
 // CascadeChain evaluates a chain of stages in order from input to output.
@@ -64,6 +74,16 @@ type Cascade struct {
 //
 //	1/IIP3 = 1/IIP3_1 + G1/IIP3_2 + G1 G2/IIP3_3 + …,  OIP3 = IIP3 + G (dB)
 //
+// Second-order intercepts add as amplitudes, in phase (coherent worst case):
+// each stage's IM2 product referred to the chain input is P²·G_before/IIP2_i,
+// so
+//
+//	1/√IIP2 = 1/√IIP2_1 + √G1/√IIP2_2 + √(G1 G2)/√IIP2_3 + …,  OIP2 = IIP2 + G (dB)
+//
+// (the IIP3 derivation of Razavi, RF Microelectronics, ch. 2, for a
+// second-order term; filtering between stages that removes the f1 − f2
+// product is not taken into account, so this is a bound).
+//
 // The 1 dB compression points are cascaded with the same expression, a
 // common approximation. Stages without an IIP3 (or IP1dB) are treated as
 // perfectly linear. An empty chain has 0 dB gain and 0 dB noise figure.
@@ -77,8 +97,10 @@ func CascadeChain(stages []Stage) Cascade {
 		sumN    float64
 		sumIP3  float64
 		sumP1   float64
+		sumIP2  float64 // Σ √(G_before/IIP2_i), 1/√mW
 		haveIP3 bool
 		haveP1  bool
+		haveIP2 bool
 	)
 	for i, s := range stages {
 		noise[i] = (FromDB(s.NFDB) - 1) / gPrev
@@ -92,6 +114,10 @@ func CascadeChain(stages []Stage) Cascade {
 			sumP1 += gPrev / FromDB(s.IP1dB)
 			haveP1 = true
 		}
+		if s.HasIIP2 {
+			sumIP2 += math.Sqrt(gPrev / FromDB(s.IIP2))
+			haveIP2 = true
+		}
 		gainDB += s.GainDB
 		gPrev *= FromDB(s.GainDB)
 
@@ -104,6 +130,9 @@ func CascadeChain(stages []Stage) Cascade {
 		}
 		if haveP1 {
 			r.CumIP1dB, r.HasIP1dB = -10*math.Log10(sumP1), true
+		}
+		if haveIP2 {
+			r.CumIIP2, r.HasIIP2 = -20*math.Log10(sumIP2), true
 		}
 	}
 	for i := range res.Stages {
@@ -123,6 +152,10 @@ func CascadeChain(stages []Stage) Cascade {
 	}
 	if haveP1 {
 		res.IP1dB, res.HasIP1dB = -10*math.Log10(sumP1), true
+	}
+	if haveIP2 {
+		res.IIP2, res.HasIIP2 = -20*math.Log10(sumIP2), true
+		res.OIP2 = res.IIP2 + gainDB
 	}
 	return res
 }
