@@ -18,7 +18,7 @@ func cmdDiff(e *Env, args []string) int {
 	rev := fs.String("rev", "", "compare the worksheet as committed at git revision `REV` with the working file")
 	pos, err := parse(fs, args)
 	if err != nil {
-		return flagErr(err)
+		return flagErr(e, fs, err)
 	}
 	var oldEv, newEv *evaluated
 	var oldName, newName string

@@ -15,7 +15,7 @@ func cmdExport(e *Env, args []string) int {
 	fs.Var(&set, "set", "replace an input: `name=value` (repeatable)")
 	pos, err := parse(fs, args)
 	if err != nil {
-		return flagErr(err)
+		return flagErr(e, fs, err)
 	}
 	if len(pos) != 1 || !*header {
 		return usageErr(e, "export", "want one worksheet and --c-header")

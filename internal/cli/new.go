@@ -16,7 +16,7 @@ func cmdNew(e *Env, args []string) int {
 	kind := fl.String("kind", "link", "starting point: `link`, receiver or satellite")
 	pos, err := parse(fl, args)
 	if err != nil {
-		return flagErr(err)
+		return flagErr(e, fl, err)
 	}
 	if len(pos) != 1 {
 		return usageErr(e, "new", "want one file name")
