@@ -74,7 +74,6 @@ func checkCode(c report.CheckInput) int {
 	return ExitOK
 }
 
-
 // checkText writes the verdict for people: diagnostics on stderr, one line per sheet and one
 // per failed requirement on stdout.
 func checkText(e *Env, c report.CheckInput) {

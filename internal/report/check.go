@@ -253,7 +253,7 @@ func CheckJUnit(in []CheckInput) []byte {
 		}
 		for _, d := range s.Diagnostics {
 			text := diagText(d)
-			jc := junitCase{Name: d.Severity + " " + strings.TrimSuffix(text, ": "+diagMessage(d)), Classname: class, File: d.File, Line: d.Line}
+			jc := junitCase{Name: d.Severity + " " + diagPlace(d), Classname: class, File: d.File, Line: d.Line}
 			if d.Severity == "error" {
 				jc.Error = &junitProblem{Message: diagMessage(d), Type: "error", Text: text}
 				su.Errors++
@@ -304,11 +304,20 @@ func diagMessage(d checkDiag) string {
 	return s
 }
 
+// diagText writes a diagnostic as the text output does: FILE:LINE:COL: [warning: ]message.
 func diagText(d checkDiag) string {
-	if d.Line == 0 {
-		return d.File + ": " + diagMessage(d)
+	msg := diagMessage(d)
+	if d.Severity == "warning" {
+		msg = "warning: " + msg
 	}
-	return fmt.Sprintf("%s:%d:%d: %s", d.File, d.Line, d.Column, diagMessage(d))
+	return diagPlace(d) + ": " + msg
+}
+
+func diagPlace(d checkDiag) string {
+	if d.Line == 0 {
+		return d.File
+	}
+	return fmt.Sprintf("%s:%d:%d", d.File, d.Line, d.Column)
 }
 
 // CheckGitHub writes check's findings as workflow commands a GitHub Actions run turns into
