@@ -118,7 +118,7 @@ func checkOf(c CheckInput) checkSheet {
 		if q.Known {
 			v, _ := engine.QuantityNumber(q)
 			cs.Focus.Value = num(v)
-			cs.Focus.SI, cs.Focus.SIUnit = siOf(q.Value)
+			cs.Focus.SI, cs.Focus.SIUnit = SI(q.Value)
 		}
 	}
 	var tol *engine.Tolerance
@@ -357,10 +357,10 @@ func ghProperty(s string) string {
 	return strings.NewReplacer("%", "%25", "\r", "%0D", "\n", "%0A", ":", "%3A", ",", "%2C").Replace(s)
 }
 
-// siOf returns a value in SI base units and the unit's name: linear values as they are
+// SI returns a value in SI base units and the unit's name: linear values as they are
 // (2.4 km → 2400 m), decibel levels as the linear value they stand for (14 dBm → 0.0251 W,
 // 3 dB → 1.995), and decibel rates in dB per SI unit (dB/m). "1" names a plain number.
-func siOf(q units.Q) (*float64, string) {
+func SI(q units.Q) (*float64, string) {
 	switch q.K {
 	case units.Rate:
 		if q.D == units.Length.Pow(-1) {
@@ -373,13 +373,13 @@ func siOf(q units.Q) (*float64, string) {
 	return num(q.V), q.D.String()
 }
 
-// siOfNumber is siOf for a number the engine reported in a named unit.
+// siOfNumber is SI for a number the engine reported in a named unit.
 func siOfNumber(v float64, unit string) (*float64, string) {
 	u, err := units.ParseUnit(unit)
 	if err != nil {
 		return nil, ""
 	}
-	return siOf(u.Of(v))
+	return SI(u.Of(v))
 }
 
 // unitName is the unit a quantity's numbers are reported in (as engine.QuantityNumber gives it).

@@ -166,9 +166,9 @@ func JSON(in Input) []byte {
 		jq := jsonQ{Unit: unit, Kind: "input", Note: q.Note, Source: q.Source, Warnings: q.Warnings}
 		if q.Known {
 			jq.Value = num(v)
-			jq.SI, jq.SIUnit = siOf(q.Value)
+			jq.SI, jq.SIUnit = SI(q.Value)
 		} else {
-			_, jq.SIUnit = siOf(q.Value)
+			_, jq.SIUnit = SI(q.Value)
 		}
 		if !q.Input() {
 			jq.Kind, jq.Formula = "derived", q.Formula
