@@ -17,11 +17,11 @@ var checkFormats = map[string]func([]report.CheckInput) []byte{
 
 func cmdCheck(e *Env, args []string) int {
 	fs := newFlags(e, "check")
-	format := fs.String("format", "text", "output `text|json|junit|github`")
+	format := fs.String("format", "text", "output `text|json|junit|github`: for people, scripts, CI test reporters, GitHub Actions annotations")
 	trials := fs.Int("trials", 0, "also run `N` Monte Carlo trials for the chance that the requirements hold (0: none)")
-	seed := fs.Uint64("seed", 1, "Monte Carlo `seed`")
+	seed := fs.Uint64("seed", 1, "Monte Carlo seed `N`")
 	var set setFlag
-	fs.Var(&set, "set", "replace an input: `name=value` (repeatable)")
+	fs.Var(&set, "set", "replace an input for this run, as `name=value` (repeatable)")
 	pos, err := parse(fs, args)
 	if err != nil {
 		return flagErr(e, fs, err)

@@ -256,7 +256,7 @@ func TestCHeader(t *testing.T) {
 	if code != ExitOK {
 		t.Fatal(stderr)
 	}
-	if !regexp.MustCompile(`(?m)^#define RX_SENSITIVITY_DBM \(-1[0-9][0-9]\.[0-9]+f\)$`).MatchString(out) {
+	if !regexp.MustCompile(`(?m)^#define FIELD_PROBE_UPLINK_RX_SENSITIVITY_DBM \(-1[0-9][0-9]\.[0-9]+f\)$`).MatchString(out) {
 		t.Errorf("no RX_SENSITIVITY_DBM define:\n%s", out)
 	}
 	if !strings.Contains(out, "#ifndef RFLEDGER_FIELD_PROBE_UPLINK_H") {

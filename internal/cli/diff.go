@@ -18,7 +18,7 @@ func cmdDiff(e *Env, args []string) int {
 	rev := fs.String("rev", "", "compare the worksheet as committed at git revision `REV` with the working file")
 	format := fs.String("format", "markdown", "output `markdown|json`")
 	exitCode := fs.Bool("exit-code", false, "exit 1 when a requirement flips from pass to fail or the focus gets worse by more than --tolerance")
-	tolText := fs.String("tolerance", "0", "how much worse the focus may get with --exit-code, e.g. `0.5dB` (a plain number is in the focus's unit)")
+	tolText := fs.String("tolerance", "0", "with --exit-code, how much worse the focus may get: `X` such as 0.5dB, a plain number in the focus's unit (default 0)")
 	pos, err := parse(fs, args)
 	if err != nil {
 		return flagErr(e, fs, err)

@@ -11,10 +11,10 @@ func cmdExport(e *Env, args []string) int {
 	fs := newFlags(e, "export")
 	header := fs.Bool("c-header", false, "write a C header of the quantities marked export = true (or export = \"NAME\")")
 	prefix := fs.String("prefix", "", "start every macro with `NAME`_ (default: the worksheet's file name, upper-cased)")
-	ctype := fs.String("type", "float", "C type of the values that are not whole counts or frequencies: `float|double|int`")
+	ctype := fs.String("type", "float", "C type `float|double|int` of the values that are not whole counts or frequencies")
 	out := fs.String("o", "", "write to `FILE` instead of standard output")
 	var set setFlag
-	fs.Var(&set, "set", "replace an input: `name=value` (repeatable)")
+	fs.Var(&set, "set", "replace an input for this run, as `name=value` (repeatable)")
 	pos, err := parse(fs, args)
 	if err != nil {
 		return flagErr(e, fs, err)

@@ -13,7 +13,7 @@ var templates embed.FS
 
 func cmdNew(e *Env, args []string) int {
 	fl := newFlags(e, "new")
-	kind := fl.String("kind", "link", "starting point: `link`, receiver or satellite")
+	kind := fl.String("kind", "link", "starting point `link|receiver|satellite`")
 	pos, err := parse(fl, args)
 	if err != nil {
 		return flagErr(e, fl, err)

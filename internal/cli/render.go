@@ -134,9 +134,9 @@ func cmdRender(e *Env, args []string) int {
 
 // analysisFlags declares the flags shared by the commands that run the analyses.
 func analysisFlags(fs *flag.FlagSet) (trials *int, seed *uint64, set *setFlag) {
-	trials = fs.Int("trials", engine.DefaultTrials, "Monte Carlo trials")
-	seed = fs.Uint64("seed", 1, "Monte Carlo seed")
+	trials = fs.Int("trials", engine.DefaultTrials, "run `N` Monte Carlo trials")
+	seed = fs.Uint64("seed", 1, "Monte Carlo seed `N` (the same seed gives the same page)")
 	set = &setFlag{}
-	fs.Var(set, "set", "replace an input: `name=value` (repeatable)")
+	fs.Var(set, "set", "replace an input for this run, as `name=value` (repeatable)")
 	return trials, seed, set
 }
