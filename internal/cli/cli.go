@@ -142,7 +142,7 @@ func usage(w io.Writer) {
 		fmt.Fprintf(w, "  rfledger %s\n      %s\n", strings.TrimSpace(c.name+" "+c.args), c.summary)
 	}
 	fmt.Fprintf(w, "\nrfledger help COMMAND (or rfledger COMMAND -h) explains one command; rfledger --version prints the version.\n")
-	fmt.Fprintf(w, "Exit codes: 0 success, 1 a requirement failed (check), 2 usage error, 3 the worksheet cannot be evaluated.\n")
+	fmt.Fprintf(w, "Exit codes: 0 success, 1 a requirement failed (check) or the results got worse (diff --exit-code), 2 usage error, 3 the worksheet cannot be evaluated.\n")
 }
 
 // help writes a command's help page: synopsis, what it does, its arguments, its flags and an example.
