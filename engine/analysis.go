@@ -598,3 +598,7 @@ func solve(nom *Result, so *Solve) (SolveResult, error) {
 	res.Found, res.Value = true, Number(vq, q)
 	return res, nil
 }
+
+// UnitName returns the symbol of the unit a quantity's numbers are reported in: its display
+// unit, else the unit its type gives ("" for a plain number).
+func UnitName(q *Quantity) string { return unitName(q) }

@@ -275,6 +275,9 @@ func (l *loader) member(f *sheetFile, g *Group, path, key string, v any) {
 	}
 }
 
+// cIdent is what export = "NAME" may be: a C identifier.
+var cIdent = regexp.MustCompile(`^[A-Za-z][A-Za-z0-9_]*$`)
+
 var quantityKeys = []string{"is", "tol", "dist", "note", "show", "source", "export"}
 
 // longForm reports whether a table is a quantity's long form rather than a group: it has
@@ -411,11 +414,17 @@ func (l *loader) quantityFields(f *sheetFile, q *Quantity, path string, m map[st
 		}
 	}
 	if v, has := m["export"]; has {
-		b, isBool := v.(bool)
-		if !isBool {
-			l.errAt(f.valueRange(join(path, "export")), q.Name, "", "export must be true or false")
+		switch x := v.(type) {
+		case bool:
+			q.Export = x
+		case string:
+			if !cIdent.MatchString(x) {
+				l.errAt(f.valueRange(join(path, "export")), q.Name, "letters, digits and _, not starting with a digit", "export name %q is not a C macro name", x)
+			}
+			q.Export, q.ExportName = true, x
+		default:
+			l.errAt(f.valueRange(join(path, "export")), q.Name, "", "export must be true, false or a macro name")
 		}
-		q.Export = b
 	}
 	if v, has := m["tol"]; has {
 		t, err := parseTol(v)

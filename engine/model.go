@@ -57,7 +57,10 @@ type Quantity struct {
 	Note    string
 	Source  string
 	Export  bool
-	Range   Range
+	// ExportName is the macro name chosen with export = "NAME" ("" for export = true: the
+	// header derives one from the quantity's name and unit).
+	ExportName string
+	Range      Range
 
 	node int
 	sh   *Sheet

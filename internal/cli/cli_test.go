@@ -196,7 +196,7 @@ func TestExitCodes(t *testing.T) {
 	}
 }
 
-// TestJSONContract checks the field names SPEC §6 fixes for scripts.
+// TestJSONContract checks the field names SPEC §6 fixes for scripts, as format 2 shapes them.
 func TestJSONContract(t *testing.T) {
 	code, out, stderr := run(t, "render", "../../worksheets/field-probe-uplink.toml", "--json", "--trials", "2000")
 	if code != ExitOK {
@@ -234,7 +234,8 @@ func TestJSONContract(t *testing.T) {
 		{"tolerance", "worst_low"}, {"tolerance", "worst_high"}, {"tolerance", "rss_sigma"}, {"tolerance", "unit"},
 		{"tolerance", "monte_carlo", "trials"}, {"tolerance", "monte_carlo", "seed"}, {"tolerance", "monte_carlo", "p_pass"},
 		{"tolerance", "monte_carlo", "p01"}, {"tolerance", "monte_carlo", "p50"}, {"tolerance", "monte_carlo", "p99"},
-		{"sweeps", 0, "vary"}, {"sweeps", 0, "unit"}, {"sweeps", 0, "points", 0, "x"}, {"sweeps", 0, "points", 0, "link.margin"},
+		{"sweeps", 0, "vary"}, {"sweeps", 0, "unit"}, {"sweeps", 0, "points", 0, "x"}, {"sweeps", 0, "points", 0, "values", "link.margin"}, {"sweeps", 0, "points", 0, "values_si", "link.margin"},
+		{"quantities", "tx.power", "si"}, {"quantities", "tx.power", "si_unit"}, {"solves", 0, "si"}, {"solves", 0, "si_unit"},
 		{"solves", 0, "name"}, {"solves", 0, "value"}, {"solves", 0, "unit"}, {"solves", 0, "found"},
 		{"warnings"},
 	} {
@@ -242,7 +243,7 @@ func TestJSONContract(t *testing.T) {
 			t.Errorf("JSON lacks %v", path)
 		}
 	}
-	if get(doc, "format") != 1.0 || get(doc, "quantities", "tx.power", "value") != 14.0 || get(doc, "quantities", "tx.power", "unit") != "dBm" {
+	if get(doc, "format") != 2.0 || get(doc, "quantities", "tx.power", "value") != 14.0 || get(doc, "quantities", "tx.power", "unit") != "dBm" {
 		t.Errorf("format/tx.power wrong: %v %v %v", get(doc, "format"), get(doc, "quantities", "tx.power", "value"), get(doc, "quantities", "tx.power", "unit"))
 	}
 	if get(doc, "tolerance", "monte_carlo", "trials") != 2000.0 {
@@ -255,7 +256,7 @@ func TestCHeader(t *testing.T) {
 	if code != ExitOK {
 		t.Fatal(stderr)
 	}
-	if !regexp.MustCompile(`(?m)^#define RX_SENSITIVITY_DBM \(-1[0-9][0-9]\.[0-9]+f\)$`).MatchString(out) {
+	if !regexp.MustCompile(`(?m)^#define FIELD_PROBE_UPLINK_RX_SENSITIVITY_DBM \(-1[0-9][0-9]\.[0-9]+f\)$`).MatchString(out) {
 		t.Errorf("no RX_SENSITIVITY_DBM define:\n%s", out)
 	}
 	if !strings.Contains(out, "#ifndef RFLEDGER_FIELD_PROBE_UPLINK_H") {

@@ -16,9 +16,19 @@ import (
 func cmdDiff(e *Env, args []string) int {
 	fs := newFlags(e, "diff")
 	rev := fs.String("rev", "", "compare the worksheet as committed at git revision `REV` with the working file")
+	format := fs.String("format", "markdown", "output `markdown|json`")
+	exitCode := fs.Bool("exit-code", false, "exit 1 when a requirement flips from pass to fail or the focus gets worse by more than --tolerance")
+	tolText := fs.String("tolerance", "0", "with --exit-code, how much worse the focus may get: `X` such as 0.5dB, a plain number in the focus's unit (default 0)")
 	pos, err := parse(fs, args)
 	if err != nil {
-		return flagErr(err)
+		return flagErr(e, fs, err)
+	}
+	if *format != "markdown" && *format != "json" {
+		return usageErr(e, "diff", "--format is markdown or json, not %q", *format)
+	}
+	tol, _, err := units.Parse(*tolText)
+	if err != nil || tol.V < 0 {
+		return usageErr(e, "diff", "--tolerance wants a non-negative amount such as 0.5dB, not %q", *tolText)
 	}
 	var oldEv, newEv *evaluated
 	var oldName, newName string
@@ -44,7 +54,24 @@ func cmdDiff(e *Env, args []string) int {
 	if !oldEv.ok() || !newEv.ok() {
 		return ExitBadSheet
 	}
-	_, _ = e.Stdout.Write(diffMarkdown(oldName, newName, oldEv.result, newEv.result))
+	reg, err := regressions(oldEv.result, newEv.result, tol)
+	if err != nil {
+		return usageErr(e, "diff", "--tolerance: %v", err)
+	}
+	if *format == "json" {
+		_, _ = e.Stdout.Write(diffJSON(oldName, newName, oldEv.result, newEv.result, reg))
+	} else {
+		_, _ = e.Stdout.Write(diffMarkdown(oldName, newName, oldEv.result, newEv.result))
+	}
+	if *exitCode && (reg.focusWorse || len(reg.flipped) > 0) {
+		for _, that := range reg.flipped {
+			fmt.Fprintf(e.Stderr, "rfledger diff: %s passed and now fails\n", that)
+		}
+		if reg.focusWorse {
+			fmt.Fprintf(e.Stderr, "rfledger diff: focus %s got worse by %s (tolerance %s)\n", newEv.sheet.Focus, reg.focusChange, *tolText)
+		}
+		return ExitFail
+	}
 	return ExitOK
 }
 

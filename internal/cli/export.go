@@ -9,16 +9,24 @@ import (
 
 func cmdExport(e *Env, args []string) int {
 	fs := newFlags(e, "export")
-	header := fs.Bool("c-header", false, "write a C header of the quantities marked export = true")
+	header := fs.Bool("c-header", false, "write a C header of the quantities marked export = true (or export = \"NAME\")")
+	prefix := fs.String("prefix", "", "start every macro with `NAME`_ (default: the worksheet's file name, upper-cased)")
+	ctype := fs.String("type", "float", "C type `float|double|int` of the values that are not whole counts or frequencies")
 	out := fs.String("o", "", "write to `FILE` instead of standard output")
 	var set setFlag
-	fs.Var(&set, "set", "replace an input: `name=value` (repeatable)")
+	fs.Var(&set, "set", "replace an input for this run, as `name=value` (repeatable)")
 	pos, err := parse(fs, args)
 	if err != nil {
-		return flagErr(err)
+		return flagErr(e, fs, err)
 	}
 	if len(pos) != 1 || !*header {
 		return usageErr(e, "export", "want one worksheet and --c-header")
+	}
+	if *prefix != "" && !report.ValidPrefix(*prefix) {
+		return usageErr(e, "export", "--prefix %q is not the start of a C macro name: letters, digits and _, starting with a letter", *prefix)
+	}
+	if *ctype != "float" && *ctype != "double" && *ctype != "int" {
+		return usageErr(e, "export", "--type is float, double or int, not %q", *ctype)
 	}
 	over, err := parseSet(set)
 	if err != nil {
@@ -29,7 +37,7 @@ func cmdExport(e *Env, args []string) int {
 	if !ev.ok() {
 		return ExitBadSheet
 	}
-	data, err := report.CHeader(ev.result)
+	data, err := report.CHeader(ev.result, report.HeaderOptions{Prefix: *prefix, Type: report.CType(*ctype)})
 	if err != nil {
 		fmt.Fprintf(e.Stderr, "rfledger export: %v\n", err)
 		return ExitBadSheet

@@ -2,6 +2,7 @@ package cli
 
 import (
 	"fmt"
+	"math"
 	"strings"
 
 	"github.com/rfledger/rfledger/internal/rflib"
@@ -9,7 +10,12 @@ import (
 )
 
 func cmdFuncs(e *Env, args []string) int {
-	if len(args) > 0 {
+	fs := newFlags(e, "funcs")
+	pos, err := parse(fs, args)
+	if err != nil {
+		return flagErr(e, fs, err)
+	}
+	if len(pos) > 0 {
 		return usageErr(e, "funcs", "takes no arguments")
 	}
 	fmt.Fprintln(e.Stdout, "Built-in functions. Arguments are checked by dimension; decibel and linear forms convert where the signature says so.")
@@ -21,12 +27,63 @@ func cmdFuncs(e *Env, args []string) int {
 }
 
 func cmdUnits(e *Env, args []string) int {
-	if len(args) > 0 {
+	fs := newFlags(e, "units")
+	pos, err := parse(fs, args)
+	if err != nil {
+		return flagErr(e, fs, err)
+	}
+	if len(pos) > 0 {
 		return usageErr(e, "units", "takes no arguments")
 	}
 	fmt.Fprint(e.Stdout, unitsHelp)
-	fmt.Fprintf(e.Stdout, "\nAll unit symbols without prefixes: %s\n", strings.Join(units.KnownUnits(), " "))
+	plain, prefixed := symbolLists()
+	fmt.Fprintf(e.Stdout, "\nUnit symbols (as written, without a prefix):\n  %s\n", strings.Join(plain, " "))
+	fmt.Fprintf(e.Stdout, "Common prefixed forms (any SI prefix works on the linear units above that take one):\n  %s\n", strings.Join(prefixed, " "))
 	return ExitOK
+}
+
+// symbolLists splits the unit table's symbols into plain symbols and prefixed forms, each
+// spelling once: the micro sign and Greek mu, and the ohm sign and Greek omega, are one
+// symbol each (Unicode NFKC folds them; both spellings parse).
+func symbolLists() (plain, prefixed []string) {
+	fold := strings.NewReplacer("\u03bc", "\u00b5", "\u2126", "\u03a9")
+	seen := map[string]bool{}
+	var all []string
+	for _, s := range units.KnownUnits() {
+		s = fold.Replace(s)
+		if !seen[s] {
+			seen[s] = true
+			all = append(all, s)
+		}
+	}
+	for _, s := range all {
+		if isPrefixed(s, seen) {
+			prefixed = append(prefixed, s)
+		} else {
+			plain = append(plain, s)
+		}
+	}
+	return plain, prefixed
+}
+
+// siPrefixes are the prefixes linear units take, with their factors.
+var siPrefixes = map[string]float64{"p": 1e-12, "n": 1e-9, "u": 1e-6, "\u00b5": 1e-6, "m": 1e-3, "c": 1e-2, "k": 1e3, "M": 1e6, "G": 1e9, "T": 1e12}
+
+// isPrefixed reports whether sym is an SI prefix on another known symbol (km, Mbit/s) rather
+// than a symbol of its own that merely starts with a prefix letter (min, mi, nmi, ppm).
+func isPrefixed(sym string, known map[string]bool) bool {
+	for p, f := range siPrefixes {
+		rest, ok := strings.CutPrefix(sym, p)
+		if !ok || !known[rest] {
+			continue
+		}
+		u, err1 := units.ParseUnit(sym)
+		r, err2 := units.ParseUnit(rest)
+		if err1 == nil && err2 == nil && u.K == units.Linear && u.D == r.D && math.Abs(u.Scale/(f*r.Scale)-1) < 1e-9 {
+			return true
+		}
+	}
+	return false
 }
 
 const unitsHelp = `Units

@@ -13,10 +13,10 @@ var templates embed.FS
 
 func cmdNew(e *Env, args []string) int {
 	fl := newFlags(e, "new")
-	kind := fl.String("kind", "link", "starting point: `link`, receiver or satellite")
+	kind := fl.String("kind", "link", "starting point `link|receiver|satellite`")
 	pos, err := parse(fl, args)
 	if err != nil {
-		return flagErr(err)
+		return flagErr(e, fl, err)
 	}
 	if len(pos) != 1 {
 		return usageErr(e, "new", "want one file name")

@@ -100,11 +100,11 @@ func writeOutputs(out string, page []byte, files []report.File) error {
 func cmdRender(e *Env, args []string) int {
 	fs := newFlags(e, "render")
 	out := fs.String("o", "", "write the page to `FILE` (charts go beside it) instead of standard output")
-	asJSON := fs.Bool("json", false, "write the JSON result (format 1) instead of Markdown")
+	asJSON := fs.Bool("json", false, "write the JSON result (format 2; rfledger schema --render-output) instead of Markdown")
 	trials, seed, set := analysisFlags(fs)
 	pos, err := parse(fs, args)
 	if err != nil {
-		return flagErr(err)
+		return flagErr(e, fs, err)
 	}
 	if len(pos) != 1 {
 		return usageErr(e, "render", "want one worksheet, got %d arguments", len(pos))
@@ -134,68 +134,11 @@ func cmdRender(e *Env, args []string) int {
 	return ExitOK
 }
 
-func cmdCheck(e *Env, args []string) int {
-	fs := newFlags(e, "check")
-	var set setFlag
-	fs.Var(&set, "set", "replace an input: `name=value` (repeatable)")
-	pos, err := parse(fs, args)
-	if err != nil {
-		return flagErr(err)
-	}
-	if len(pos) == 0 {
-		return usageErr(e, "check", "want at least one worksheet")
-	}
-	over, err := parseSet(set)
-	if err != nil {
-		return usageErr(e, "check", "%v", err)
-	}
-	code := ExitOK
-	for _, p := range pos {
-		ev := evaluate(p, over, nil, nil)
-		printDiags(e, ev.diags)
-		if !ev.ok() {
-			fmt.Fprintf(e.Stdout, "%s: cannot be evaluated\n", p)
-			code = ExitBadSheet
-			continue
-		}
-		sh := ev.sheet
-		fails := 0
-		r := ev.result
-		for _, rq := range sh.Requires {
-			if pass, _ := r.Pass(rq); !pass {
-				fails++
-			}
-		}
-		verdict := "PASS"
-		if fails > 0 {
-			verdict = "FAIL"
-			if code == ExitOK {
-				code = ExitFail
-			}
-		}
-		fmt.Fprintf(e.Stdout, "%s: %s, %d of %d requirements hold", p, verdict, len(sh.Requires)-fails, len(sh.Requires))
-		if f, ok := sh.Quantity(sh.Focus); ok {
-			fmt.Fprintf(e.Stdout, "; %s = %s", f.Name, r.Display(f))
-		}
-		fmt.Fprintln(e.Stdout)
-		for _, rq := range sh.Requires {
-			if pass, _ := r.Pass(rq); !pass {
-				fmt.Fprintf(e.Stdout, "  failed: %s", rq.That)
-				if q, ok := sh.Quantity(rq.Subject); ok {
-					fmt.Fprintf(e.Stdout, " (%s = %s)", q.Name, r.Display(q))
-				}
-				fmt.Fprintln(e.Stdout)
-			}
-		}
-	}
-	return code
-}
-
 // analysisFlags declares the flags shared by the commands that run the analyses.
 func analysisFlags(fs *flag.FlagSet) (trials *int, seed *uint64, set *setFlag) {
-	trials = fs.Int("trials", engine.DefaultTrials, "Monte Carlo trials")
-	seed = fs.Uint64("seed", 1, "Monte Carlo seed")
+	trials = fs.Int("trials", engine.DefaultTrials, "run `N` Monte Carlo trials")
+	seed = fs.Uint64("seed", 1, "Monte Carlo seed `N` (the same seed gives the same page)")
 	set = &setFlag{}
-	fs.Var(set, "set", "replace an input: `name=value` (repeatable)")
+	fs.Var(set, "set", "replace an input for this run, as `name=value` (repeatable)")
 	return trials, seed, set
 }

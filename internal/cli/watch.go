@@ -20,7 +20,7 @@ func cmdWatch(e *Env, args []string) int {
 	trials, seed, set := analysisFlags(fs)
 	pos, err := parse(fs, args)
 	if err != nil {
-		return flagErr(err)
+		return flagErr(e, fs, err)
 	}
 	if len(pos) != 1 || *out == "" {
 		return usageErr(e, "watch", "want one worksheet and -o FILE")

@@ -1,14 +1,19 @@
 package report
 
 import (
-	"bytes"
-	"encoding/json"
 	"math"
 
 	"github.com/rfledger/rfledger/engine"
 )
 
-// The JSON contract, "format": 1. Field names are stable: fields may be added, never renamed.
+// The JSON contract, "format": 2. Field names are stable: fields may be added, never renamed;
+// a change of shape bumps the format. Its schema is schema/render.schema.json.
+//
+// Format 2 against format 1: every quantity, solve and sweep value also carries "si" and
+// "si_unit" (the value in SI base units, so a script does not depend on the unit a number was
+// written in); sweep points are {"x", "x_si", "values": {name: …}, "values_si": {name: …}}, so a
+// quantity named x cannot collide with the swept value; "tolerance" is always an object, empty
+// when no input the focus depends on has a tolerance.
 type jsonDoc struct {
 	Format       int                  `json:"format"`
 	Title        string               `json:"title"`
@@ -20,7 +25,7 @@ type jsonDoc struct {
 	Chains       map[string]jsonChain `json:"chains"`
 	Sensitivity  []jsonSens           `json:"sensitivity"`
 	Budget       []jsonContribution   `json:"budget"`
-	Tolerance    *jsonTol             `json:"tolerance"`
+	Tolerance    any                  `json:"tolerance"` // *jsonTol, or an empty object
 	Sweeps       []jsonSweep          `json:"sweeps"`
 	Solves       []jsonSolve          `json:"solves"`
 	Warnings     []string             `json:"warnings"`
@@ -32,6 +37,8 @@ type jsonDoc struct {
 type jsonQ struct {
 	Value    *float64 `json:"value"`
 	Unit     string   `json:"unit"`
+	SI       *float64 `json:"si"`
+	SIUnit   string   `json:"si_unit"`
 	Kind     string   `json:"kind"`
 	Formula  string   `json:"formula,omitempty"`
 	Tol      string   `json:"tol,omitempty"`
@@ -114,9 +121,20 @@ type jsonTol struct {
 type jsonSweep struct {
 	Vary      string            `json:"vary"`
 	Unit      string            `json:"unit"`
+	SIUnit    string            `json:"si_unit"`
 	Units     map[string]string `json:"units"`
-	Points    []map[string]any  `json:"points"`
+	SIUnits   map[string]string `json:"si_units"`
+	Points    []jsonPoint       `json:"points"`
 	Crossings []jsonCrossing    `json:"crossings"`
+}
+
+// jsonPoint is one step of a sweep: the swept input and the plotted quantities, each in its
+// sweep unit and in SI base units (null where it could not be evaluated).
+type jsonPoint struct {
+	X        float64             `json:"x"`
+	XSI      *float64            `json:"x_si"`
+	Values   map[string]*float64 `json:"values"`
+	ValuesSI map[string]*float64 `json:"values_si"`
 }
 
 type jsonCrossing struct {
@@ -126,11 +144,13 @@ type jsonCrossing struct {
 }
 
 type jsonSolve struct {
-	Name  string   `json:"name"`
-	Value *float64 `json:"value"`
-	Unit  string   `json:"unit"`
-	Found bool     `json:"found"`
-	Note  string   `json:"note,omitempty"`
+	Name   string   `json:"name"`
+	Value  *float64 `json:"value"`
+	Unit   string   `json:"unit"`
+	SI     *float64 `json:"si"`
+	SIUnit string   `json:"si_unit"`
+	Found  bool     `json:"found"`
+	Note   string   `json:"note,omitempty"`
 }
 
 func num(v float64) *float64 {
@@ -140,11 +160,11 @@ func num(v float64) *float64 {
 	return &v
 }
 
-// JSON renders the result as the format-1 JSON contract.
+// JSON renders the result as the format-2 JSON contract.
 func JSON(in Input) []byte {
 	in = in.filled()
 	sh, r := in.Sheet, in.Result
-	doc := jsonDoc{Format: 1, Title: sh.Title, Summary: sh.Summary, Focus: sh.Focus, Hash: sh.Hash, Pass: true,
+	doc := jsonDoc{Format: 2, Tolerance: struct{}{}, Title: sh.Title, Summary: sh.Summary, Focus: sh.Focus, Hash: sh.Hash, Pass: true,
 		Quantities: map[string]jsonQ{}, Chains: map[string]jsonChain{},
 		Requirements: []jsonReq{}, Sensitivity: []jsonSens{}, Sweeps: []jsonSweep{}, Solves: []jsonSolve{}, Warnings: []string{}, Budget: []jsonContribution{}}
 	for _, q := range sh.Quantities() {
@@ -152,6 +172,11 @@ func JSON(in Input) []byte {
 		jq := jsonQ{Unit: unit, Kind: "input", Note: q.Note, Source: q.Source, Warnings: r.Warnings(q)}
 		if r.Known(q) {
 			jq.Value = num(v)
+			qv, _ := r.Value(q)
+			jq.SI, jq.SIUnit = SI(qv)
+		} else {
+			qt, _ := q.Type()
+			_, jq.SIUnit = SI(qt)
 		}
 		if !q.Input() {
 			jq.Kind, jq.Formula = "derived", q.Formula
@@ -178,12 +203,7 @@ func JSON(in Input) []byte {
 		analysisJSON(&doc, a, sh)
 	}
 	doc.Spurs, doc.Products = freqPlanJSON(r)
-	var b bytes.Buffer
-	enc := json.NewEncoder(&b)
-	enc.SetIndent("", "  ")
-	enc.SetEscapeHTML(false)
-	_ = enc.Encode(doc) // only plain values: cannot fail
-	return b.Bytes()
+	return encodeJSON(doc)
 }
 
 func chainJSON(ci chainInfo) jsonChain {
@@ -238,14 +258,18 @@ func analysisJSON(doc *jsonDoc, a *engine.Analysis, sh *engine.Sheet) {
 		doc.Tolerance = jt
 	}
 	for _, sw := range a.Sweeps {
-		js := jsonSweep{Vary: sw.Sweep.Vary, Unit: sw.Unit, Units: map[string]string{}, Points: []map[string]any{}, Crossings: []jsonCrossing{}}
+		js := jsonSweep{Vary: sw.Sweep.Vary, Unit: sw.Unit, Units: map[string]string{}, SIUnits: map[string]string{}, Points: []jsonPoint{}, Crossings: []jsonCrossing{}}
+		_, js.SIUnit = siOfNumber(1, sw.Unit)
 		for _, s := range sw.Series {
 			js.Units[s.Quantity] = s.Unit
+			_, js.SIUnits[s.Quantity] = siOfNumber(1, s.Unit)
 		}
 		for i, x := range sw.X {
-			pt := map[string]any{"x": x}
+			pt := jsonPoint{X: x, Values: map[string]*float64{}, ValuesSI: map[string]*float64{}}
+			pt.XSI, _ = siOfNumber(x, sw.Unit)
 			for _, s := range sw.Series {
-				pt[s.Quantity] = num(s.Y[i])
+				pt.Values[s.Quantity] = num(s.Y[i])
+				pt.ValuesSI[s.Quantity], _ = siOfNumber(s.Y[i], s.Unit)
 			}
 			js.Points = append(js.Points, pt)
 		}
@@ -256,8 +280,10 @@ func analysisJSON(doc *jsonDoc, a *engine.Analysis, sh *engine.Sheet) {
 	}
 	for _, r := range a.Solves {
 		js := jsonSolve{Name: r.Solve.Name, Unit: r.Unit, Found: r.Found, Note: r.Note}
+		_, js.SIUnit = siOfNumber(1, r.Unit)
 		if r.Found {
 			js.Value = num(r.Value)
+			js.SI, _ = siOfNumber(r.Value, r.Unit)
 		}
 		doc.Solves = append(doc.Solves, js)
 	}

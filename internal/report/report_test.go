@@ -55,15 +55,85 @@ func TestMacroUnit(t *testing.T) {
 
 func TestCHeaderNeedsExports(t *testing.T) {
 	sh := load(t, "x = \"3 dB\"\n")
-	if _, err := CHeader(sh); err == nil {
+	if _, err := CHeader(sh, HeaderOptions{}); err == nil {
 		t.Error("a sheet without export = true gave a header")
 	}
-	sh = load(t, "[rx]\nfloor = { is = \"= -100 dBm + 3 dB\", export = true, note = \"a */ b\" }\n")
-	h, err := CHeader(sh)
+	// -100 dBm + 3 dB = -97 dBm (decibel addition).
+	sh = load(t, "[rx]\nfloor = { is = \"= -100 dBm + 3 dB\", export = true, note = \"a */ b /* c ??/\" }\n")
+	h, err := CHeader(sh, HeaderOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !strings.Contains(string(h), "#define RX_FLOOR_DBM (-97.0f)") || strings.Count(string(h), "*/") != 3 {
+	// sheettest loads "sheet.toml": the prefix is SHEET.
+	if !strings.Contains(string(h), "#define SHEET_RX_FLOOR_DBM (-97.0f)") {
 		t.Errorf("header:\n%s", h)
+	}
+	// Every comment opens once and closes once on its line: the note cannot end or nest one.
+	for _, line := range strings.Split(string(h), "\n") {
+		if strings.Count(line, "/*") > 1 || strings.Count(line, "*/") > 1 || strings.Contains(line, "??") {
+			t.Errorf("comment broken: %s", line)
+		}
+	}
+}
+
+// TestCHeaderLiterals: whole counts and frequencies are integer literals in the base unit
+// (868.1 MHz = 868 100 000 Hz, 38.4 kbit/s = 38 400 bit/s by the SI prefixes); other values are
+// float, double or long literals as asked; the macro names carry the prefix.
+func TestCHeaderLiterals(t *testing.T) {
+	sh := load(t, `[path]
+frequency = { is = "868.1 MHz", export = true }
+[rx]
+bits = { is = "256", export = true }
+bitrate = { is = "38.4 kbit/s", export = true }
+floor = { is = "= -100 dBm + 3.25 dB", export = true }
+threshold = { is = "= floor + 2 dB", export = "RSSI_MIN_DBM" }
+big = { is = "5 GHz", export = true }
+`)
+	for _, c := range []struct {
+		opt  HeaderOptions
+		want []string
+	}{
+		{HeaderOptions{Prefix: "FIELD"}, []string{
+			"#define FIELD_PATH_FREQUENCY_HZ 868100000UL", "#define FIELD_RX_BITS 256UL", "#define FIELD_RX_BITRATE_BIT_PER_S 38400UL",
+			"#define FIELD_RX_FLOOR_DBM (-96.75f)", "#define FIELD_RSSI_MIN_DBM (-94.75f)",
+			// 5e9 Hz does not fit the 32 bits unsigned long is sure to have (C89 5.2.4.2.1).
+			"#define FIELD_RX_BIG_GHZ 5.0f", "#define FIELD_SHEET_HASH \"" + sh.Sheet().Hash + "\"", "#ifndef RFLEDGER_FIELD_H"}},
+		{HeaderOptions{Type: "double"}, []string{"#define SHEET_RX_FLOOR_DBM (-96.75)", "#define SHEET_PATH_FREQUENCY_HZ 868100000UL"}},
+		{HeaderOptions{Type: "int"}, []string{"#define SHEET_RX_FLOOR_DBM (-97L)", "#define SHEET_RSSI_MIN_DBM (-95L)"}},
+	} {
+		h, err := CHeader(sh, c.opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, w := range c.want {
+			if !strings.Contains(string(h), w+"\n") {
+				t.Errorf("%+v: no %q in\n%s", c.opt, w, h)
+			}
+		}
+	}
+	if _, err := CHeader(sh, HeaderOptions{Prefix: "9X"}); err == nil {
+		t.Error("a prefix that cannot start a C name was accepted")
+	}
+}
+
+func TestCHeaderNameClash(t *testing.T) {
+	sh := load(t, "[a]\nb = { is = \"1 dB\", export = true }\n[a_b]\nx = { is = \"2 dB\", export = \"A_B_DB\" }\n")
+	if _, err := CHeader(sh, HeaderOptions{}); err == nil || !strings.Contains(err.Error(), "SHEET_A_B_DB") {
+		t.Errorf("two quantities with one macro name: %v", err)
+	}
+}
+
+func TestExportName(t *testing.T) {
+	_, diags := sheettest.Eval("x = { is = \"1 dB\", export = \"9bad\" }\ny = { is = \"1 dB\", export = 3 }\n")
+	if got := diags.Error(); !strings.Contains(got, `sheet.toml:1:29: x: export name "9bad" is not a C macro name`) || !strings.Contains(got, "y: export must be true, false or a macro name") {
+		t.Errorf("diagnostics:\n%s", got)
+	}
+}
+
+func TestDefaultPrefix(t *testing.T) {
+	for in, want := range map[string]string{"worksheets/field-probe-uplink.toml": "FIELD_PROBE_UPLINK", "2024 link.toml": "SHEET_2024_LINK", "a.b.toml": "A_B"} {
+		if got := DefaultPrefix(in); got != want {
+			t.Errorf("DefaultPrefix(%q) = %q, want %q", in, got, want)
+		}
 	}
 }

@@ -1,0 +1,388 @@
+package report
+
+import (
+	"bytes"
+	"encoding/json"
+	"encoding/xml"
+	"fmt"
+	"strings"
+
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/units"
+)
+
+// CheckInput is one worksheet as check evaluated it.
+type CheckInput struct {
+	File     string // the path as given on the command line
+	Result   *engine.Result
+	Analysis *engine.Analysis   // nil unless the Monte Carlo run was asked for
+	Diags    engine.Diagnostics // everything loading, evaluation and the analyses found
+}
+
+// Verdicts of a checked worksheet.
+const (
+	VerdictPass  = "pass"  // every requirement holds
+	VerdictFail  = "fail"  // a requirement fails (or cannot be evaluated)
+	VerdictError = "error" // the worksheet cannot be evaluated
+)
+
+// checkDoc is the JSON of check --format json; its schema is schema/check.schema.json.
+type checkDoc struct {
+	Format int          `json:"format"`
+	Pass   bool         `json:"pass"`
+	Sheets []checkSheet `json:"sheets"`
+}
+
+type checkSheet struct {
+	File         string       `json:"file"`
+	Title        string       `json:"title"`
+	Hash         string       `json:"hash"`
+	Verdict      string       `json:"verdict"`
+	Focus        *checkValue  `json:"focus"`
+	Requirements []checkReq   `json:"requirements"`
+	MonteCarlo   *checkMC     `json:"monte_carlo,omitempty"`
+	Diagnostics  []checkDiag  `json:"diagnostics"`
+	counts       checkCounted // for the JUnit totals
+}
+
+type checkCounted struct{ failed, errors int }
+
+type checkValue struct {
+	Name   string   `json:"name"`
+	Value  *float64 `json:"value"`
+	Unit   string   `json:"unit"`
+	SI     *float64 `json:"si"`
+	SIUnit string   `json:"si_unit"`
+}
+
+type checkReq struct {
+	That      string   `json:"that"`
+	Note      string   `json:"note,omitempty"`
+	Pass      bool     `json:"pass"`
+	Evaluated bool     `json:"evaluated"`
+	Quantity  string   `json:"quantity,omitempty"` // the bounded quantity, for a plain bound
+	Op        string   `json:"op,omitempty"`
+	Value     *float64 `json:"value"` // the quantity's value, in unit
+	Limit     *float64 `json:"limit"` // the bound, in unit
+	Unit      string   `json:"unit"`
+	Chance    *float64 `json:"chance,omitempty"` // Monte Carlo chance that it holds, where computed
+	File      string   `json:"file"`
+	Line      int      `json:"line"`
+	Column    int      `json:"column"`
+}
+
+type checkMC struct {
+	Trials int     `json:"trials"`
+	Seed   uint64  `json:"seed"`
+	PPass  float64 `json:"p_pass"` // chance that every requirement holds
+}
+
+type checkDiag struct {
+	File     string `json:"file"`
+	Line     int    `json:"line"`
+	Column   int    `json:"column"`
+	Severity string `json:"severity"`
+	Quantity string `json:"quantity,omitempty"`
+	Message  string `json:"message"`
+	Hint     string `json:"hint,omitempty"`
+}
+
+// checkSheets works out what every writer of check reports.
+func checkSheets(in []CheckInput) []checkSheet {
+	var out []checkSheet
+	for _, c := range in {
+		out = append(out, checkOf(c))
+	}
+	return out
+}
+
+func checkOf(c CheckInput) checkSheet {
+	res := c.Result
+	sh := res.Sheet()
+	cs := checkSheet{File: c.File, Title: sh.Title, Hash: sh.Hash, Verdict: VerdictPass, Requirements: []checkReq{}, Diagnostics: []checkDiag{}}
+	for _, d := range c.Diags {
+		cd := checkDiag{File: d.Range.File, Line: d.Range.Start.Line, Column: d.Range.Start.Col, Severity: "error", Quantity: d.Quantity, Message: d.Summary, Hint: d.Hint}
+		if d.Severity == engine.Warning {
+			cd.Severity = "warning"
+		} else {
+			cs.counts.errors++
+		}
+		cs.Diagnostics = append(cs.Diagnostics, cd)
+	}
+	if c.Diags.HasErrors() {
+		cs.Verdict = VerdictError
+	}
+	var focus *engine.Quantity
+	if q, ok := sh.Quantity(sh.Focus); ok {
+		focus = q
+		cs.Focus = &checkValue{Name: q.Name, Unit: unitName(q)}
+		if qv, known := res.Value(q); known {
+			v, _ := res.Number(q)
+			cs.Focus.Value = num(v)
+			cs.Focus.SI, cs.Focus.SIUnit = SI(qv)
+		}
+	}
+	var tol *engine.Tolerance
+	if c.Analysis != nil && c.Analysis.Tolerance != nil {
+		tol = c.Analysis.Tolerance
+		cs.MonteCarlo = &checkMC{Trials: tol.Trials, Seed: tol.Seed, PPass: tol.PPass}
+	}
+	for _, rq := range sh.Requires {
+		pass, known := res.Pass(rq)
+		r := checkReq{That: rq.That, Note: rq.Note, Pass: pass, Evaluated: known,
+			File: rq.Range.File, Line: rq.Range.Start.Line, Column: rq.Range.Start.Col}
+		if q, ok := sh.Quantity(rq.Subject); ok {
+			r.Quantity, r.Op, r.Unit = q.Name, rq.Op, unitName(q)
+			if res.Known(q) {
+				v, _ := res.Number(q)
+				r.Value = num(v)
+			}
+			r.Limit = num(engine.Number(q, rq.Bound))
+			if tol != nil && q == focus && r.Limit != nil {
+				r.Chance = chance(tol, rq.Op, *r.Limit)
+			}
+		}
+		if !r.Pass {
+			cs.counts.failed++
+			if cs.Verdict == VerdictPass {
+				cs.Verdict = VerdictFail
+			}
+		}
+		cs.Requirements = append(cs.Requirements, r)
+	}
+	return cs
+}
+
+// chance is the share of Monte Carlo trials in which the focus meets a bound on itself; trials
+// that could not be evaluated count as failing, as they do for the chance that all requirements hold.
+func chance(t *engine.Tolerance, op string, limit float64) *float64 {
+	if t.Trials == 0 {
+		return nil
+	}
+	n := 0
+	for _, v := range t.Samples {
+		var ok bool
+		switch op {
+		case ">=":
+			ok = v >= limit
+		case ">":
+			ok = v > limit
+		case "<=":
+			ok = v <= limit
+		case "<":
+			ok = v < limit
+		default:
+			return nil // == and != of a continuous value: not a useful chance
+		}
+		if ok {
+			n++
+		}
+	}
+	p := float64(n) / float64(t.Trials)
+	return &p
+}
+
+// CheckJSON writes check's verdicts as JSON ("format": 1 of the check output).
+func CheckJSON(in []CheckInput) []byte {
+	doc := checkDoc{Format: 1, Pass: true, Sheets: checkSheets(in)}
+	for _, s := range doc.Sheets {
+		doc.Pass = doc.Pass && s.Verdict == VerdictPass
+	}
+	return encodeJSON(doc)
+}
+
+func encodeJSON(v any) []byte {
+	var b bytes.Buffer
+	enc := json.NewEncoder(&b)
+	enc.SetIndent("", "  ")
+	enc.SetEscapeHTML(false)
+	_ = enc.Encode(v) // only plain values: cannot fail
+	return b.Bytes()
+}
+
+// The JUnit XML shape CI test reporters read: suites of test cases, each with at most one
+// failure or error, counted on the suite.
+type junitSuites struct {
+	XMLName  xml.Name     `xml:"testsuites"`
+	Name     string       `xml:"name,attr"`
+	Tests    int          `xml:"tests,attr"`
+	Failures int          `xml:"failures,attr"`
+	Errors   int          `xml:"errors,attr"`
+	Suites   []junitSuite `xml:"testsuite"`
+}
+
+type junitSuite struct {
+	Name     string      `xml:"name,attr"`
+	Tests    int         `xml:"tests,attr"`
+	Failures int         `xml:"failures,attr"`
+	Errors   int         `xml:"errors,attr"`
+	Cases    []junitCase `xml:"testcase"`
+}
+
+type junitCase struct {
+	Name      string        `xml:"name,attr"`
+	Classname string        `xml:"classname,attr"`
+	File      string        `xml:"file,attr,omitempty"`
+	Line      int           `xml:"line,attr,omitempty"`
+	Failure   *junitProblem `xml:"failure"`
+	Error     *junitProblem `xml:"error"`
+	SystemErr string        `xml:"system-err,omitempty"`
+}
+
+type junitProblem struct {
+	Message string `xml:"message,attr"`
+	Type    string `xml:"type,attr"`
+	Text    string `xml:",chardata"`
+}
+
+// CheckJUnit writes check's verdicts as JUnit XML: a suite per worksheet, a test case per
+// requirement (a failure when it does not hold) and per diagnostic (an error for an error; a
+// warning is a passing case whose text is in system-err, since JUnit has no warning state and
+// check succeeds with warnings).
+func CheckJUnit(in []CheckInput) []byte {
+	doc := junitSuites{Name: "rfledger check"}
+	for _, s := range checkSheets(in) {
+		class := strings.TrimSuffix(baseName(s.File), ".toml")
+		su := junitSuite{Name: s.File}
+		for _, r := range s.Requirements {
+			jc := junitCase{Name: "require " + r.That, Classname: class, File: r.File, Line: r.Line}
+			if !r.Pass {
+				msg := requirementMessage(r)
+				jc.Failure = &junitProblem{Message: msg, Type: "requirement", Text: fmt.Sprintf("%s:%d:%d: %s", r.File, r.Line, r.Column, msg)}
+				su.Failures++
+			}
+			su.Cases = append(su.Cases, jc)
+		}
+		for _, d := range s.Diagnostics {
+			text := diagText(d)
+			jc := junitCase{Name: d.Severity + " " + diagPlace(d), Classname: class, File: d.File, Line: d.Line}
+			if d.Severity == "error" {
+				jc.Error = &junitProblem{Message: diagMessage(d), Type: "error", Text: text}
+				su.Errors++
+			} else {
+				jc.SystemErr = text
+			}
+			su.Cases = append(su.Cases, jc)
+		}
+		su.Tests = len(su.Cases)
+		doc.Tests += su.Tests
+		doc.Failures += su.Failures
+		doc.Errors += su.Errors
+		doc.Suites = append(doc.Suites, su)
+	}
+	var b bytes.Buffer
+	b.WriteString(xml.Header)
+	enc := xml.NewEncoder(&b)
+	enc.Indent("", "  ")
+	_ = enc.Encode(doc) // only plain values: cannot fail
+	b.WriteString("\n")
+	return b.Bytes()
+}
+
+// requirementMessage says why a requirement does not hold, with the values where it is a bound.
+func requirementMessage(r checkReq) string {
+	switch {
+	case !r.Evaluated:
+		return "requirement cannot be evaluated: " + r.That
+	case r.Value != nil && r.Limit != nil:
+		return fmt.Sprintf("requirement fails: %s (%s = %s, limit %s)", r.That, r.Quantity, numUnit(*r.Value, r.Unit), numUnit(*r.Limit, r.Unit))
+	}
+	return "requirement fails: " + r.That
+}
+
+func numUnit(v float64, unit string) string {
+	u := unitOfName(unit)
+	return u.Of(v).Format(u)
+}
+
+func diagMessage(d checkDiag) string {
+	s := d.Message
+	if d.Quantity != "" {
+		s = d.Quantity + ": " + s
+	}
+	if d.Hint != "" {
+		s += "; " + d.Hint
+	}
+	return s
+}
+
+// diagText writes a diagnostic as the text output does: FILE:LINE:COL: [warning: ]message.
+func diagText(d checkDiag) string {
+	msg := diagMessage(d)
+	if d.Severity == "warning" {
+		msg = "warning: " + msg
+	}
+	return diagPlace(d) + ": " + msg
+}
+
+func diagPlace(d checkDiag) string {
+	if d.Line == 0 {
+		return d.File
+	}
+	return fmt.Sprintf("%s:%d:%d", d.File, d.Line, d.Column)
+}
+
+// CheckGitHub writes check's findings as workflow commands a GitHub Actions run turns into
+// annotations on the pull request's diff: ::error for errors and failed requirements,
+// ::warning for warnings, then one plain verdict line per worksheet.
+func CheckGitHub(in []CheckInput) []byte {
+	var b bytes.Buffer
+	for _, s := range checkSheets(in) {
+		for _, d := range s.Diagnostics {
+			ghLine(&b, d.Severity, d.File, d.Line, d.Column, diagMessage(d))
+		}
+		for _, r := range s.Requirements {
+			if !r.Pass {
+				ghLine(&b, "error", r.File, r.Line, r.Column, requirementMessage(r))
+			}
+		}
+		fmt.Fprintf(&b, "%s: %s\n", s.File, strings.ToUpper(s.Verdict))
+	}
+	return b.Bytes()
+}
+
+func ghLine(b *bytes.Buffer, severity, file string, line, col int, msg string) {
+	fmt.Fprintf(b, "::%s file=%s", severity, ghProperty(file))
+	if line > 0 {
+		fmt.Fprintf(b, ",line=%d,col=%d", line, col)
+	}
+	fmt.Fprintf(b, ",title=rfledger::%s\n", ghData(msg))
+}
+
+// ghData escapes a workflow command's message: %, CR and LF would end or corrupt it.
+func ghData(s string) string {
+	return strings.NewReplacer("%", "%25", "\r", "%0D", "\n", "%0A").Replace(s)
+}
+
+// ghProperty escapes a workflow command's property value, where : and , also separate.
+func ghProperty(s string) string {
+	return strings.NewReplacer("%", "%25", "\r", "%0D", "\n", "%0A", ":", "%3A", ",", "%2C").Replace(s)
+}
+
+// SI returns a value in SI base units and the unit's name: linear values as they are
+// (2.4 km → 2400 m), decibel levels as the linear value they stand for (14 dBm → 0.0251 W,
+// 3 dB → 1.995), and decibel rates in dB per SI unit (dB/m). "1" names a plain number.
+func SI(q units.Q) (*float64, string) {
+	switch q.K {
+	case units.Rate:
+		if q.D == units.Length.Pow(-1) {
+			return num(q.V), "dB/m"
+		}
+		return num(q.V), "dB*" + q.D.String()
+	case units.Level:
+		q = q.Linear()
+	}
+	return num(q.V), q.D.String()
+}
+
+// siOfNumber is SI for a number the engine reported in a named unit.
+func siOfNumber(v float64, unit string) (*float64, string) {
+	u, err := units.ParseUnit(unit)
+	if err != nil {
+		return nil, ""
+	}
+	return SI(u.Of(v))
+}
+
+// unitName is the unit a quantity's numbers are reported in (as Result.Number gives it).
+func unitName(q *engine.Quantity) string { return engine.UnitName(q) }
