@@ -236,6 +236,7 @@ func (r *Result) restore(nom *Result, cone []int32) {
 		r.vals[id], r.known[id] = nom.vals[id], nom.known[id]
 		if n := r.sh.nodes[id]; n.chain != nil {
 			copy(r.chains[n.chainIdx].Stages, nom.chains[n.chainIdx].Stages)
+			r.chains[n.chainIdx].Memo.Valid = false
 		}
 	}
 }

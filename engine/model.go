@@ -152,6 +152,17 @@ var stageKeys = []string{"gain", "nf", "te", "loss", "iip3", "oip3", "ip1db", "o
 type ChainValue struct {
 	Name   string
 	Stages []StageValue
+	// Memo, when not nil, lets the function library keep what it derives from the stages (a
+	// cascade) so that several functions of one chain work it out once per evaluation.
+	Memo *ChainMemo
+}
+
+// ChainMemo holds a library's work on a chain's stages. The engine sets Valid to false each
+// time the stage values change; Data belongs to the library and is kept from one evaluation
+// to the next, so that its buffers are reused. Each evaluation result has its own.
+type ChainMemo struct {
+	Valid bool
+	Data  any
 }
 
 // StageValue is one evaluated stage.

@@ -82,6 +82,7 @@ func (r *Result) Pass(rq *Require) (pass, known bool) {
 func (r *Result) Chain(c *Chain) *ChainValue {
 	cv := r.chains[r.sh.nodes[c.node].chainIdx]
 	cv.Stages = append([]StageValue(nil), cv.Stages...)
+	cv.Memo = nil
 	return &cv
 }
 
@@ -115,6 +116,7 @@ func (s *Sheet) newResult() *Result {
 		if n.chain != nil {
 			cv := &r.chains[n.chainIdx]
 			cv.Name = n.chain.Name
+			cv.Memo = &ChainMemo{}
 			cv.Stages = make([]StageValue, len(n.chain.Stages))
 			for i, st := range n.chain.Stages {
 				cv.Stages[i].Label = st.Label
@@ -137,7 +139,7 @@ func (r *Result) clone() *Result {
 		quiet:  true,
 	}
 	for i, cv := range r.chains {
-		c.chains[i] = ChainValue{Name: cv.Name, Stages: append([]StageValue(nil), cv.Stages...)}
+		c.chains[i] = ChainValue{Name: cv.Name, Stages: append([]StageValue(nil), cv.Stages...), Memo: &ChainMemo{}}
 	}
 	c.call.quiet = true
 	return c
@@ -279,6 +281,7 @@ func runtimeDiag(err error, name, formula string, rng Range, st site) Diagnostic
 // fillChain gathers a chain's stage values from its stage quantities.
 func (r *Result) fillChain(n *node) {
 	cv := &r.chains[n.chainIdx]
+	cv.Memo.Valid = false
 	for i, st := range n.chain.Stages {
 		sv := &cv.Stages[i]
 		sv.has = 0

@@ -57,8 +57,11 @@ func cascadeFunc(name, res, doc, src string, pick func(rfmath.Cascade) (units.Q,
 // iip3 or oip3 − gain, IIP2 from iip2 or oip2 − gain, IP1dB from ip1db or op1db − gain + 1 dB (the gain is 1 dB compressed
 // at that point; common practice). Notes say what was assumed.
 func Stages(cv *engine.ChainValue) ([]rfmath.Stage, []string, error) {
-	var out []rfmath.Stage
-	var notes []string
+	return stagesInto(nil, nil, cv)
+}
+
+// stagesInto is Stages appending to out and notes (so that their storage can be reused).
+func stagesInto(out []rfmath.Stage, notes []string, cv *engine.ChainValue) ([]rfmath.Stage, []string, error) {
 	if len(cv.Stages) == 0 {
 		return nil, nil, fmt.Errorf("chain %s has no stages", cv.Name)
 	}
@@ -128,11 +131,39 @@ func intercept(sv engine.StageValue, inKey, outKey string, gain, compression flo
 	return dbm, true, nil
 }
 
-// Cascade computes a chain's cascade with per-stage cumulative values and shares.
+// Cascade computes a chain's cascade with per-stage cumulative values and shares. With the
+// chain's memo, it is worked out once per evaluation of the chain, in reused storage; the
+// returned cascade is then valid until the chain is evaluated again.
 func Cascade(cv *engine.ChainValue) (rfmath.Cascade, []string, error) {
-	st, notes, err := Stages(cv)
-	if err != nil {
-		return rfmath.Cascade{}, nil, err
+	if cv.Memo == nil {
+		st, notes, err := Stages(cv)
+		if err != nil {
+			return rfmath.Cascade{}, nil, err
+		}
+		return rfmath.CascadeChain(st), notes, nil
 	}
-	return rfmath.CascadeChain(st), notes, nil
+	m, _ := cv.Memo.Data.(*cascadeMemo)
+	if m == nil {
+		m = &cascadeMemo{}
+		cv.Memo.Data = m
+	}
+	if !cv.Memo.Valid {
+		m.stages, m.notes, m.err = stagesInto(m.stages[:0], m.notes[:0], cv)
+		if m.err == nil {
+			m.cas.Compute(m.stages)
+		}
+		cv.Memo.Valid = true
+	}
+	if m.err != nil {
+		return rfmath.Cascade{}, nil, m.err
+	}
+	return m.cas, m.notes, nil
+}
+
+// cascadeMemo is what Cascade keeps in a chain's memo.
+type cascadeMemo struct {
+	stages []rfmath.Stage
+	notes  []string
+	cas    rfmath.Cascade
+	err    error
 }

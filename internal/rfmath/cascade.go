@@ -88,12 +88,27 @@ type Cascade struct {
 // common approximation. Stages without an IIP3 (or IP1dB) are treated as
 // perfectly linear. An empty chain has 0 dB gain and 0 dB noise figure.
 func CascadeChain(stages []Stage) Cascade {
-	res := Cascade{Stages: make([]StageResult, len(stages))}
+	var res Cascade
+	res.Compute(stages)
+	return res
+}
+
+// Compute works out the cascade of stages into res, as CascadeChain does, reusing the
+// storage of res.Stages (no allocation when it is large enough).
+func (res *Cascade) Compute(stages []Stage) {
+	st := res.Stages
+	if cap(st) < len(stages) {
+		st = make([]StageResult, len(stages))
+	} else {
+		st = st[:len(stages)]
+		clear(st)
+	}
+	*res = Cascade{Stages: st}
 	gPrev := 1.0 // linear gain ahead of the current stage
+	// Each stage's (Fi − 1)/G_before and G_before/IIP3_i are kept in its NoiseShare and
+	// IIP3Share until the sums they are shares of are known.
 	var (
 		gainDB  float64
-		noise   = make([]float64, len(stages)) // (Fi − 1)/G_before
-		ip3     = make([]float64, len(stages)) // G_before / IIP3_i, 1/mW
 		sumN    float64
 		sumIP3  float64
 		sumP1   float64
@@ -103,11 +118,12 @@ func CascadeChain(stages []Stage) Cascade {
 		haveIP2 bool
 	)
 	for i, s := range stages {
-		noise[i] = (FromDB(s.NFDB) - 1) / gPrev
-		sumN += noise[i]
+		r := &res.Stages[i]
+		r.NoiseShare = (FromDB(s.NFDB) - 1) / gPrev
+		sumN += r.NoiseShare
 		if s.HasIIP3 {
-			ip3[i] = gPrev / FromDB(s.IIP3)
-			sumIP3 += ip3[i]
+			r.IIP3Share = gPrev / FromDB(s.IIP3)
+			sumIP3 += r.IIP3Share
 			haveIP3 = true
 		}
 		if s.HasIP1dB {
@@ -121,7 +137,6 @@ func CascadeChain(stages []Stage) Cascade {
 		gainDB += s.GainDB
 		gPrev *= FromDB(s.GainDB)
 
-		r := &res.Stages[i]
 		r.CumGainDB = gainDB
 		r.CumNFDB = 10 * math.Log10(1+sumN)
 		r.CumTeK = T0 * sumN
@@ -136,11 +151,16 @@ func CascadeChain(stages []Stage) Cascade {
 		}
 	}
 	for i := range res.Stages {
+		r := &res.Stages[i]
 		if sumN != 0 {
-			res.Stages[i].NoiseShare = noise[i] / sumN
+			r.NoiseShare /= sumN
+		} else {
+			r.NoiseShare = 0
 		}
 		if sumIP3 != 0 && stages[i].HasIIP3 {
-			res.Stages[i].IIP3Share = ip3[i] / sumIP3
+			r.IIP3Share /= sumIP3
+		} else {
+			r.IIP3Share = 0
 		}
 	}
 	res.GainDB = gainDB
@@ -157,7 +177,6 @@ func CascadeChain(stages []Stage) Cascade {
 		res.IIP2, res.HasIIP2 = -20*math.Log10(sumIP2), true
 		res.OIP2 = res.IIP2 + gainDB
 	}
-	return res
 }
 
 // IM3 returns the output level in dBm of each two-tone third-order
