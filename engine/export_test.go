@@ -5,5 +5,8 @@ package engine
 // Rerun evaluates r again from its inputs, quietly, reusing its storage.
 func Rerun(r *Result) { r.run(true) }
 
+// Evaluated returns how many nodes EvalFrom computed again.
+func Evaluated(r *Result) int { return r.evaluated }
+
 // Parsed returns how many formulas the sheet's Load parsed (the rest were reused).
 func Parsed(s *Sheet) int { return s.nparsed }

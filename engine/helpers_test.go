@@ -3,6 +3,7 @@ package engine_test
 import (
 	"math"
 	"testing"
+	"testing/fstest"
 
 	"github.com/rfledger/rfledger/engine"
 	"github.com/rfledger/rfledger/internal/sheettest"
@@ -56,3 +57,12 @@ func ktbDBm(b, t float64) float64 {
 
 // lib is the function library every test sheet is loaded with.
 var lib = sheettest.Lib
+
+// sheetFromFiles loads files from memory with prev as the earlier load to reuse.
+func sheetFromFiles(files map[string]string, prev *engine.Sheet) (*engine.Sheet, engine.Diagnostics) {
+	fsys := fstest.MapFS{}
+	for name, text := range files {
+		fsys[name] = &fstest.MapFile{Data: []byte(text)}
+	}
+	return engine.Load("s.toml", engine.Options{Library: lib, FS: fsys, Previous: prev})
+}

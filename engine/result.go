@@ -3,6 +3,7 @@ package engine
 import (
 	"fmt"
 	"math"
+	"slices"
 
 	"github.com/rfledger/rfledger/units"
 )
@@ -21,9 +22,10 @@ type Result struct {
 	diags  Diagnostics
 	set    []Override
 
-	call  Call
-	args  []Value // argument stack of function calls
-	quiet bool
+	call      Call
+	args      []Value // argument stack of function calls
+	quiet     bool
+	evaluated int // nodes EvalFrom computed (the rest it took from the earlier result)
 }
 
 // Sheet returns the sheet the result belongs to.
@@ -329,6 +331,98 @@ func (r *Result) requirements() {
 func (r *Result) allPass() bool {
 	for _, p := range r.pass {
 		if p != 1 {
+			return false
+		}
+	}
+	return true
+}
+
+// EvalFrom evaluates the sheet as Eval does, reusing prev, an evaluation of an earlier load
+// of the same worksheet (watch, an editor): a quantity whose definition, dependencies and
+// overrides did not change, and none of whose dependencies changed, keeps its value from
+// prev; only the cones of what changed are computed again. The result is the same as Eval's.
+func (s *Sheet) EvalFrom(prev *Result, set ...Override) (*Result, Diagnostics) {
+	if prev == nil {
+		return s.Eval(set...)
+	}
+	r := s.newResult()
+	r.set = set
+	r.diags = append(r.diags, r.applyAll(set)...)
+	old := prev.sh
+	overridden := map[string]string{}
+	for _, o := range prev.set {
+		overridden[o.Name] = o.Value
+	}
+	for _, o := range set {
+		if v, ok := overridden[o.Name]; ok && v == o.Value {
+			delete(overridden, o.Name)
+		} else {
+			overridden[o.Name] = "changed"
+		}
+	}
+	dirty := make([]bool, len(s.nodes))
+	from := make([]int, len(s.nodes))
+	for _, id := range s.order {
+		n := s.nodes[id]
+		oid, ok := old.byName[n.name]
+		from[id] = oid
+		if !ok || !sameNode(n, old.nodes[oid], s, old) || !prev.known[oid] {
+			dirty[id] = true
+		} else if _, ch := overridden[n.name]; ch {
+			dirty[id] = true
+		} else {
+			for _, d := range n.deps {
+				dirty[id] = dirty[id] || dirty[d]
+			}
+		}
+	}
+	r.quiet, r.call.quiet = false, false
+	for _, id := range s.order {
+		if dirty[id] {
+			r.evalNode(id)
+			r.evaluated++
+			continue
+		}
+		oid := from[id]
+		r.vals[id], r.known[id] = prev.vals[oid], prev.known[oid]
+		n := s.nodes[id]
+		if n.chain != nil {
+			copy(r.chains[n.chainIdx].Stages, prev.chains[old.nodes[oid].chainIdx].Stages)
+			continue
+		}
+		if w := prev.warn[oid]; len(w) > 0 {
+			r.warn[id] = w
+			for _, msg := range w {
+				r.diags = append(r.diags, Diagnostic{Severity: Warning, Quantity: n.q.Name, Summary: msg, Range: n.q.Range})
+			}
+		}
+	}
+	r.requirements()
+	r.diags = sortDiags(r.diags)
+	return r, r.diags
+}
+
+// sameNode reports whether a node is defined as it was in an earlier load: the same formula
+// or input value, the same type, and dependencies of the same names.
+func sameNode(n, o *node, s, old *Sheet) bool {
+	if (n.q == nil) != (o.q == nil) || (n.chain == nil) != (o.chain == nil) || n.ok != o.ok || n.typed != o.typed || n.ty != o.ty || len(n.deps) != len(o.deps) {
+		return false
+	}
+	if n.q != nil && (n.q.Formula != o.q.Formula || n.input != o.input) {
+		return false
+	}
+	if n.chain != nil {
+		if len(n.chain.Stages) != len(o.chain.Stages) {
+			return false
+		}
+		for i, st := range n.chain.Stages {
+			if st.Label != o.chain.Stages[i].Label || !slices.Equal(st.Keys, o.chain.Stages[i].Keys) {
+				return false
+			}
+		}
+	}
+	for i, d := range n.deps {
+		if s.nodes[d].name != old.nodes[o.deps[i]].name {
 			return false
 		}
 	}
