@@ -1,0 +1,59 @@
+package cli
+
+import (
+	"flag"
+	"fmt"
+	"strings"
+	"testing"
+	"testing/fstest"
+
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/internal/gen"
+)
+
+// renderOnce does what `rfledger render` does short of writing files, for a worksheet text:
+// load, evaluate, analyse, then the Markdown page with its charts and the JSON. It is the only
+// function in this file that calls the engine's API and the command's internals, so a change
+// of API is adapted in one place. It returns the bytes written, so the work cannot be skipped.
+func renderOnce(tb testing.TB, fsys fstest.MapFS) int {
+	ev := evaluate("sheet.toml", nil, fsys, &engine.AnalysisOptions{Trials: engine.DefaultTrials, Seed: 1})
+	if !ev.ok() {
+		tb.Fatal(ev.diags)
+	}
+	page, charts := output(ev, false, "sheet.md")
+	js, _ := output(ev, true, "")
+	n := len(page) + len(js)
+	for _, c := range charts {
+		n += len(c.Data)
+	}
+	return n
+}
+
+// BenchmarkRender renders a generated farm-network sheet (internal/gen) of 10,000 quantities;
+// -bench 'Render/' runs 1,000 and 100,000 too (and -bench 'Render/1000$' only 1,000).
+func BenchmarkRender(b *testing.B) {
+	for _, n := range []int{1_000, 10_000, 100_000} {
+		src, err := gen.Budget(n, 1)
+		if err != nil {
+			b.Fatal(err)
+		}
+		fsys := fstest.MapFS{"sheet.toml": &fstest.MapFile{Data: src}}
+		name := fmt.Sprint(n)
+		b.Run(name, func(b *testing.B) {
+			if n != 10_000 && !benchNamed() {
+				b.Skip("run with -bench 'Render/" + name + "'")
+			}
+			var bytes int
+			for b.Loop() {
+				bytes = renderOnce(b, fsys)
+			}
+			b.ReportMetric(float64(bytes), "bytes-out")
+		})
+	}
+}
+
+// benchNamed reports whether the -bench pattern picks sizes ("Render/", "Render/1000$").
+func benchNamed() bool {
+	f := flag.Lookup("test.bench")
+	return f != nil && strings.Contains(f.Value.String(), "Render/")
+}
