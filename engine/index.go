@@ -6,16 +6,76 @@ import (
 	"unicode/utf8"
 )
 
-// keyPos is where a key and its value stand in the source. For a string value, Content is the
-// position of its first character after the quotes and Multi reports a multi-line string.
+// keyPos is where a key and its value stand in the source. Ends are exclusive: the position
+// just after the last character of the key or value.
 type keyPos struct {
-	Key, Val, Content Pos
-	Multi             bool
-	Inline            bool // the value is an inline table { ... }
+	Key, KeyEnd Pos // the key as written (for a table header, the whole [header])
+	Val, ValEnd Pos // the value as written, quotes and brackets included
+	Content     Pos // for a string value, its first character after the quotes
+	Multi       bool
+	Inline      bool // the value is an inline table { ... }
+
+	IsStr bool   // the value is a string
+	Text  string // a string value as decoded
+	segs  []strSeg
 }
 
-// posIndex maps full key paths ("tx.power", "tx.power.is", "rx.chain[1].gain",
-// "require[0].that") to their positions, and remembers the order keys appear in.
+// strSeg maps decoded bytes of a string value back to raw bytes of the file. A segment covers
+// the decoded bytes from dec up to the next segment's dec. A plain segment maps them one to
+// one from raw; an escape segment (esc > 0: the escape's raw length, line continuations
+// included) maps them all to the escape as a whole. A string without escapes has no segments:
+// decoded byte i is raw byte Content.Byte+i.
+type strSeg struct {
+	dec, raw, esc int
+}
+
+// rawStart returns the raw byte offset where decoded byte d of the string value begins.
+func (kp *keyPos) rawStart(d int) int {
+	if kp.segs == nil {
+		return kp.Content.Byte + d
+	}
+	sg := kp.segs[kp.seg(d)]
+	if sg.esc > 0 {
+		return sg.raw
+	}
+	return sg.raw + d - sg.dec
+}
+
+// rawEnd returns the raw byte offset just after decoded byte d-1 of the string value.
+func (kp *keyPos) rawEnd(d int) int {
+	if d <= 0 {
+		return kp.rawStart(0)
+	}
+	if kp.segs == nil {
+		return kp.Content.Byte + d
+	}
+	sg := kp.segs[kp.seg(d-1)]
+	if sg.esc > 0 {
+		return sg.raw + sg.esc
+	}
+	return sg.raw + d - sg.dec
+}
+
+// seg returns the index of the last segment starting at or before decoded byte d.
+func (kp *keyPos) seg(d int) int {
+	lo, hi := 0, len(kp.segs) // invariant: segs[lo].dec <= d (segs[0].dec == 0), answer < hi
+	for hi-lo > 1 {
+		m := (lo + hi) / 2
+		if kp.segs[m].dec <= d {
+			lo = m
+		} else {
+			hi = m
+		}
+	}
+	return lo
+}
+
+// posIndex maps key paths to their positions, and remembers the order keys appear in.
+// A path is written as its keys joined by "." with array elements as "[n]"
+// ("tx.power.is", "rx.chain[1].gain", "require[0].that"); a key that is not bare
+// (letters, digits, _ and -) has its \ . [ and ] escaped with \ (see keyJoin), so the
+// quoted key "q.r" in [g] is g.q\.r and cannot collide with r in [g.q], g.q.r. For bare
+// keys a path is the plain dotted path.
 // BurntSushi/toml decodes values but keeps key positions private; this small scanner
 // recovers them. It never fails: on text it does not understand it stops, and the
 // decoder reports the syntax error.
@@ -25,9 +85,116 @@ type posIndex struct {
 	first map[string]Pos // where each path prefix first appears, for tables implied by [a.b] or [[a.c]]
 }
 
+// get returns the positions of the key at path (in the escaped form keyJoin builds).
 func (ix *posIndex) get(path string) (keyPos, bool) {
 	p, ok := ix.pos[path]
 	return p, ok
+}
+
+// lookup returns the positions of the key reached by the given decoded keys, in order; an
+// element of an array is a key "[n]" (n in decimal) following the array's key.
+func (ix *posIndex) lookup(keys ...string) (keyPos, bool) {
+	return ix.get(keyPath(keys...))
+}
+
+// keyPath joins decoded keys into an index path; "[n]" stands for an element of an array.
+func keyPath(keys ...string) string {
+	var b strings.Builder
+	for _, k := range keys {
+		if isIndex(k) && b.Len() > 0 {
+			b.WriteString(k)
+			continue
+		}
+		if b.Len() > 0 {
+			b.WriteByte('.')
+		}
+		b.WriteString(escapeKey(k))
+	}
+	return b.String()
+}
+
+func isIndex(k string) bool {
+	if len(k) < 3 || k[0] != '[' || k[len(k)-1] != ']' {
+		return false
+	}
+	_, err := strconv.Atoi(k[1 : len(k)-1])
+	return err == nil
+}
+
+// keyJoin appends one decoded key to an index path.
+func keyJoin(path, key string) string {
+	return join(path, escapeKey(key))
+}
+
+// escapeKey writes a decoded key as one element of an index path.
+func escapeKey(k string) string {
+	bare := k != ""
+	for i := 0; i < len(k) && bare; i++ {
+		bare = isBareKey(k[i])
+	}
+	if bare {
+		return k
+	}
+	var b strings.Builder
+	for i := 0; i < len(k); i++ {
+		switch c := k[i]; c {
+		case '\\', '.', '[', ']':
+			b.WriteByte('\\')
+			b.WriteByte(c)
+		default:
+			b.WriteByte(c)
+		}
+	}
+	return b.String()
+}
+
+// parentPath returns the path one step up (the table or array holding path), and false at the top.
+func parentPath(path string) (string, bool) {
+	cut := -1
+	for i := 0; i < len(path); i++ {
+		switch path[i] {
+		case '\\':
+			i++
+		case '.', '[':
+			cut = i
+		}
+	}
+	if cut <= 0 {
+		return "", false
+	}
+	return path[:cut], true
+}
+
+// keyPathOf converts a dotted key as TOML writes it (`a."b.c"`, as the decoder's messages quote
+// keys) into an index path.
+func keyPathOf(tomlKey string) string {
+	s := &tomlScanner{src: tomlKey, line: 1, col: 1}
+	parts, ok := s.key()
+	if !ok || s.i != len(tomlKey) {
+		return tomlKey
+	}
+	return keyPath(parts...)
+}
+
+// advance returns the position of byte offset target of src, counting from p (which must lie
+// at or before it).
+func advance(p Pos, src string, target int) Pos {
+	target = min(target, len(src))
+	for p.Byte < target {
+		r, n := utf8.DecodeRuneInString(src[p.Byte:])
+		p.Byte += n
+		if r == '\n' {
+			p.Line, p.Col = p.Line+1, 1
+		} else {
+			p.Col++
+		}
+	}
+	return p
+}
+
+// posOfByte returns the position of a byte offset of src.
+func posOfByte(src string, off int) Pos {
+	return advance(Pos{Line: 1, Col: 1}, src, off)
 }
 
 type tomlScanner struct {
@@ -45,7 +212,7 @@ func indexTOML(src string) *posIndex {
 	return s.ix
 }
 
-func (s *tomlScanner) here() Pos { return Pos{s.line, s.col} }
+func (s *tomlScanner) here() Pos { return Pos{Line: s.line, Col: s.col, Byte: s.i} }
 
 func (s *tomlScanner) peek() byte {
 	if s.i < len(s.src) {
@@ -84,18 +251,35 @@ func (s *tomlScanner) skipSpace(newlines bool) {
 	}
 }
 
-func (s *tomlScanner) add(path string, kp keyPos) {
+// add records a key's positions unless the path is already known (the first definition
+// wins; the decoder reports the second).
+func (s *tomlScanner) add(path string, kp keyPos) bool {
 	if _, dup := s.ix.pos[path]; dup {
-		return
+		return false
 	}
 	s.ix.pos[path] = kp
 	s.ix.order = append(s.ix.order, path)
 	for i := 1; i < len(path); i++ {
-		if path[i] == '.' || path[i] == '[' {
+		switch path[i] {
+		case '\\':
+			i++
+		case '.', '[':
 			if _, seen := s.ix.first[path[:i]]; !seen {
 				s.ix.first[path[:i]] = kp.Key
 			}
 		}
+	}
+	return true
+}
+
+// setValEnd records where a table or array value added before its contents ends.
+func (s *tomlScanner) setValEnd(path string, end Pos) {
+	if kp, ok := s.ix.pos[path]; ok {
+		if kp.KeyEnd == kp.Key { // an element of an array has no key: its value stands for it
+			kp.KeyEnd = end
+		}
+		kp.ValEnd = end
+		s.ix.pos[path] = kp
 	}
 }
 
@@ -114,7 +298,7 @@ func (s *tomlScanner) document() {
 				s.adv()
 			}
 			s.skipSpace(false)
-			key, ok := s.key()
+			keys, ok := s.key()
 			if !ok {
 				return
 			}
@@ -122,14 +306,14 @@ func (s *tomlScanner) document() {
 			for s.i < len(s.src) && s.peek() == ']' {
 				s.adv()
 			}
+			table = s.resolve(keys)
 			if array {
-				n := s.arrays[key]
-				s.arrays[key] = n + 1
-				table = key + "[" + strconv.Itoa(n) + "]"
-			} else {
-				table = s.resolve(key)
+				n := s.arrays[table]
+				s.arrays[table] = n + 1
+				table += "[" + strconv.Itoa(n) + "]"
 			}
-			s.add(table, keyPos{Key: start, Val: start})
+			end := s.here()
+			s.add(table, keyPos{Key: start, KeyEnd: end, Val: start, ValEnd: end})
 			continue
 		}
 		if !s.keyValue(table) {
@@ -138,17 +322,13 @@ func (s *tomlScanner) document() {
 	}
 }
 
-// resolve maps a table header path through the arrays of tables seen so far, so that
+// resolve maps a table header's keys through the arrays of tables seen so far, so that
 // [rx.chain.extra] after [[rx.chain]] lands in the last element.
-func (s *tomlScanner) resolve(key string) string {
-	parts := strings.Split(key, ".")
+func (s *tomlScanner) resolve(keys []string) string {
 	out := ""
-	for i, p := range parts {
-		if i > 0 {
-			out += "."
-		}
-		out += p
-		if n, ok := s.arrays[out]; ok && i < len(parts)-1 {
+	for i, k := range keys {
+		out = keyJoin(out, k)
+		if n, ok := s.arrays[out]; ok && i < len(keys)-1 {
 			out += "[" + strconv.Itoa(n-1) + "]"
 		}
 	}
@@ -164,27 +344,37 @@ func join(prefix, key string) string {
 
 func (s *tomlScanner) keyValue(prefix string) bool {
 	kpos := s.here()
-	key, ok := s.key()
+	keys, ok := s.key()
 	if !ok {
 		return false
 	}
+	kend := s.here()
 	s.skipSpace(false)
 	if s.peek() != '=' {
 		return false
 	}
 	s.adv()
 	s.skipSpace(false)
-	return s.value(join(prefix, key), kpos)
+	path := prefix
+	for _, k := range keys {
+		path = keyJoin(path, k)
+	}
+	return s.value(path, kpos, kend)
 }
 
-func (s *tomlScanner) value(path string, kpos Pos) bool {
+func (s *tomlScanner) value(path string, kpos, kend Pos) bool {
 	vpos := s.here()
 	switch c := s.peek(); c {
 	case '"', '\'':
-		content, multi := s.str()
-		s.add(path, keyPos{Key: kpos, Val: vpos, Content: content, Multi: multi})
+		kp := keyPos{Key: kpos, KeyEnd: kend, Val: vpos, IsStr: true}
+		kp.Content, kp.Multi, kp.Text, kp.segs = s.str()
+		kp.ValEnd = s.here()
+		if kend == kpos { // an element of an array has no key: its value stands for it
+			kp.KeyEnd = kp.ValEnd
+		}
+		s.add(path, kp)
 	case '{':
-		s.add(path, keyPos{Key: kpos, Val: vpos, Inline: true})
+		s.add(path, keyPos{Key: kpos, KeyEnd: kend, Val: vpos, Inline: true})
 		s.adv()
 		for {
 			s.skipSpace(false)
@@ -200,8 +390,9 @@ func (s *tomlScanner) value(path string, kpos Pos) bool {
 				s.adv()
 			}
 		}
+		s.setValEnd(path, s.here())
 	case '[':
-		s.add(path, keyPos{Key: kpos, Val: vpos})
+		s.add(path, keyPos{Key: kpos, KeyEnd: kend, Val: vpos})
 		s.adv()
 		for n := 0; ; n++ {
 			s.skipSpace(true)
@@ -209,7 +400,8 @@ func (s *tomlScanner) value(path string, kpos Pos) bool {
 				s.adv()
 				break
 			}
-			if s.i >= len(s.src) || !s.value(path+"["+strconv.Itoa(n)+"]", s.here()) {
+			el := s.here()
+			if s.i >= len(s.src) || !s.value(path+"["+strconv.Itoa(n)+"]", el, el) {
 				return false
 			}
 			s.skipSpace(true)
@@ -217,21 +409,34 @@ func (s *tomlScanner) value(path string, kpos Pos) bool {
 				s.adv()
 			}
 		}
+		s.setValEnd(path, s.here())
 	default:
 		start := s.i
-		s.add(path, keyPos{Key: kpos, Val: vpos, Content: vpos})
 		for s.i < len(s.src) && !strings.ContainsRune(",]}\n#", rune(s.peek())) {
 			s.adv()
 		}
 		if s.i == start {
 			return false // no value here ("[1, }"): stop rather than loop on the same character
 		}
+		end := s.here()
+		for end.Byte > start && strings.IndexByte(" \t\r", s.src[end.Byte-1]) >= 0 {
+			end.Byte, end.Col = end.Byte-1, end.Col-1 // trailing blanks are one byte, one column each
+		}
+		if kend == kpos {
+			kend = end
+		}
+		s.add(path, keyPos{Key: kpos, KeyEnd: kend, Val: vpos, ValEnd: end, Content: vpos})
 	}
 	return true
 }
 
-// str skips a string and returns where its content starts.
-func (s *tomlScanner) str() (Pos, bool) {
+// str reads a string (basic or literal, one line or multi-line) and returns where its content
+// starts, whether it is multi-line, its decoded text and, when decoding changed anything but
+// the quotes, the map from decoded to raw offsets. It decodes as TOML does: escapes (\t \"
+// \\ \e \xHH \uHHHH \UHHHHHHHH ...) in basic strings, a line-ending \ in a multi-line basic
+// string dropping the line break and the blanks after it, up to two quotes just before a
+// multi-line string's closing quotes belonging to its content.
+func (s *tomlScanner) str() (content Pos, multi bool, text string, segs []strSeg) {
 	q := s.peek()
 	triple := strings.HasPrefix(s.src[s.i:], strings.Repeat(string(q), 3))
 	n := 1
@@ -241,51 +446,119 @@ func (s *tomlScanner) str() (Pos, bool) {
 	for k := 0; k < n; k++ {
 		s.adv()
 	}
+	if triple && strings.HasPrefix(s.src[s.i:], "\r\n") {
+		s.adv()
+	}
 	if triple && s.peek() == '\n' { // a newline right after the opening quotes is trimmed
 		s.adv()
 	}
-	content := s.here()
+	content = s.here()
+	var buf []byte // the decoded text, once an escape has made it differ from the raw text
+	flushed := s.i // raw text before this is in buf
+	finish := func(end int) (Pos, bool, string, []strSeg) {
+		if segs == nil {
+			return content, triple, s.src[content.Byte:end], nil
+		}
+		buf = append(buf, s.src[flushed:end]...)
+		return content, triple, string(buf), segs
+	}
 	for s.i < len(s.src) {
 		c := s.peek()
 		if c == '\\' && q == '"' {
-			s.adv()
-			s.adv()
+			at := s.i
+			if segs == nil {
+				segs = []strSeg{{dec: 0, raw: content.Byte}}
+			}
+			buf = append(buf, s.src[flushed:at]...)
+			dec := len(buf)
+			buf = s.escape(buf, triple)
+			segs = append(segs, strSeg{dec: dec, raw: at, esc: s.i - at}, strSeg{dec: len(buf), raw: s.i})
+			flushed = s.i
 			continue
 		}
 		if c == '\n' && !triple {
-			return content, false
+			return finish(s.i)
 		}
 		if c == q && (!triple || strings.HasPrefix(s.src[s.i:], strings.Repeat(string(q), 3))) {
-			for k := 0; k < n; k++ {
+			run := 0
+			for s.i+run < len(s.src) && s.src[s.i+run] == q {
+				run++
+			}
+			if !triple {
+				run = 1
+			}
+			end := s.i + run - n
+			for k := 0; k < run; k++ {
 				s.adv()
 			}
-			return content, triple
+			return finish(end)
 		}
 		s.adv()
 	}
-	return content, triple
+	return finish(s.i)
 }
 
-// key reads a dotted key of bare and quoted parts.
-func (s *tomlScanner) key() (string, bool) {
+// escape reads one escape of a basic string (at the backslash), appends what it stands for
+// to buf and returns buf. A line-ending backslash in a multi-line string stands for nothing.
+func (s *tomlScanner) escape(buf []byte, triple bool) []byte {
+	s.adv() // the backslash
+	if triple {
+		j := s.i
+		for j < len(s.src) && strings.IndexByte(" \t\r\n", s.src[j]) >= 0 {
+			j++
+		}
+		if strings.Contains(s.src[s.i:j], "\n") {
+			for s.i < j {
+				s.adv()
+			}
+			return buf
+		}
+	}
+	c := s.peek()
+	s.adv()
+	digits := 0
+	switch c {
+	case 'b':
+		return append(buf, '\b')
+	case 't':
+		return append(buf, '\t')
+	case 'n':
+		return append(buf, '\n')
+	case 'f':
+		return append(buf, '\f')
+	case 'r':
+		return append(buf, '\r')
+	case 'e':
+		return append(buf, 0x1b)
+	case 'x':
+		digits = 2
+	case 'u':
+		digits = 4
+	case 'U':
+		digits = 8
+	default: // \" and \\ stand for themselves; anything else is not an escape, and the decoder reports it
+		return append(buf, c)
+	}
+	end := min(s.i+digits, len(s.src))
+	v, err := strconv.ParseUint(s.src[s.i:end], 16, 32)
+	for s.i < end {
+		s.adv()
+	}
+	if err != nil || !utf8.ValidRune(rune(v)) {
+		return utf8.AppendRune(buf, utf8.RuneError)
+	}
+	return utf8.AppendRune(buf, rune(v))
+}
+
+// key reads a dotted key of bare and quoted parts and returns the parts decoded.
+func (s *tomlScanner) key() ([]string, bool) {
 	var parts []string
 	for {
 		s.skipSpace(false)
 		switch c := s.peek(); {
 		case c == '"' || c == '\'':
-			start := s.i
-			s.str()
-			raw := s.src[start:s.i]
-			if c == '"' {
-				if u, err := strconv.Unquote(raw); err == nil {
-					raw = u
-				} else {
-					raw = strings.Trim(raw, "\"")
-				}
-			} else {
-				raw = strings.Trim(raw, "'")
-			}
-			parts = append(parts, raw)
+			_, _, text, _ := s.str()
+			parts = append(parts, text)
 		case isBareKey(c):
 			start := s.i
 			for s.i < len(s.src) && isBareKey(s.peek()) {
@@ -293,11 +566,13 @@ func (s *tomlScanner) key() (string, bool) {
 			}
 			parts = append(parts, s.src[start:s.i])
 		default:
-			return "", false
+			return nil, false
 		}
+		save, line, col := s.i, s.line, s.col
 		s.skipSpace(false)
 		if s.peek() != '.' {
-			return strings.Join(parts, "."), true
+			s.i, s.line, s.col = save, line, col // the key ends at its last character, not after the blanks
+			return parts, true
 		}
 		s.adv()
 	}
@@ -305,4 +580,17 @@ func (s *tomlScanner) key() (string, bool) {
 
 func isBareKey(c byte) bool {
 	return c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' || c == '_' || c == '-'
+}
+
+// tomlErrorPos places a decoder syntax error given as a line, a byte column, a byte offset and
+// a length: by the byte offset when it agrees with the line (columns then count characters),
+// else by the line and column as given.
+func tomlErrorPos(src string, line, col, start, n int) (Pos, Pos) {
+	if start >= 0 && start <= len(src) {
+		if p := posOfByte(src, start); p.Line == line {
+			return p, advance(p, src, start+n)
+		}
+	}
+	p := Pos{Line: line, Col: max(col, 1)}
+	return p, p
 }

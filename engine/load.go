@@ -63,21 +63,24 @@ type sheetFile struct {
 	src    string
 }
 
+// rangeOf returns where the key at an index path (see keyJoin) is written, or its nearest
+// enclosing key's place when it is not written (a table only implied by [a.b]).
 func (f *sheetFile) rangeOf(path string) Range {
 	r := Range{File: f.name}
 	if p, ok := f.ix.get(path); ok {
 		r.Start = p.Key
-		r.End = p.Key
-	} else if i := strings.LastIndexAny(path, ".["); i > 0 {
-		return f.rangeOf(path[:i])
+		r.End = p.KeyEnd
+	} else if parent, ok := parentPath(path); ok {
+		return f.rangeOf(parent)
 	}
 	return r
 }
 
+// valueRange returns where the value at an index path is written.
 func (f *sheetFile) valueRange(path string) Range {
 	r := f.rangeOf(path)
 	if p, ok := f.ix.get(path); ok {
-		r.Start = p.Val
+		r.Start, r.End = p.Val, p.ValEnd
 	}
 	return r
 }
@@ -129,11 +132,11 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 		msg := err.Error()
 		hint := "see https://toml.io for the syntax"
 		if errors.As(err, &pe) {
-			r.Start = Pos{pe.Position.Line, max(pe.Position.Col, 1)}
+			r.Start, r.End = tomlErrorPos(src, pe.Position.Line, pe.Position.Col, pe.Position.Start, pe.Position.Len)
 			msg = "TOML syntax: " + pe.Message
 			if m := dupKey.FindStringSubmatch(pe.Message); m != nil {
 				msg, hint = fmt.Sprintf("%s is defined twice", m[1]), ""
-				if p, ok := f.ix.get(m[1]); ok && p.Key.Line != r.Start.Line {
+				if p, ok := f.ix.get(keyPathOf(m[1])); ok && p.Key.Line != r.Start.Line {
 					hint = fmt.Sprintf("already defined at %s", Range{File: display, Start: p.Key})
 				}
 			}
@@ -147,12 +150,12 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 var topKeys = []string{"title", "summary", "focus", "use", "require", "sweep", "solve"}
 
 func (l *loader) document(f *sheetFile, doc map[string]any) {
-	top := &Group{Name: f.prefix, Range: Range{File: f.name, Start: Pos{1, 1}}}
+	top := &Group{Name: f.prefix, Range: Range{File: f.name, Start: Pos{Line: 1, Col: 1}}}
 	l.sh.Groups = append(l.sh.Groups, top)
 	main := f.prefix == ""
 	for _, key := range l.ordered(f, "", doc) {
 		v := doc[key]
-		r := f.rangeOf(key)
+		r := f.rangeOf(escapeKey(key))
 		switch key {
 		case "title", "summary", "focus":
 			s, ok := v.(string)
@@ -192,7 +195,7 @@ func (l *loader) document(f *sheetFile, doc map[string]any) {
 					continue
 				}
 			}
-			l.member(f, top, key, key, v)
+			l.member(f, top, escapeKey(key), key, v)
 		}
 	}
 }
@@ -204,13 +207,13 @@ func (l *loader) ordered(f *sheetFile, path string, m map[string]any) []string {
 		keys = append(keys, k)
 	}
 	pos := func(k string) (int, int) {
-		if p, ok := f.ix.get(join(path, k)); ok {
+		if p, ok := f.ix.get(keyJoin(path, k)); ok {
 			return p.Key.Line, p.Key.Col
 		}
-		if p, ok := f.ix.get(join(path, k) + "[0]"); ok {
+		if p, ok := f.ix.get(keyJoin(path, k) + "[0]"); ok {
 			return p.Key.Line, p.Key.Col
 		}
-		if p, ok := f.ix.first[join(path, k)]; ok { // a table only implied by [k.sub] or [[k.chain]]
+		if p, ok := f.ix.first[keyJoin(path, k)]; ok { // a table only implied by [k.sub] or [[k.chain]]
 			return p.Line, p.Col
 		}
 		return 1 << 30, 0
@@ -250,7 +253,7 @@ func (l *loader) member(f *sheetFile, g *Group, path, key string, v any) {
 		sub := &Group{Name: full, Range: r}
 		l.sh.Groups = append(l.sh.Groups, sub)
 		for _, k := range l.ordered(f, path, v) {
-			l.member(f, sub, join(path, k), k, v[k])
+			l.member(f, sub, keyJoin(path, k), k, v[k])
 		}
 	case []map[string]any:
 		l.chain(f, g, path, key, v)
@@ -350,7 +353,7 @@ func (l *loader) quantityFields(f *sheetFile, q *Quantity, path string, m map[st
 	ok := true
 	for _, k := range l.ordered(f, path, m) {
 		if !contains(quantityKeys, k) {
-			l.errAt(f.rangeOf(join(path, k)), q.Name, didYouMean(k, quantityKeys, "a quantity's keys are is, tol, dist, note, show, source, export"), "unknown key %q", k)
+			l.errAt(f.rangeOf(keyJoin(path, k)), q.Name, didYouMean(k, quantityKeys, "a quantity's keys are is, tol, dist, note, show, source, export"), "unknown key %q", k)
 			ok = false
 		}
 	}
@@ -568,7 +571,7 @@ func (l *loader) chain(f *sheetFile, g *Group, path, key string, tables []map[st
 		st := &Stage{Label: fmt.Sprintf("stage %d", i+1), Values: map[string]*Quantity{}, Range: f.rangeOf(sp)}
 		for _, k := range l.ordered(f, sp, t) {
 			v := t[k]
-			kr := f.rangeOf(join(sp, k))
+			kr := f.rangeOf(keyJoin(sp, k))
 			qname := fmt.Sprintf("%s[%d].%s", full, i+1, k)
 			switch {
 			case k == "stage" || k == "note":
@@ -588,13 +591,13 @@ func (l *loader) chain(f *sheetFile, g *Group, path, key string, tables []map[st
 					m = map[string]any{"is": v}
 				}
 				q := &Quantity{Name: qname, Group: g.Name, Range: kr}
-				ok := l.quantityFields(f, q, join(sp, k), m)
+				ok := l.quantityFields(f, q, keyJoin(sp, k), m)
 				qn := &node{name: qname, q: q, ok: ok}
 				if ok && q.Formula == "" {
 					qn.input, q.Known = q.Value, true
 				}
 				q.node = l.addNode(qn)
-				l.formulaSites = append(l.formulaSites, site{f: f, path: join(sp, k) + isPath(m), node: q.node, sc: scope{group: g.Name, part: f.prefix}})
+				l.formulaSites = append(l.formulaSites, site{f: f, path: keyJoin(sp, k) + isPath(m), node: q.node, sc: scope{group: g.Name, part: f.prefix}})
 				st.Values[k] = q
 				st.Keys = append(st.Keys, k)
 				n.deps = append(n.deps, q.node)
@@ -619,7 +622,7 @@ func (l *loader) parts(f *sheetFile, v any, r Range) {
 		return
 	}
 	for _, name := range l.ordered(f, "use", m) {
-		pr := f.valueRange(join("use", name))
+		pr := f.valueRange(keyJoin("use", name))
 		file, ok := m[name].(string)
 		if !ok {
 			l.errAt(pr, "", "", "use.%s must be a file name in quotes", name)
@@ -671,7 +674,7 @@ func tableList(l *loader, f *sheetFile, key string, v any) []map[string]any {
 func (l *loader) checkKeys(f *sheetFile, path string, m map[string]any, allowed []string, what string) {
 	for _, k := range l.ordered(f, path, m) {
 		if !contains(allowed, k) {
-			l.errAt(f.rangeOf(join(path, k)), "", didYouMean(k, allowed, what+" keys are "+strings.Join(allowed, ", ")), "unknown key %q", k)
+			l.errAt(f.rangeOf(keyJoin(path, k)), "", didYouMean(k, allowed, what+" keys are "+strings.Join(allowed, ", ")), "unknown key %q", k)
 		}
 	}
 }
