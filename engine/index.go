@@ -73,7 +73,7 @@ func (kp *keyPos) seg(d int) int {
 // posIndex maps key paths to their positions, and remembers the order keys appear in.
 // A path is written as its keys joined by "." with array elements as "[n]"
 // ("tx.power.is", "rx.chain[1].gain", "require[0].that"); a key that is not bare
-// (letters, digits, _ and -) has its \ . [ and ] escaped with \ (see keyJoin), so the
+// (letters, digits, _ and -) has its \ . [ ] and " escaped with \ (see escapeKey), so the
 // quoted key "q.r" in [g] is g.q\.r and cannot collide with r in [g.q], g.q.r. For bare
 // keys a path is the plain dotted path.
 // BurntSushi/toml decodes values but keeps key positions private; this small scanner
@@ -126,9 +126,13 @@ func keyJoin(path, key string) string {
 	return join(path, escapeKey(key))
 }
 
-// escapeKey writes a decoded key as one element of an index path.
+// escapeKey writes a decoded key as one element of an index path: a bare key as it is, the
+// empty key as "", any other with \ . [ ] and " escaped by \.
 func escapeKey(k string) string {
-	bare := k != ""
+	if k == "" {
+		return `""`
+	}
+	bare := true
 	for i := 0; i < len(k) && bare; i++ {
 		bare = isBareKey(k[i])
 	}
@@ -138,7 +142,7 @@ func escapeKey(k string) string {
 	var b strings.Builder
 	for i := 0; i < len(k); i++ {
 		switch c := k[i]; c {
-		case '\\', '.', '[', ']':
+		case '\\', '.', '[', ']', '"':
 			b.WriteByte('\\')
 			b.WriteByte(c)
 		default:
