@@ -130,7 +130,38 @@ func TestInvalidSheets(t *testing.T) {
 			}
 			_, diags := loadAndEval(path, engine.Options{Library: lib, Set: set})
 			checkDiagnostics(t, exps, diags)
+			checkPositions(t, string(text), diags)
 		})
+	}
+}
+
+// checkPositions checks that each range's line, column and byte offset name the same place in
+// the file, and that it ends where it starts or after.
+func checkPositions(t *testing.T, src string, diags engine.Diagnostics) {
+	t.Helper()
+	at := func(off int) engine.Pos {
+		p := engine.Pos{Line: 1, Col: 1}
+		for _, r := range src[:min(off, len(src))] {
+			if r == '\n' {
+				p.Line, p.Col = p.Line+1, 1
+			} else {
+				p.Col++
+			}
+		}
+		p.Byte = off
+		return p
+	}
+	for _, d := range diags {
+		r := d.Range
+		if r.File == "--set" {
+			continue
+		}
+		if at(r.Start.Byte) != r.Start || at(r.End.Byte) != r.End {
+			t.Errorf("%s: range %+v..%+v: line, column and byte disagree", d, r.Start, r.End)
+		}
+		if r.End.Byte < r.Start.Byte {
+			t.Errorf("%s: range ends before it starts", d)
+		}
 	}
 }
 

@@ -586,15 +586,23 @@ func isBareKey(c byte) bool {
 	return c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' || c == '_' || c == '-'
 }
 
-// tomlErrorPos places a decoder syntax error given as a line, a byte column, a byte offset and
-// a length: by the byte offset when it agrees with the line (columns then count characters),
-// else by the line and column as given.
-func tomlErrorPos(src string, line, col, start, n int) (Pos, Pos) {
+// tomlErrorPos places a decoder syntax error given as a line, a byte offset and a length. The
+// byte offset decides (columns then count characters); the decoder counts a newline it stopped
+// at as the start of the next line, so the offset may fall on the line before. When the offset
+// does not fit the line at all, the error is placed at the start of the line.
+func tomlErrorPos(src string, line, start, n int) (Pos, Pos) {
 	if start >= 0 && start <= len(src) {
-		if p := posOfByte(src, start); p.Line == line {
+		if p := posOfByte(src, start); p.Line == line || p.Line == line-1 {
 			return p, advance(p, src, start+n)
 		}
 	}
-	p := Pos{Line: line, Col: max(col, 1)}
+	p := Pos{Line: 1, Col: 1}
+	for p.Line < line {
+		i := strings.IndexByte(src[p.Byte:], '\n')
+		if i < 0 {
+			break
+		}
+		p = Pos{Line: p.Line + 1, Col: 1, Byte: p.Byte + i + 1}
+	}
 	return p, p
 }

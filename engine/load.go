@@ -132,7 +132,7 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 		msg := err.Error()
 		hint := "see https://toml.io for the syntax"
 		if errors.As(err, &pe) {
-			r.Start, r.End = tomlErrorPos(src, pe.Position.Line, pe.Position.Col, pe.Position.Start, pe.Position.Len)
+			r.Start, r.End = tomlErrorPos(src, pe.Position.Line, pe.Position.Start, pe.Position.Len)
 			msg = "TOML syntax: " + pe.Message
 			if m := dupKey.FindStringSubmatch(pe.Message); m != nil {
 				msg, hint = fmt.Sprintf("%s is defined twice", m[1]), ""
