@@ -13,11 +13,15 @@ type keyPos struct {
 	Val, ValEnd Pos // the value as written, quotes and brackets included
 	Content     Pos // for a string value, its first character after the quotes
 	Multi       bool
-	Inline      bool // the value is an inline table { ... }
+	Inline      bool  // the value is an inline table { ... }
+	str         int32 // for a string value, 1 + its index in posIndex.strs; 0 otherwise
+}
 
-	IsStr bool   // the value is a string
-	Text  string // a string value as decoded
-	segs  []strSeg
+// strVal is a string value as decoded, with the map back to the raw text.
+type strVal struct {
+	Text string // the value as decoded
+	base int    // the raw byte offset of the content's first character
+	segs []strSeg
 }
 
 // strSeg maps decoded bytes of a string value back to raw bytes of the file. A segment covers
@@ -30,11 +34,11 @@ type strSeg struct {
 }
 
 // rawStart returns the raw byte offset where decoded byte d of the string value begins.
-func (kp *keyPos) rawStart(d int) int {
-	if kp.segs == nil {
-		return kp.Content.Byte + d
+func (sv *strVal) rawStart(d int) int {
+	if sv.segs == nil {
+		return sv.base + d
 	}
-	sg := kp.segs[kp.seg(d)]
+	sg := sv.segs[sv.seg(d)]
 	if sg.esc > 0 {
 		return sg.raw
 	}
@@ -42,14 +46,14 @@ func (kp *keyPos) rawStart(d int) int {
 }
 
 // rawEnd returns the raw byte offset just after decoded byte d-1 of the string value.
-func (kp *keyPos) rawEnd(d int) int {
+func (sv *strVal) rawEnd(d int) int {
 	if d <= 0 {
-		return kp.rawStart(0)
+		return sv.rawStart(0)
 	}
-	if kp.segs == nil {
-		return kp.Content.Byte + d
+	if sv.segs == nil {
+		return sv.base + d
 	}
-	sg := kp.segs[kp.seg(d-1)]
+	sg := sv.segs[sv.seg(d-1)]
 	if sg.esc > 0 {
 		return sg.raw + sg.esc
 	}
@@ -57,11 +61,11 @@ func (kp *keyPos) rawEnd(d int) int {
 }
 
 // seg returns the index of the last segment starting at or before decoded byte d.
-func (kp *keyPos) seg(d int) int {
-	lo, hi := 0, len(kp.segs) // invariant: segs[lo].dec <= d (segs[0].dec == 0), answer < hi
+func (sv *strVal) seg(d int) int {
+	lo, hi := 0, len(sv.segs) // invariant: segs[lo].dec <= d (segs[0].dec == 0), answer < hi
 	for hi-lo > 1 {
 		m := (lo + hi) / 2
-		if kp.segs[m].dec <= d {
+		if sv.segs[m].dec <= d {
 			lo = m
 		} else {
 			hi = m
@@ -80,15 +84,48 @@ func (kp *keyPos) seg(d int) int {
 // recovers them. It never fails: on text it does not understand it stops, and the
 // decoder reports the syntax error.
 type posIndex struct {
-	pos   map[string]keyPos
+	pos   map[string]int32 // path -> index in kps (a small map value keeps the map cheap to build)
+	kps   chunked[keyPos]
 	order []string
-	first map[string]Pos // where each path prefix first appears, for tables implied by [a.b] or [[a.c]]
+	first map[string]Pos  // where each path prefix first appears, for tables implied by [a.b] or [[a.c]]
+	strs  chunked[strVal] // the string values, as decoded
 }
+
+// str returns the decoded text of a string value, and false when the value is not a string.
+func (ix *posIndex) str(kp keyPos) (*strVal, bool) {
+	if kp.str <= 0 || int(kp.str) > ix.strs.n {
+		return nil, false
+	}
+	return ix.strs.at(kp.str - 1), true
+}
+
+// chunked is a list that grows by fixed chunks, so that adding to it never copies what it holds.
+type chunked[T any] struct {
+	chunks [][]T
+	n      int
+}
+
+const chunkLen = 256
+
+func (c *chunked[T]) add(v T) int32 {
+	if c.n%chunkLen == 0 {
+		c.chunks = append(c.chunks, make([]T, 0, chunkLen))
+	}
+	last := &c.chunks[len(c.chunks)-1]
+	*last = append(*last, v)
+	c.n++
+	return int32(c.n - 1)
+}
+
+func (c *chunked[T]) at(i int32) *T { return &c.chunks[i/chunkLen][i%chunkLen] }
 
 // get returns the positions of the key at path (in the escaped form keyJoin builds).
 func (ix *posIndex) get(path string) (keyPos, bool) {
-	p, ok := ix.pos[path]
-	return p, ok
+	i, ok := ix.pos[path]
+	if !ok {
+		return keyPos{}, false
+	}
+	return *ix.kps.at(i), true
 }
 
 // lookup returns the positions of the key reached by the given decoded keys, in order; an
@@ -207,10 +244,11 @@ type tomlScanner struct {
 	line, col int
 	ix        *posIndex
 	arrays    map[string]int // array-of-tables path -> count so far
+	parts     []string       // key's result, reused from key to key
 }
 
 func indexTOML(src string) *posIndex {
-	s := &tomlScanner{src: src, line: 1, col: 1, ix: &posIndex{pos: map[string]keyPos{}, first: map[string]Pos{}}, arrays: map[string]int{}}
+	s := &tomlScanner{src: src, line: 1, col: 1, ix: &posIndex{pos: map[string]int32{}, first: map[string]Pos{}}, arrays: map[string]int{}}
 	defer func() { _ = recover() }() // a scanner bug must never take the loader down
 	s.document()
 	return s.ix
@@ -261,7 +299,7 @@ func (s *tomlScanner) add(path string, kp keyPos) bool {
 	if _, dup := s.ix.pos[path]; dup {
 		return false
 	}
-	s.ix.pos[path] = kp
+	s.ix.pos[path] = s.ix.kps.add(kp)
 	s.ix.order = append(s.ix.order, path)
 	for i := 1; i < len(path); i++ {
 		switch path[i] {
@@ -278,12 +316,12 @@ func (s *tomlScanner) add(path string, kp keyPos) bool {
 
 // setValEnd records where a table or array value added before its contents ends.
 func (s *tomlScanner) setValEnd(path string, end Pos) {
-	if kp, ok := s.ix.pos[path]; ok {
+	if i, ok := s.ix.pos[path]; ok {
+		kp := s.ix.kps.at(i)
 		if kp.KeyEnd == kp.Key { // an element of an array has no key: its value stands for it
 			kp.KeyEnd = end
 		}
 		kp.ValEnd = end
-		s.ix.pos[path] = kp
 	}
 }
 
@@ -370,9 +408,14 @@ func (s *tomlScanner) value(path string, kpos, kend Pos) bool {
 	vpos := s.here()
 	switch c := s.peek(); c {
 	case '"', '\'':
-		kp := keyPos{Key: kpos, KeyEnd: kend, Val: vpos, IsStr: true}
-		kp.Content, kp.Multi, kp.Text, kp.segs = s.str()
+		kp := keyPos{Key: kpos, KeyEnd: kend, Val: vpos}
+		var sv strVal
+		kp.Content, kp.Multi, sv.Text, sv.segs = s.str()
+		sv.base = kp.Content.Byte
 		kp.ValEnd = s.here()
+		if _, dup := s.ix.pos[path]; !dup {
+			kp.str = s.ix.strs.add(sv) + 1
+		}
 		if kend == kpos { // an element of an array has no key: its value stands for it
 			kp.KeyEnd = kp.ValEnd
 		}
@@ -554,9 +597,11 @@ func (s *tomlScanner) escape(buf []byte, triple bool) []byte {
 	return utf8.AppendRune(buf, rune(v))
 }
 
-// key reads a dotted key of bare and quoted parts and returns the parts decoded.
+// key reads a dotted key of bare and quoted parts and returns the parts decoded, in a slice
+// that the next call reuses.
 func (s *tomlScanner) key() ([]string, bool) {
-	var parts []string
+	parts := s.parts[:0]
+	defer func() { s.parts = parts[:0] }()
 	for {
 		s.skipSpace(false)
 		switch c := s.peek(); {

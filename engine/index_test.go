@@ -39,19 +39,21 @@ func TestScannerDecodesStringsAsTOML(t *testing.T) {
 			t.Fatalf("%q is not valid TOML: %v", lit, err)
 		}
 		want := doc["k"].(string)
-		kp, ok := indexTOML(src).get("k")
-		if !ok || !kp.IsStr {
+		ix := indexTOML(src)
+		kp, _ := ix.get("k")
+		sv, ok := ix.str(kp)
+		if !ok {
 			t.Fatalf("%q: no string value indexed", lit)
 		}
-		if kp.Text != want {
-			t.Errorf("%q: scanner decodes %q, toml decodes %q", lit, kp.Text, want)
+		if sv.Text != want {
+			t.Errorf("%q: scanner decodes %q, toml decodes %q", lit, sv.Text, want)
 			continue
 		}
 		if end := kp.ValEnd.Byte; src[kp.Val.Byte:end] != lit {
 			t.Errorf("%q: value range covers %q", lit, src[kp.Val.Byte:end])
 		}
-		for d, r := range kp.Text {
-			raw := src[kp.rawStart(d):kp.rawEnd(d+utf8.RuneLen(r))]
+		for d, r := range sv.Text {
+			raw := src[sv.rawStart(d):sv.rawEnd(d+utf8.RuneLen(r))]
 			if raw == string(r) {
 				continue
 			}
@@ -61,7 +63,7 @@ func TestScannerDecodesStringsAsTOML(t *testing.T) {
 				t.Errorf("%q: decoded %q at byte %d maps back to %q", lit, r, d, raw)
 			}
 		}
-		if got := kp.rawEnd(len(kp.Text)); !strings.HasPrefix(src[got:], lit[len(lit)-1:]) {
+		if got := sv.rawEnd(len(sv.Text)); !strings.HasPrefix(src[got:], lit[len(lit)-1:]) {
 			t.Errorf("%q: the end of the text maps to %q, not to the closing quotes", lit, src[got:])
 		}
 	}

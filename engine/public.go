@@ -167,19 +167,20 @@ func formulaRange(st site, text string, off int) Range {
 // they are written.
 func formulaSpan(st site, text string, from, to int) Range {
 	kp, ok := st.f.ix.get(st.path)
-	if !ok || !kp.IsStr {
+	sv, isStr := st.f.ix.str(kp)
+	if !ok || !isStr {
 		return st.f.rangeOf(st.path)
 	}
-	base := formulaStart(kp.Text, text)
+	base := formulaStart(sv.Text, text)
 	n := utf8.RuneCountInString(text)
 	from = min(max(from, 0), n)
 	to = min(max(to, from), n)
 	dFrom, dTo := base+runeBytes(text, from), base+runeBytes(text, to)
 	r := Range{File: st.f.name}
-	r.Start = advance(kp.Content, st.f.src, kp.rawStart(dFrom))
+	r.Start = advance(kp.Content, st.f.src, sv.rawStart(dFrom))
 	r.End = r.Start
 	if dTo > dFrom {
-		r.End = advance(r.Start, st.f.src, kp.rawEnd(dTo))
+		r.End = advance(r.Start, st.f.src, sv.rawEnd(dTo))
 	}
 	return r
 }
