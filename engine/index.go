@@ -9,10 +9,9 @@ import (
 // keyPos is where a key and its value stand in the source. Ends are exclusive: the position
 // just after the last character of the key or value.
 type keyPos struct {
-	Key, KeyEnd Pos // the key as written (for a table header, the whole [header])
-	Val, ValEnd Pos // the value as written, quotes and brackets included
-	Content     Pos // for a string value, its first character after the quotes
-	Multi       bool
+	Key, KeyEnd Pos   // the key as written (for a table header, the whole [header])
+	Val, ValEnd Pos   // the value as written, quotes and brackets included
+	Content     Pos   // for a string value, its first character after the quotes
 	Inline      bool  // the value is an inline table { ... }
 	str         int32 // for a string value, 1 + its index in posIndex.strs; 0 otherwise
 }
@@ -28,7 +27,7 @@ type strVal struct {
 // the decoded bytes from dec up to the next segment's dec. A plain segment maps them one to
 // one from raw; an escape segment (esc > 0: the escape's raw length, line continuations
 // included) maps them all to the escape as a whole. A string without escapes has no segments:
-// decoded byte i is raw byte Content.Byte+i.
+// decoded byte i is raw byte base+i.
 type strSeg struct {
 	dec, raw, esc int
 }
@@ -410,7 +409,7 @@ func (s *tomlScanner) value(path string, kpos, kend Pos) bool {
 	case '"', '\'':
 		kp := keyPos{Key: kpos, KeyEnd: kend, Val: vpos}
 		var sv strVal
-		kp.Content, kp.Multi, sv.Text, sv.segs = s.str()
+		kp.Content, sv.Text, sv.segs = s.str()
 		sv.base = kp.Content.Byte
 		kp.ValEnd = s.here()
 		if _, dup := s.ix.pos[path]; !dup {
@@ -478,12 +477,12 @@ func (s *tomlScanner) value(path string, kpos, kend Pos) bool {
 }
 
 // str reads a string (basic or literal, one line or multi-line) and returns where its content
-// starts, whether it is multi-line, its decoded text and, when decoding changed anything but
-// the quotes, the map from decoded to raw offsets. It decodes as TOML does: escapes (\t \"
+// starts, its decoded text and, when decoding changed anything but the quotes, the map from
+// decoded to raw offsets. It decodes as TOML does: escapes (\t \"
 // \\ \e \xHH \uHHHH \UHHHHHHHH ...) in basic strings, a line-ending \ in a multi-line basic
 // string dropping the line break and the blanks after it, up to two quotes just before a
 // multi-line string's closing quotes belonging to its content.
-func (s *tomlScanner) str() (content Pos, multi bool, text string, segs []strSeg) {
+func (s *tomlScanner) str() (content Pos, text string, segs []strSeg) {
 	q := s.peek()
 	triple := strings.HasPrefix(s.src[s.i:], strings.Repeat(string(q), 3))
 	n := 1
@@ -502,12 +501,12 @@ func (s *tomlScanner) str() (content Pos, multi bool, text string, segs []strSeg
 	content = s.here()
 	var buf []byte // the decoded text, once an escape has made it differ from the raw text
 	flushed := s.i // raw text before this is in buf
-	finish := func(end int) (Pos, bool, string, []strSeg) {
+	finish := func(end int) (Pos, string, []strSeg) {
 		if segs == nil {
-			return content, triple, s.src[content.Byte:end], nil
+			return content, s.src[content.Byte:end], nil
 		}
 		buf = append(buf, s.src[flushed:end]...)
-		return content, triple, string(buf), segs
+		return content, string(buf), segs
 	}
 	for s.i < len(s.src) {
 		c := s.peek()
@@ -606,7 +605,7 @@ func (s *tomlScanner) key() ([]string, bool) {
 		s.skipSpace(false)
 		switch c := s.peek(); {
 		case c == '"' || c == '\'':
-			_, _, text, _ := s.str()
+			_, text, _ := s.str()
 			parts = append(parts, text)
 		case isBareKey(c):
 			start := s.i
