@@ -171,7 +171,7 @@ func formulaSpan(st site, text string, from, to int) Range {
 	if !ok || !isStr {
 		return st.f.rangeOf(st.path)
 	}
-	base := formulaStart(sv.Text, text)
+	base := formulaStart(sv.Text)
 	n := utf8.RuneCountInString(text)
 	from = min(max(from, 0), n)
 	to = min(max(to, from), n)
@@ -186,18 +186,12 @@ func formulaSpan(st site, text string, from, to int) Range {
 }
 
 // formulaStart returns the byte offset in a decoded string value where its formula begins:
-// after leading blanks, the "=" and the blanks after it, as the loader trims them.
-func formulaStart(decoded, text string) int {
+// after leading blanks, the "=" and the blanks after it, as the loader trims them (a
+// requirement's that = "..." is trimmed the same way, its "=" optional).
+func formulaStart(decoded string) int {
 	t := strings.TrimLeftFunc(decoded, unicode.IsSpace)
 	t = strings.TrimLeftFunc(strings.TrimPrefix(t, "="), unicode.IsSpace)
-	start := len(decoded) - len(t)
-	if strings.HasPrefix(t, text) {
-		return start
-	}
-	if i := strings.Index(decoded, text); i >= 0 {
-		return i
-	}
-	return start
+	return len(decoded) - len(t)
 }
 
 // runeBytes returns the byte length of the first n runes of s.
