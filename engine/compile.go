@@ -147,6 +147,27 @@ type inode struct {
 	test    testFn // step 3, true/false values
 }
 
+// start and end return where the text of x's whole subtree begins and ends.
+func (x *inode) start() int {
+	s := x.from
+	for _, k := range x.kids {
+		if k != nil {
+			s = min(s, k.start())
+		}
+	}
+	return s
+}
+
+func (x *inode) end() int {
+	e := x.to
+	for _, k := range x.kids {
+		if k != nil {
+			e = max(e, k.end())
+		}
+	}
+	return e
+}
+
 // lowerer runs step 2 on one formula.
 type lowerer struct {
 	sh   *Sheet
@@ -238,7 +259,11 @@ func (lw *lowerer) lower(n ast.Node, depth int) *inode {
 		c := lw.lower(n.Cond, depth+1)
 		a := lw.lower(n.Exp1, depth+1)
 		b := lw.lower(n.Exp2, depth+1)
-		return at(opCond, n, c, a, b)
+		x := at(opCond, n, c, a, b)
+		if c != nil && b != nil {
+			x.from, x.to = c.start(), b.end() // the whole expression, from its condition on
+		}
+		return x
 	case *ast.CallNode:
 		return lw.call(n, depth)
 	case *ast.StringNode:

@@ -6,12 +6,16 @@ import (
 	"strings"
 )
 
-// Pos is a position in a worksheet file: 1-based line and column (columns count characters).
+// Pos is a position in a worksheet file: 1-based line and column (columns count characters,
+// a tab is one) and the 0-based byte offset in the file. The zero Pos means "no position".
 type Pos struct {
-	Line, Col int
+	Line, Col, Byte int
 }
 
-// Range is a span of a worksheet file.
+// Range is a span of a worksheet file: Start is the first character of the offending text (a
+// key, a value, a part of a formula) and End the position just after its last character. End
+// equals Start, or is zero, when only a point is known. A Range with no Start names only its
+// file ("--set" for an override given on the command line).
 type Range struct {
 	File       string
 	Start, End Pos

@@ -13,25 +13,26 @@ import (
 
 // Expected errors are written into the broken sheets themselves, as go/parser's tests do:
 //
-//	x = "= gian + 3 dB" # ERROR "unknown name \"gian\""
+//	x = "= gian + 3 dB" # ERROR col=8 "unknown name \"gian\""
 //
-// puts an expected error on that line whose rendered diagnostic (FILE:LINE:COL: NAME: message;
-// hint) matches the regexp. "# SET name=value" lines pass overrides to Load, and
+// puts an expected error on that line, starting at that column (characters from 1, a tab
+// counting one), whose rendered diagnostic (FILE:LINE:COL: NAME: message; hint) matches the
+// regexp. Every ERROR gives its column. "# SET name=value" lines pass overrides to Load, and
 // "# ERROR-SET "rx"" expects an error about an override (those have no line in the file).
 // The harness fails on every expected error that is missing and every error that was not
 // expected.
 
 var (
-	errorRx    = regexp.MustCompile(`#\s*ERROR\s+"(.*)"\s*$`)
+	errorRx    = regexp.MustCompile(`#\s*ERROR\s+(?:col=(\d+)\s+)?"(.*)"\s*$`)
 	errorSetRx = regexp.MustCompile(`^#\s*ERROR-SET\s+"(.*)"\s*$`)
 	setRx      = regexp.MustCompile(`^#\s*SET\s+([^=\s]+)\s*=\s*(.*?)\s*$`)
 )
 
 type expectation struct {
-	file string // "" for an override error
-	line int
-	rx   *regexp.Regexp
-	seen bool
+	file      string // "" for an override error
+	line, col int
+	rx        *regexp.Regexp
+	seen      bool
 }
 
 // expectations reads the ERROR comments of one file and its SET overrides.
@@ -43,22 +44,30 @@ func expectations(t *testing.T, name, text string) ([]*expectation, []engine.Ove
 			set = append(set, engine.Override{Name: m[1], Value: m[2]})
 			continue
 		}
-		file, m := name, errorSetRx.FindStringSubmatch(line)
-		if m != nil {
-			file = ""
-		} else if m = errorRx.FindStringSubmatch(line); m == nil {
+		e := &expectation{file: name, line: i + 1}
+		var text string
+		if m := errorSetRx.FindStringSubmatch(line); m != nil {
+			e.file, text = "", m[1]
+		} else if m := errorRx.FindStringSubmatch(line); m != nil {
+			if m[1] == "" {
+				t.Fatalf("%s:%d: ERROR without col=N: say where on the line the error starts", name, i+1)
+			}
+			e.col, _ = strconv.Atoi(m[1])
+			text = m[2]
+		} else {
 			continue
 		}
-		rx, err := regexp.Compile(m[1])
+		rx, err := regexp.Compile(text)
 		if err != nil {
 			t.Fatalf("%s:%d: bad ERROR regexp: %v", name, i+1, err)
 		}
-		exps = append(exps, &expectation{file: file, line: i + 1, rx: rx})
+		e.rx = rx
+		exps = append(exps, e)
 	}
 	return exps, set
 }
 
-// checkDiagnostics matches diagnostics against expectations, by file, line and regexp.
+// checkDiagnostics matches diagnostics against expectations, by file, line, column and regexp.
 func checkDiagnostics(t *testing.T, exps []*expectation, diags engine.Diagnostics) {
 	t.Helper()
 	for _, d := range diags {
@@ -76,7 +85,7 @@ func checkDiagnostics(t *testing.T, exps []*expectation, diags engine.Diagnostic
 				continue
 			}
 			sameFile := e.file == "" && setErr || e.file != "" && filepath.ToSlash(d.Range.File) == e.file
-			if sameFile && (setErr || d.Range.Start.Line == e.line) && e.rx.MatchString(s) {
+			if sameFile && (setErr || d.Range.Start.Line == e.line && d.Range.Start.Col == e.col) && e.rx.MatchString(s) {
 				e.seen, found = true, true
 				break
 			}
@@ -89,7 +98,7 @@ func checkDiagnostics(t *testing.T, exps []*expectation, diags engine.Diagnostic
 		if !e.seen {
 			where := "--set"
 			if e.file != "" {
-				where = e.file + ":" + strconv.Itoa(e.line)
+				where = e.file + ":" + strconv.Itoa(e.line) + ":" + strconv.Itoa(e.col)
 			}
 			t.Errorf("%s: missing error matching %q", where, e.rx)
 		}
@@ -121,7 +130,38 @@ func TestInvalidSheets(t *testing.T) {
 			}
 			_, diags := loadAndEval(path, engine.Options{Library: lib}, set...)
 			checkDiagnostics(t, exps, diags)
+			checkPositions(t, string(text), diags)
 		})
+	}
+}
+
+// checkPositions checks that each range's line, column and byte offset name the same place in
+// the file, and that it ends where it starts or after.
+func checkPositions(t *testing.T, src string, diags engine.Diagnostics) {
+	t.Helper()
+	at := func(off int) engine.Pos {
+		p := engine.Pos{Line: 1, Col: 1}
+		for _, r := range src[:min(off, len(src))] {
+			if r == '\n' {
+				p.Line, p.Col = p.Line+1, 1
+			} else {
+				p.Col++
+			}
+		}
+		p.Byte = off
+		return p
+	}
+	for _, d := range diags {
+		r := d.Range
+		if r.File == "--set" {
+			continue
+		}
+		if at(r.Start.Byte) != r.Start || at(r.End.Byte) != r.End {
+			t.Errorf("%s: range %+v..%+v: line, column and byte disagree", d, r.Start, r.End)
+		}
+		if r.End.Byte < r.Start.Byte {
+			t.Errorf("%s: range ends before it starts", d)
+		}
 	}
 }
 
@@ -144,7 +184,7 @@ func TestPartLoop(t *testing.T) {
 	checkFS(t, map[string]string{
 		"main.toml":    "use = { a = \"parts/a.toml\" }\n[top]\nx = \"1 dB\"\n",
 		"parts/a.toml": "use = { b = \"b.toml\" }\ny = \"2 dB\"\n",
-		"parts/b.toml": "use = { a = \"a.toml\" } # ERROR \"parts form a loop: main\\.toml -> parts/a\\.toml -> parts/b\\.toml -> parts/a\\.toml\"\nz = \"3 dB\"\n",
+		"parts/b.toml": "use = { a = \"a.toml\" } # ERROR col=13 \"parts form a loop: main\\.toml -> parts/a\\.toml -> parts/b\\.toml -> parts/a\\.toml\"\nz = \"3 dB\"\n",
 	}, "main.toml")
 }
 
@@ -158,7 +198,7 @@ func TestPartsTooDeep(t *testing.T) {
 			text = "use = { n = \"p" + strconv.Itoa(i+1) + ".toml\" }" + "\n" + text
 		}
 		if i == 8 {
-			text = strings.Replace(text, "}\n", "} # ERROR \"parts nest more than 8 deep\"\n", 1)
+			text = strings.Replace(text, "}\n", "} # ERROR col=13 \"parts nest more than 8 deep\"\n", 1)
 		}
 		files["p"+strconv.Itoa(i)+".toml"] = text
 	}

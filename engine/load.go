@@ -63,21 +63,24 @@ type sheetFile struct {
 	src    string
 }
 
+// rangeOf returns where the key at an index path (see keyJoin) is written, or its nearest
+// enclosing key's place when it is not written (a table only implied by [a.b]).
 func (f *sheetFile) rangeOf(path string) Range {
 	r := Range{File: f.name}
 	if p, ok := f.ix.get(path); ok {
 		r.Start = p.Key
-		r.End = p.Key
-	} else if i := strings.LastIndexAny(path, ".["); i > 0 {
-		return f.rangeOf(path[:i])
+		r.End = p.KeyEnd
+	} else if parent, ok := parentPath(path); ok {
+		return f.rangeOf(parent)
 	}
 	return r
 }
 
+// valueRange returns where the value at an index path is written.
 func (f *sheetFile) valueRange(path string) Range {
 	r := f.rangeOf(path)
 	if p, ok := f.ix.get(path); ok {
-		r.Start = p.Val
+		r.Start, r.End = p.Val, p.ValEnd
 	}
 	return r
 }
@@ -129,11 +132,11 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 		msg := err.Error()
 		hint := "see https://toml.io for the syntax"
 		if errors.As(err, &pe) {
-			r.Start = Pos{pe.Position.Line, max(pe.Position.Col, 1)}
+			r.Start, r.End = tomlErrorPos(src, pe.Position.Line, pe.Position.Start, pe.Position.Len)
 			msg = "TOML syntax: " + pe.Message
 			if m := dupKey.FindStringSubmatch(pe.Message); m != nil {
 				msg, hint = fmt.Sprintf("%s is defined twice", m[1]), ""
-				if p, ok := f.ix.get(m[1]); ok && p.Key.Line != r.Start.Line {
+				if p, ok := f.ix.get(keyPathOf(m[1])); ok && p.Key.Line != r.Start.Line {
 					hint = fmt.Sprintf("already defined at %s", Range{File: display, Start: p.Key})
 				}
 			}
@@ -147,12 +150,12 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 var topKeys = []string{"title", "summary", "focus", "use", "require", "sweep", "solve", "spurs", "products"}
 
 func (l *loader) document(f *sheetFile, doc map[string]any) {
-	top := &Group{Name: f.prefix, Range: Range{File: f.name, Start: Pos{1, 1}}}
+	top := &Group{Name: f.prefix, Range: Range{File: f.name, Start: Pos{Line: 1, Col: 1}}}
 	l.sh.Groups = append(l.sh.Groups, top)
 	main := f.prefix == ""
 	for _, key := range l.ordered(f, "", doc) {
 		v := doc[key]
-		r := f.rangeOf(key)
+		r := f.rangeOf(escapeKey(key))
 		switch key {
 		case "title", "summary", "focus":
 			s, ok := v.(string)
@@ -194,7 +197,7 @@ func (l *loader) document(f *sheetFile, doc map[string]any) {
 					continue
 				}
 			}
-			l.member(f, top, key, key, v)
+			l.member(f, top, escapeKey(key), key, v)
 		}
 	}
 }
@@ -207,7 +210,7 @@ func (l *loader) ordered(f *sheetFile, path string, m map[string]any) []string {
 	}
 	keys := make([]keyAt, 0, len(m))
 	for k := range m {
-		full := join(path, k)
+		full := keyJoin(path, k)
 		line, col := 1<<30, 0
 		if p, ok := f.ix.get(full); ok {
 			line, col = p.Key.Line, p.Key.Col
@@ -255,7 +258,7 @@ func (l *loader) member(f *sheetFile, g *Group, path, key string, v any) {
 		sub := &Group{Name: full, Range: r}
 		l.sh.Groups = append(l.sh.Groups, sub)
 		for _, k := range l.ordered(f, path, v) {
-			l.member(f, sub, join(path, k), k, v[k])
+			l.member(f, sub, keyJoin(path, k), k, v[k])
 		}
 	case []map[string]any:
 		l.chain(f, g, path, key, v)
@@ -355,7 +358,7 @@ func (l *loader) quantityFields(f *sheetFile, q *Quantity, path string, m map[st
 	ok = true
 	for _, k := range l.ordered(f, path, m) {
 		if !contains(quantityKeys, k) {
-			l.errAt(f.rangeOf(join(path, k)), q.Name, didYouMean(k, quantityKeys, "a quantity's keys are is, tol, dist, note, show, source, export"), "unknown key %q", k)
+			l.errAt(f.rangeOf(keyJoin(path, k)), q.Name, didYouMean(k, quantityKeys, "a quantity's keys are is, tol, dist, note, show, source, export"), "unknown key %q", k)
 			ok = false
 		}
 	}
@@ -585,7 +588,7 @@ func (l *loader) chain(f *sheetFile, g *Group, path, key string, tables []map[st
 		st := &Stage{Label: fmt.Sprintf("stage %d", i+1), Values: map[string]*Quantity{}, Range: f.rangeOf(sp)}
 		for _, k := range l.ordered(f, sp, t) {
 			v := t[k]
-			kr := f.rangeOf(join(sp, k))
+			kr := f.rangeOf(keyJoin(sp, k))
 			qname := fmt.Sprintf("%s[%d].%s", full, i+1, k)
 			switch {
 			case k == "stage" || k == "note":
@@ -608,7 +611,7 @@ func (l *loader) chain(f *sheetFile, g *Group, path, key string, tables []map[st
 				val, ok := l.quantityFields(f, q, join(sp, k), m)
 				qn := &node{name: qname, q: q, ok: ok, input: val}
 				q.node = l.addNode(qn)
-				l.formulaSites = append(l.formulaSites, site{f: f, path: join(sp, k) + isPath(m), node: q.node, sc: scope{group: g.Name, part: f.prefix}})
+				l.formulaSites = append(l.formulaSites, site{f: f, path: keyJoin(sp, k) + isPath(m), node: q.node, sc: scope{group: g.Name, part: f.prefix}})
 				st.Values[k] = q
 				st.Keys = append(st.Keys, k)
 				n.deps = append(n.deps, q.node)
@@ -633,7 +636,7 @@ func (l *loader) parts(f *sheetFile, v any, r Range) {
 		return
 	}
 	for _, name := range l.ordered(f, "use", m) {
-		pr := f.valueRange(join("use", name))
+		pr := f.valueRange(keyJoin("use", name))
 		file, ok := m[name].(string)
 		if !ok {
 			l.errAt(pr, "", "", "use.%s must be a file name in quotes", name)
@@ -685,7 +688,7 @@ func tableList(l *loader, f *sheetFile, key string, v any) []map[string]any {
 func (l *loader) checkKeys(f *sheetFile, path string, m map[string]any, allowed []string, what string) {
 	for _, k := range l.ordered(f, path, m) {
 		if !contains(allowed, k) {
-			l.errAt(f.rangeOf(join(path, k)), "", didYouMean(k, allowed, what+" keys are "+strings.Join(allowed, ", ")), "unknown key %q", k)
+			l.errAt(f.rangeOf(keyJoin(path, k)), "", didYouMean(k, allowed, what+" keys are "+strings.Join(allowed, ", ")), "unknown key %q", k)
 		}
 	}
 }

@@ -6,6 +6,7 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"unicode"
 	"unicode/utf8"
 
 	"github.com/rfledger/rfledger/units"
@@ -86,61 +87,77 @@ func (s *Sheet) Chains() []*Chain {
 // formulaErrs reports formula errors at their place in the file.
 func (l *loader) formulaErrs(st site, name, text string, errs []ferr) {
 	for _, e := range errs {
-		l.diags = append(l.diags, Diagnostic{Severity: Error, Quantity: name, Summary: e.msg, Hint: e.hint, Range: formulaRange(st, text, e.from)})
+		l.diags = append(l.diags, Diagnostic{Severity: Error, Quantity: name, Summary: e.msg, Hint: e.hint, Range: formulaSpan(st, text, e.from, e.to)})
 	}
 }
 
-// formulaRange maps a character offset in a formula to a position in its file.
+// formulaRange maps a character offset in a formula to a position in its file; the range
+// covers the name or number that starts there (one character otherwise).
 func formulaRange(st site, text string, off int) Range {
+	return formulaSpan(st, text, off, tokenEnd(text, off))
+}
+
+// formulaSpan maps the characters [from, to) of a formula to their place in its file. text is
+// the formula as compiled: the decoded string value after its leading "=" and blanks; offsets
+// count characters (runes) of text. The scanner recorded, for the string value, the map from
+// decoded to raw offsets, so escapes, line continuations and multi-line strings land where
+// they are written.
+func formulaSpan(st site, text string, from, to int) Range {
 	kp, ok := st.f.ix.get(st.path)
-	r := Range{File: st.f.name}
-	if !ok {
+	sv, isStr := st.f.ix.str(kp)
+	if !ok || !isStr {
 		return st.f.rangeOf(st.path)
 	}
-	// Find the formula inside the raw string value (after "=" and spaces).
-	line := kp.Content
-	raw := rawString(st.f.src, kp)
-	start := strings.Index(raw, text)
-	if start < 0 {
-		start = 0
+	base := formulaStart(sv.Text)
+	n := utf8.RuneCountInString(text)
+	from = min(max(from, 0), n)
+	to = min(max(to, from), n)
+	dFrom, dTo := base+runeBytes(text, from), base+runeBytes(text, to)
+	r := Range{File: st.f.name}
+	r.Start = advance(kp.Content, st.f.src, sv.rawStart(dFrom))
+	r.End = r.Start
+	if dTo > dFrom {
+		r.End = advance(r.Start, st.f.src, sv.rawEnd(dTo))
 	}
-	prefix := raw[:start] + string([]rune(text)[:min(off, utf8.RuneCountInString(text))])
-	pos := line
-	for _, c := range prefix {
-		if c == '\n' {
-			pos.Line++
-			pos.Col = 1
-		} else {
-			pos.Col++
-		}
-	}
-	r.Start, r.End = pos, pos
 	return r
 }
 
-// rawString returns the text of the string value starting at kp.Content, up to its closing quote.
-func rawString(src string, kp keyPos) string {
-	// Walk to the content start.
-	line, col, i := 1, 1, 0
-	for i < len(src) && (line < kp.Content.Line || line == kp.Content.Line && col < kp.Content.Col) {
-		r, n := utf8.DecodeRuneInString(src[i:])
-		if r == '\n' {
-			line, col = line+1, 1
-		} else {
-			col++
-		}
-		i += n
+// formulaStart returns the byte offset in a decoded string value where its formula begins:
+// after leading blanks, the "=" and the blanks after it, as the loader trims them (a
+// requirement's that = "..." is trimmed the same way, its "=" optional).
+func formulaStart(decoded string) int {
+	t := strings.TrimLeftFunc(decoded, unicode.IsSpace)
+	t = strings.TrimLeftFunc(strings.TrimPrefix(t, "="), unicode.IsSpace)
+	return len(decoded) - len(t)
+}
+
+// runeBytes returns the byte length of the first n runes of s.
+func runeBytes(s string, n int) int {
+	b := 0
+	for ; n > 0 && b < len(s); n-- {
+		_, size := utf8.DecodeRuneInString(s[b:])
+		b += size
 	}
-	rest := src[i:]
-	end := len(rest)
-	if !kp.Multi {
-		if j := strings.IndexAny(rest, "\"'\n"); j >= 0 {
-			end = j
-		}
-	} else if j := strings.Index(rest, `"""`); j >= 0 {
-		end = j
+	return b
+}
+
+// tokenEnd returns the rune offset just after the name or number starting at rune offset off
+// of a formula, or just after the one character there.
+func tokenEnd(text string, off int) int {
+	rs := []rune(text)
+	if off < 0 || off >= len(rs) {
+		return off
 	}
-	return rest[:end]
+	word := func(r rune) bool {
+		return r == '_' || r == '@' || r == '.' || unicode.IsLetter(r) || unicode.IsDigit(r)
+	}
+	end := off + 1
+	if word(rs[off]) {
+		for end < len(rs) && word(rs[end]) {
+			end++
+		}
+	}
+	return end
 }
 
 func (l *loader) checkFocus() {

@@ -12,6 +12,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/rfledger/rfledger/engine"
 	"github.com/yuin/goldmark"
 	"github.com/yuin/goldmark/extension"
 )
@@ -166,9 +167,80 @@ func TestBrokenSheetWritesNothing(t *testing.T) {
 	if _, err := os.Stat(out); err == nil {
 		t.Error("a broken sheet must not write -o")
 	}
-	for _, want := range []string{sheet + `:3:11: tx.eirp: unknown name "powr"; did you mean "power"?`, sheet + ":4:16: tx.sum: cannot add dBm and dBm"} {
-		if !strings.Contains(stderr, want) {
-			t.Errorf("stderr lacks %q:\n%s", want, stderr)
+	// Each error: its FILE:LINE:COL line, then the source line and carets under the offending
+	// text (the name "powr", the "+" that cannot add), each indented by four spaces.
+	want := sheet + `:3:11: tx.eirp: unknown name "powr"; did you mean "power"?
+    eirp = "= powr + 2 dB"
+              ^^^^
+` + sheet + `:4:16: tx.sum: cannot add dBm and dBm: adding levels multiplies the values they stand for; psum(a, b) adds powers
+    sum = "= power + power"
+                   ^
+rfledger: ` + sheet + ` cannot be evaluated; nothing written
+`
+	if stderr != want {
+		t.Errorf("stderr:\n%s\nwant:\n%s", stderr, want)
+	}
+}
+
+// TestErrorExcerpt: the caret line sits under the offending text as the file writes it (tabs
+// kept, escapes counted as written), and no excerpt is shown when the file no longer holds the
+// text the position was taken from.
+func TestErrorExcerpt(t *testing.T) {
+	dir := t.TempDir()
+	sheet := filepath.Join(dir, "tab.toml")
+	src := "[m]\na = \"1 dB\"\n\tx = \"= a +\\tfoo\" # a tab before x, and \\t written out\n"
+	os.WriteFile(sheet, []byte(src), 0o644)
+	code, _, stderr := run(t, "check", sheet)
+	if code != ExitBadSheet {
+		t.Fatalf("exit %d, want %d", code, ExitBadSheet)
+	}
+	want := sheet + `:3:14: m.x: unknown name "foo"
+    	x = "= a +\tfoo" # a tab before x, and \t written out
+    	            ^^^
+`
+	if stderr != want {
+		t.Errorf("stderr:\n%q\nwant:\n%q", stderr, want)
+	}
+
+	// The same diagnostics against a file that has changed since (its line 3 no longer starts
+	// where it did): the first lines stay, the excerpts go.
+	diags := evaluate(sheet, nil, nil, nil).diags
+	if got := formatDiags(diags, nil); got != want {
+		t.Fatalf("formatDiags: %q", got)
+	}
+	os.WriteFile(sheet, []byte("# a line added above\n[m]\na = \"1 dB\"\nx = \"= a + foo\"\n"), 0o644)
+	if got, first := formatDiags(diags, nil), sheet+":3:14: m.x: unknown name \"foo\"\n"; got != first {
+		t.Errorf("stale file: %q, want only %q", got, first)
+	}
+}
+
+func TestExcerptRanges(t *testing.T) {
+	src := []byte("ab\ncd = \"= x +\n  y\"\n" + strings.Repeat("z", 300) + "\n")
+	pos := func(line, col, byt int) engine.Pos { return engine.Pos{Line: line, Col: col, Byte: byt} }
+	for _, c := range []struct {
+		name        string
+		r           engine.Range
+		line, caret string
+	}{
+		{"point", engine.Range{Start: pos(2, 1, 3)}, `cd = "= x +`, "^"},
+		{"a key", engine.Range{Start: pos(2, 1, 3), End: pos(2, 3, 5)}, `cd = "= x +`, "^^"},
+		{"on to the next line", engine.Range{Start: pos(2, 6, 8), End: pos(3, 5, 19)}, `cd = "= x +`, "     ^^^^^^"},
+		{"a long line is cut around the start", engine.Range{Start: pos(4, 201, 220), End: pos(4, 204, 223)},
+			"…" + strings.Repeat("z", 120) + "…", strings.Repeat(" ", 31) + "^^^"},
+	} {
+		line, caret, ok := excerpt(src, c.r)
+		if !ok || line != c.line || caret != c.caret {
+			t.Errorf("%s: %q / %q (%v), want %q / %q", c.name, line, caret, ok, c.line, c.caret)
+		}
+	}
+	for _, r := range []engine.Range{
+		{File: "--set"},         // no position
+		{Start: pos(2, 2, 3)},   // column and byte offset disagree
+		{Start: pos(9, 1, 0)},   // no such line
+		{Start: pos(2, 40, 42)}, // past the end of the line
+	} {
+		if line, caret, ok := excerpt(src, r); ok {
+			t.Errorf("%+v: excerpt %q / %q, want none", r, line, caret)
 		}
 	}
 }

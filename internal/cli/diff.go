@@ -32,6 +32,7 @@ func cmdDiff(e *Env, args []string) int {
 	}
 	var oldEv, newEv *evaluated
 	var oldName, newName string
+	var oldFS sourceFS // where the old sheet was read from, for the excerpts under its errors
 	switch {
 	case *rev != "" && len(pos) == 1:
 		gfs, name, err := gitFS(pos[0], *rev)
@@ -40,7 +41,7 @@ func cmdDiff(e *Env, args []string) int {
 			return ExitBadSheet
 		}
 		oldName, newName = pos[0]+" at "+*rev, pos[0]
-		oldEv = evaluate(name, nil, gfs, nil)
+		oldEv, oldFS = evaluate(name, nil, gfs, nil), gfs
 		newEv = evaluate(pos[0], nil, nil, nil)
 	case *rev == "" && len(pos) == 2:
 		oldName, newName = pos[0], pos[1]
@@ -49,7 +50,7 @@ func cmdDiff(e *Env, args []string) int {
 	default:
 		return usageErr(e, "diff", "want OLD NEW, or SHEET --rev REV")
 	}
-	printDiags(e, oldEv.diags)
+	printDiagsFrom(e, oldEv.diags, oldFS)
 	printDiags(e, newEv.diags)
 	if !oldEv.ok() || !newEv.ok() {
 		return ExitBadSheet

@@ -3,6 +3,7 @@ package cli
 import (
 	"flag"
 	"fmt"
+	"io"
 	"io/fs"
 	"path/filepath"
 	"strings"
@@ -40,11 +41,13 @@ func evaluate(path string, set []engine.Override, fsys fs.FS, ao *engine.Analysi
 
 func (ev *evaluated) ok() bool { return !ev.diags.HasErrors() }
 
-// printDiags writes every diagnostic, errors and warnings, one per line.
-func printDiags(e *Env, ds engine.Diagnostics) {
-	for _, d := range ds {
-		fmt.Fprintln(e.Stderr, d.String())
-	}
+// printDiags writes every diagnostic, errors and warnings, each on one line followed by the
+// source line and a caret line under the offending text (see formatDiags).
+func printDiags(e *Env, ds engine.Diagnostics) { printDiagsFrom(e, ds, nil) }
+
+// printDiagsFrom is printDiags for a sheet loaded from fsys (nil: the operating system's files).
+func printDiagsFrom(e *Env, ds engine.Diagnostics, fsys fs.FS) {
+	_, _ = io.WriteString(e.Stderr, formatDiags(ds, fsys))
 }
 
 func parseSet(set []string) ([]engine.Override, error) {

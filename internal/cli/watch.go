@@ -39,11 +39,9 @@ func cmdWatch(e *Env, args []string) int {
 			files = append(files, filepath.Join(dir, filepath.FromSlash(p)))
 		}
 		if !ev.ok() {
-			return nil, files, errors.New(ev.diags.Error())
+			return nil, files, errors.New(strings.TrimSuffix(formatDiags(ev.diags, nil), "\n"))
 		}
-		for _, d := range ev.diags {
-			fmt.Fprintln(e.Stderr, d.String())
-		}
+		printDiags(e, ev.diags)
 		page, extra := output(ev, false, *out)
 		charts = charts[:0]
 		for _, f := range extra {
