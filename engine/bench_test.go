@@ -9,6 +9,7 @@ import (
 	"testing"
 	"time"
 
+	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/engine"
 	"github.com/rfledger/rfledger/internal/gen"
 )
@@ -49,7 +50,7 @@ func opsFor(tb testing.TB, src string) sheetOps {
 		// result's storage is a few allocations proportional to the sheet, made once).
 		eval: func() { engine.Rerun(r) },
 		analyze: func(trials, workers int) {
-			if _, diags := engine.Analyze(r, engine.AnalysisOptions{Trials: trials, Seed: 1, Workers: workers}); diags.HasErrors() {
+			if _, diags := analysis.Analyze(r, analysis.Options{Trials: trials, Seed: 1, Workers: workers}); diags.HasErrors() {
 				tb.Fatal(diags)
 			}
 		},

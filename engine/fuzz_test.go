@@ -9,6 +9,7 @@ import (
 	"testing/fstest"
 	"time"
 
+	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/engine"
 )
 
@@ -44,7 +45,7 @@ func FuzzLoad(f *testing.F) {
 		checkRanges(t, diags)
 		r, ed := sh.Eval()
 		checkRanges(t, ed)
-		_, ad := engine.Analyze(r, engine.AnalysisOptions{Trials: 20, Seed: 1, Workers: 1})
+		_, ad := analysis.Analyze(r, analysis.Options{Trials: 20, Seed: 1, Workers: 1})
 		checkRanges(t, ad)
 	})
 }
@@ -98,7 +99,7 @@ func FuzzFormula(f *testing.F) {
 			checkRanges(t, diags)
 			r, ed := sh.Eval()
 			checkRanges(t, ed)
-			_, ad := engine.Analyze(r, engine.AnalysisOptions{Trials: 20, Seed: 1, Workers: 1})
+			_, ad := analysis.Analyze(r, analysis.Options{Trials: 20, Seed: 1, Workers: 1})
 			checkRanges(t, ad)
 		}()
 		select {

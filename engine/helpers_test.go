@@ -66,3 +66,17 @@ func sheetFromFiles(files map[string]string, prev *engine.Sheet) (*engine.Sheet,
 	}
 	return engine.Load("s.toml", engine.Options{Library: lib, FS: fsys, Previous: prev})
 }
+
+// evalFile loads and evaluates a worksheet file and fails the test on any error.
+func evalFile(t testing.TB, path string, set ...engine.Override) *engine.Result {
+	t.Helper()
+	sh, diags := engine.Load(path, engine.Options{Library: lib})
+	if err := diags.Err(); err != nil {
+		t.Fatal(err)
+	}
+	r, diags := sh.Eval(set...)
+	if err := diags.Err(); err != nil {
+		t.Fatal(err)
+	}
+	return r
+}

@@ -190,7 +190,7 @@ func (l *loader) checkAll() {
 		}
 	}
 	for i, rq := range sh.Requires {
-		rq.index = i
+		rq.index, rq.sheet = i, sh
 		if rq.code == nil {
 			continue
 		}

@@ -66,6 +66,9 @@ type Quantity struct {
 	sh   *Sheet
 }
 
+// Sheet returns the sheet the quantity belongs to.
+func (q *Quantity) Sheet() *Sheet { return q.sh }
+
 // Type returns the quantity's type as found when the sheet loaded: its dimension, decibel
 // form and display family, with a zero number. ok is false when the quantity could not be
 // checked (its formula has an error, or depends on one that has).
@@ -226,6 +229,7 @@ type Require struct {
 	deps   []int
 	at     site
 	index  int
+	sheet  *Sheet
 }
 
 // Sweep varies one input over a range and records chosen quantities at each step.

@@ -6,6 +6,7 @@ import (
 	"reflect"
 	"testing"
 
+	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/engine"
 )
 
@@ -41,7 +42,7 @@ func TestValidSheets(t *testing.T) {
 					t.Errorf("requirement %d (%s) is unknown", i, rq.That)
 				}
 			}
-			if _, diags := engine.Analyze(sh, engine.AnalysisOptions{Trials: 200, Seed: 1}); diags.HasErrors() {
+			if _, diags := analysis.Analyze(sh, analysis.Options{Trials: 200, Seed: 1}); diags.HasErrors() {
 				t.Errorf("analyze:\n%v", diags)
 			}
 		})

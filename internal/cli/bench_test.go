@@ -7,7 +7,7 @@ import (
 	"testing"
 	"testing/fstest"
 
-	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/internal/gen"
 )
 
@@ -16,7 +16,7 @@ import (
 // function in this file that calls the engine's API and the command's internals, so a change
 // of API is adapted in one place. It returns the bytes written, so the work cannot be skipped.
 func renderOnce(tb testing.TB, fsys fstest.MapFS) int {
-	ev := evaluate("sheet.toml", nil, fsys, &engine.AnalysisOptions{Trials: engine.DefaultTrials, Seed: 1})
+	ev := evaluate("sheet.toml", nil, fsys, &analysis.Options{Trials: analysis.DefaultTrials, Seed: 1})
 	if !ev.ok() {
 		tb.Fatal(ev.diags)
 	}

@@ -3,7 +3,7 @@ package cli
 import (
 	"fmt"
 
-	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/internal/report"
 )
 
@@ -33,16 +33,16 @@ func cmdCheck(e *Env, args []string) int {
 	if !ok && *format != "text" {
 		return usageErr(e, "check", "--format is text, json, junit or github, not %q", *format)
 	}
-	if *trials < 0 || *trials > engine.MaxTrials {
-		return usageErr(e, "check", "--trials must be between 0 and %d", engine.MaxTrials)
+	if *trials < 0 || *trials > analysis.MaxTrials {
+		return usageErr(e, "check", "--trials must be between 0 and %d", analysis.MaxTrials)
 	}
 	over, err := parseSet(set)
 	if err != nil {
 		return usageErr(e, "check", "%v", err)
 	}
-	var ao *engine.AnalysisOptions
+	var ao *analysis.Options
 	if *trials > 0 {
-		ao = &engine.AnalysisOptions{Trials: *trials, Seed: *seed, Progress: progress(e)}
+		ao = &analysis.Options{Trials: *trials, Seed: *seed, Progress: progress(e)}
 	}
 	code := ExitOK
 	var in []report.CheckInput

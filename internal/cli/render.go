@@ -8,6 +8,7 @@ import (
 	"path/filepath"
 	"strings"
 
+	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/engine"
 	"github.com/rfledger/rfledger/internal/report"
 	"github.com/rfledger/rfledger/internal/rflib"
@@ -18,12 +19,12 @@ import (
 type evaluated struct {
 	sheet    *engine.Sheet
 	result   *engine.Result
-	analysis *engine.Analysis
+	analysis *analysis.Analysis
 	diags    engine.Diagnostics // everything found, sorted; errors mean the sheet cannot be evaluated
 }
 
 // run loads, evaluates and (unless skipped) analyses a worksheet.
-func evaluate(path string, set []engine.Override, fsys fs.FS, ao *engine.AnalysisOptions) *evaluated {
+func evaluate(path string, set []engine.Override, fsys fs.FS, ao *analysis.Options) *evaluated {
 	sh, diags := engine.Load(path, engine.Options{Library: rflib.Library(), FS: fsys})
 	// Evaluate even when loading found errors: failed quantities are skipped, and the
 	// user sees every error in the file at once, run-time ones included.
@@ -31,7 +32,7 @@ func evaluate(path string, set []engine.Override, fsys fs.FS, ao *engine.Analysi
 	ev := &evaluated{sheet: sh, result: r}
 	diags = append(diags, ediags...)
 	if !diags.HasErrors() && ao != nil {
-		a, ds := engine.Analyze(r, *ao)
+		a, ds := analysis.Analyze(r, *ao)
 		ev.analysis = a
 		diags = append(diags, ds...)
 	}
@@ -112,14 +113,14 @@ func cmdRender(e *Env, args []string) int {
 	if len(pos) != 1 {
 		return usageErr(e, "render", "want one worksheet, got %d arguments", len(pos))
 	}
-	if *trials < 1 || *trials > engine.MaxTrials {
-		return usageErr(e, "render", "--trials must be between 1 and %d", engine.MaxTrials)
+	if *trials < 1 || *trials > analysis.MaxTrials {
+		return usageErr(e, "render", "--trials must be between 1 and %d", analysis.MaxTrials)
 	}
 	over, err := parseSet(*set)
 	if err != nil {
 		return usageErr(e, "render", "%v", err)
 	}
-	ev := evaluate(pos[0], over, nil, &engine.AnalysisOptions{Trials: *trials, Seed: *seed, Progress: progress(e)})
+	ev := evaluate(pos[0], over, nil, &analysis.Options{Trials: *trials, Seed: *seed, Progress: progress(e)})
 	printDiags(e, ev.diags)
 	if !ev.ok() {
 		fmt.Fprintf(e.Stderr, "rfledger: %s cannot be evaluated; nothing written\n", pos[0])
@@ -139,7 +140,7 @@ func cmdRender(e *Env, args []string) int {
 
 // analysisFlags declares the flags shared by the commands that run the analyses.
 func analysisFlags(fs *flag.FlagSet) (trials *int, seed *uint64, set *setFlag) {
-	trials = fs.Int("trials", engine.DefaultTrials, "run `N` Monte Carlo trials")
+	trials = fs.Int("trials", analysis.DefaultTrials, "run `N` Monte Carlo trials")
 	seed = fs.Uint64("seed", 1, "Monte Carlo seed `N` (the same seed gives the same page)")
 	set = &setFlag{}
 	fs.Var(set, "set", "replace an input for this run, as `name=value` (repeatable)")

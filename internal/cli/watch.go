@@ -9,7 +9,7 @@ import (
 	"path/filepath"
 	"strings"
 
-	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/internal/watch"
 )
 
@@ -33,7 +33,7 @@ func cmdWatch(e *Env, args []string) int {
 	dir := filepath.Dir(sheet)
 	var charts []string
 	render := func() ([]byte, []string, error) {
-		ev := evaluate(sheet, over, nil, &engine.AnalysisOptions{Trials: *trials, Seed: *seed})
+		ev := evaluate(sheet, over, nil, &analysis.Options{Trials: *trials, Seed: *seed})
 		files := []string{sheet}
 		for _, p := range ev.sheet.Parts {
 			files = append(files, filepath.Join(dir, filepath.FromSlash(p)))

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"strconv"
 
+	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/internal/chart"
 )
 
@@ -23,13 +24,13 @@ func (p *page) addChart(kind, alt string, draw func(*bytes.Buffer) error) {
 	p.f("![%s](%s)\n\n", alt, name)
 }
 
-func (p *page) levelChart(ci chainInfo) {
-	in, hasIn := ci.inputDBm()
-	nin, hasNoise := ci.noiseInDBm()
+func (p *page) levelChart(ci analysis.Cascade) {
+	in, hasIn := inputDBm(ci)
+	nin, hasNoise := noiseInDBm(ci)
 	if !hasIn && !hasNoise {
 		return
 	}
-	spec := chart.LevelSpec{Title: "Levels along " + ci.chain.Name, Unit: "dBm"}
+	spec := chart.LevelSpec{Title: "Levels along " + ci.Chain.Name, Unit: "dBm"}
 	spec.Stages = append(spec.Stages, "input")
 	if hasIn {
 		spec.Signal = append(spec.Signal, in)
@@ -37,8 +38,8 @@ func (p *page) levelChart(ci chainInfo) {
 	if hasNoise {
 		spec.Noise = append(spec.Noise, nin)
 	}
-	for i, st := range ci.stages {
-		r := ci.cas.Stages[i]
+	for i, st := range ci.Stages {
+		r := ci.Result.Stages[i]
 		spec.Stages = append(spec.Stages, st.Name)
 		if hasIn {
 			spec.Signal = append(spec.Signal, in+r.CumGainDB)
@@ -47,7 +48,7 @@ func (p *page) levelChart(ci chainInfo) {
 			spec.Noise = append(spec.Noise, nin+r.CumNFDB+r.CumGainDB)
 		}
 	}
-	p.addChart("levels-"+ci.chain.Name, "level diagram of "+ci.chain.Name, func(b *bytes.Buffer) error { return chart.Levels(b, spec) })
+	p.addChart("levels-"+ci.Chain.Name, "level diagram of "+ci.Chain.Name, func(b *bytes.Buffer) error { return chart.Levels(b, spec) })
 }
 
 func (p *page) budgetChart() {

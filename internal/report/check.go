@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"strings"
 
+	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/engine"
 	"github.com/rfledger/rfledger/units"
 )
@@ -15,7 +16,7 @@ import (
 type CheckInput struct {
 	File     string // the path as given on the command line
 	Result   *engine.Result
-	Analysis *engine.Analysis   // nil unless the Monte Carlo run was asked for
+	Analysis *analysis.Analysis // nil unless the Monte Carlo run was asked for
 	Diags    engine.Diagnostics // everything loading, evaluation and the analyses found
 }
 
@@ -122,7 +123,7 @@ func checkOf(c CheckInput) checkSheet {
 			cs.Focus.SI, cs.Focus.SIUnit = SI(qv)
 		}
 	}
-	var tol *engine.Tolerance
+	var tol *analysis.Tolerance
 	if c.Analysis != nil && c.Analysis.Tolerance != nil {
 		tol = c.Analysis.Tolerance
 		cs.MonteCarlo = &checkMC{Trials: tol.Trials, Seed: tol.Seed, PPass: tol.PPass}
@@ -155,7 +156,7 @@ func checkOf(c CheckInput) checkSheet {
 
 // chance is the share of Monte Carlo trials in which the focus meets a bound on itself; trials
 // that could not be evaluated count as failing, as they do for the chance that all requirements hold.
-func chance(t *engine.Tolerance, op string, limit float64) *float64 {
+func chance(t *analysis.Tolerance, op string, limit float64) *float64 {
 	if t.Trials == 0 {
 		return nil
 	}

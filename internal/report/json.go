@@ -3,6 +3,7 @@ package report
 import (
 	"math"
 
+	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/engine"
 )
 
@@ -191,8 +192,8 @@ func JSON(in Input) []byte {
 		doc.Pass = doc.Pass && pass
 		doc.Requirements = append(doc.Requirements, jsonReq{That: rq.That, Pass: pass, Note: rq.Note})
 	}
-	for _, ci := range chains(r) {
-		doc.Chains[ci.chain.Name] = chainJSON(ci)
+	for _, ci := range analysis.Cascades(r) {
+		doc.Chains[ci.Chain.Name] = chainJSON(ci)
 	}
 	for _, d := range in.Warnings {
 		if d.Severity == engine.Warning {
@@ -206,11 +207,11 @@ func JSON(in Input) []byte {
 	return encodeJSON(doc)
 }
 
-func chainJSON(ci chainInfo) jsonChain {
-	if ci.err != nil {
-		return jsonChain{Error: ci.err.Error(), Stages: []jsonStage{}}
+func chainJSON(ci analysis.Cascade) jsonChain {
+	if ci.Err != nil {
+		return jsonChain{Error: ci.Err.Error(), Stages: []jsonStage{}}
 	}
-	c := ci.cas
+	c := ci.Result
 	jc := jsonChain{GainDB: c.GainDB, NFDB: c.NFDB, TeK: c.TeK}
 	if c.HasIIP3 {
 		jc.IIP3DBm, jc.OIP3DBm = num(c.IIP3), num(c.OIP3)
@@ -218,8 +219,8 @@ func chainJSON(ci chainInfo) jsonChain {
 	if c.HasIIP2 {
 		jc.IIP2DBm = num(c.IIP2)
 	}
-	in, hasIn := ci.inputDBm()
-	for i, st := range ci.stages {
+	in, hasIn := inputDBm(ci)
+	for i, st := range ci.Stages {
 		r := c.Stages[i]
 		js := jsonStage{Stage: st.Name, GainDB: st.GainDB, NFDB: st.NFDB, CumGainDB: r.CumGainDB, CumNFDB: r.CumNFDB, NoiseShare: r.NoiseShare}
 		if st.HasIIP3 {
@@ -242,7 +243,7 @@ func chainJSON(ci chainInfo) jsonChain {
 	return jc
 }
 
-func analysisJSON(doc *jsonDoc, a *engine.Analysis, sh *engine.Sheet) {
+func analysisJSON(doc *jsonDoc, a *analysis.Analysis, sh *engine.Sheet) {
 	for _, s := range a.Sensitivity {
 		doc.Sensitivity = append(doc.Sensitivity, jsonSens{Input: s.Input, Per: s.Per, Change: num(s.Change), Unit: a.ChangeUnit})
 	}

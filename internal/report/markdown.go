@@ -7,6 +7,7 @@ import (
 	"path/filepath"
 	"strings"
 
+	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/engine"
 	"github.com/rfledger/rfledger/units"
 )
@@ -17,7 +18,7 @@ type page struct {
 	r      *engine.Result
 	b      bytes.Buffer
 	files  []File
-	chains []chainInfo
+	chains []analysis.Cascade
 }
 
 func (p *page) f(format string, args ...any) { fmt.Fprintf(&p.b, format, args...) }
@@ -25,7 +26,7 @@ func (p *page) f(format string, args ...any) { fmt.Fprintf(&p.b, format, args...
 // Markdown renders the budget page. The charts it links come back as files to write beside it.
 func Markdown(in Input) ([]byte, []File) {
 	in = in.filled()
-	p := &page{in: in, r: in.Result, chains: chains(in.Result)}
+	p := &page{in: in, r: in.Result, chains: analysis.Cascades(in.Result)}
 	sh := in.Sheet
 	title := sh.Title
 	if title == "" {
@@ -114,7 +115,7 @@ func (p *page) verdict() {
 	p.f("\n")
 }
 
-func solveSentence(sh *engine.Sheet, r engine.SolveResult) string {
+func solveSentence(sh *engine.Sheet, r analysis.SolveResult) string {
 	so := r.Solve
 	if !r.Found {
 		why := r.Note
@@ -171,24 +172,24 @@ func (p *page) cascades() {
 	}
 	p.f("## Cascades\n\n")
 	for _, ci := range p.chains {
-		p.f("### %s\n\n", mdText(ci.chain.Name))
-		if ci.err != nil {
-			p.f("The cascade cannot be computed: %s.\n\n", mdText(ci.err.Error()))
+		p.f("### %s\n\n", mdText(ci.Chain.Name))
+		if ci.Err != nil {
+			p.f("The cascade cannot be computed: %s.\n\n", mdText(ci.Err.Error()))
 			continue
 		}
-		in, hasIn := ci.inputDBm()
-		nin, hasNoise := ci.noiseInDBm()
+		in, hasIn := inputDBm(ci)
+		nin, hasNoise := noiseInDBm(ci)
 		if hasIn {
-			p.f("Signal at the chain input: `%s` = %s. ", ci.input.Name, p.r.Display(ci.input))
+			p.f("Signal at the chain input: `%s` = %s. ", ci.Input.Name, p.r.Display(ci.Input))
 		}
 		if hasNoise {
-			p.f("Noise in `%s` = %s at T0 = 290 K: %s dBm.", ci.noise.Name, p.r.Display(ci.noise), db2(nin))
+			p.f("Noise in `%s` = %s at T0 = 290 K: %s dBm.", ci.Bandwidth.Name, p.r.Display(ci.Bandwidth), db2(nin))
 		}
 		if hasIn || hasNoise {
 			p.f("\n\n")
 		}
 		p.f("| # | stage | gain | NF | IIP3 | cum. gain | cum. NF | cum. IIP3 | share of F−1 | share of 1/IIP3 |")
-		hasIP2 := ci.cas.HasIIP2
+		hasIP2 := ci.Result.HasIIP2
 		if hasIP2 {
 			p.f(" IIP2 | cum. IIP2 |")
 		}
@@ -209,8 +210,8 @@ func (p *page) cascades() {
 			p.f(" ---: |")
 		}
 		p.f("\n")
-		for i, st := range ci.stages {
-			r := ci.cas.Stages[i]
+		for i, st := range ci.Stages {
+			r := ci.Result.Stages[i]
 			iip3, cumIIP3, share3 := "", "", ""
 			if st.HasIIP3 {
 				iip3 = db2(st.IIP3) + " dBm"
@@ -231,7 +232,7 @@ func (p *page) cascades() {
 			}
 			p.f("\n")
 		}
-		c := ci.cas
+		c := ci.Result
 		total := "n/a"
 		if c.HasIIP3 {
 			total = db2(c.IIP3) + " dBm"
@@ -248,10 +249,10 @@ func (p *page) cascades() {
 		}
 		p.f(".\n\n")
 		p.f("%s\n\n", dominantStages(ci))
-		for _, n := range ci.notes {
+		for _, n := range ci.Notes {
 			p.f("- Note: %s.\n", mdText(n))
 		}
-		if len(ci.notes) > 0 {
+		if len(ci.Notes) > 0 {
 			p.f("\n")
 		}
 		p.levelChart(ci)
@@ -267,22 +268,22 @@ func dbmIf(v float64, ok bool) string {
 }
 
 // dominantStages names the stages that set the noise figure and the intercept.
-func dominantStages(ci chainInfo) string {
+func dominantStages(ci analysis.Cascade) string {
 	bestN, bestI := -1, -1
-	for i, r := range ci.cas.Stages {
-		if bestN < 0 || r.NoiseShare > ci.cas.Stages[bestN].NoiseShare {
+	for i, r := range ci.Result.Stages {
+		if bestN < 0 || r.NoiseShare > ci.Result.Stages[bestN].NoiseShare {
 			bestN = i
 		}
-		if r.HasIIP3 && ci.stages[i].HasIIP3 && (bestI < 0 || r.IIP3Share > ci.cas.Stages[bestI].IIP3Share) {
+		if r.HasIIP3 && ci.Stages[i].HasIIP3 && (bestI < 0 || r.IIP3Share > ci.Result.Stages[bestI].IIP3Share) {
 			bestI = i
 		}
 	}
 	var parts []string
-	if bestN >= 0 && ci.cas.NFDB > 0 {
-		parts = append(parts, fmt.Sprintf("**%s** sets %s of the noise factor excess (F − 1)", mdText(ci.stages[bestN].Name), pct(ci.cas.Stages[bestN].NoiseShare)))
+	if bestN >= 0 && ci.Result.NFDB > 0 {
+		parts = append(parts, fmt.Sprintf("**%s** sets %s of the noise factor excess (F − 1)", mdText(ci.Stages[bestN].Name), pct(ci.Result.Stages[bestN].NoiseShare)))
 	}
 	if bestI >= 0 {
-		parts = append(parts, fmt.Sprintf("**%s** sets %s of the IIP3 degradation", mdText(ci.stages[bestI].Name), pct(ci.cas.Stages[bestI].IIP3Share)))
+		parts = append(parts, fmt.Sprintf("**%s** sets %s of the IIP3 degradation", mdText(ci.Stages[bestI].Name), pct(ci.Result.Stages[bestI].IIP3Share)))
 	}
 	if len(parts) == 0 {
 		return "The chain adds no noise and has no intercept points."
@@ -318,8 +319,8 @@ func (p *page) budget() {
 func (p *page) chainShares() {
 	var lines []string
 	for _, ci := range p.chains {
-		if ci.err == nil {
-			lines = append(lines, fmt.Sprintf("- `%s`: %s", ci.chain.Name, strings.TrimPrefix(dominantStages(ci), "In this chain ")))
+		if ci.Err == nil {
+			lines = append(lines, fmt.Sprintf("- `%s`: %s", ci.Chain.Name, strings.TrimPrefix(dominantStages(ci), "In this chain ")))
 		}
 	}
 	if len(lines) > 0 {
@@ -464,8 +465,8 @@ func (p *page) warnings() {
 		lines = append(lines, "- "+who+mdText(d.Summary))
 	}
 	for _, ci := range p.chains {
-		if ci.err != nil {
-			lines = append(lines, "- `"+ci.chain.Name+"`: "+mdText(ci.err.Error()))
+		if ci.Err != nil {
+			lines = append(lines, "- `"+ci.Chain.Name+"`: "+mdText(ci.Err.Error()))
 		}
 	}
 	p.f("## Warnings\n\n")
@@ -523,7 +524,7 @@ func inUnitOf(sh *engine.Sheet, name string, v units.Q) string {
 // ("rx.chain[2].loss" (SAW filter)).
 func (p *page) inputName(name string) string {
 	for _, ci := range p.chains {
-		for _, st := range ci.chain.Stages {
+		for _, st := range ci.Chain.Stages {
 			for _, q := range st.Values {
 				if q.Name == name {
 					return code(name) + " (" + cell(st.Label) + ")"

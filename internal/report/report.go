@@ -9,9 +9,8 @@ import (
 	"path"
 	"strings"
 
+	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/engine"
-	"github.com/rfledger/rfledger/internal/rflib"
-	"github.com/rfledger/rfledger/internal/rfmath"
 	"github.com/rfledger/rfledger/units"
 )
 
@@ -19,7 +18,7 @@ import (
 type Input struct {
 	Result   *engine.Result     // the evaluation the page shows
 	Sheet    *engine.Sheet      // the result's sheet (filled in from Result when nil)
-	Analysis *engine.Analysis   // nil when the analyses were not run
+	Analysis *analysis.Analysis // nil when the analyses were not run
 	Warnings engine.Diagnostics // warnings from evaluation and the analyses
 	// ChartBase is the file name prefix for charts written beside the page ("budget" gives
 	// "budget.sweep-1.svg"); "" leaves the charts out.
@@ -50,74 +49,12 @@ type File struct {
 	Data []byte
 }
 
-// chainInfo is a chain's cascade, worked out once for the page and the JSON.
-type chainInfo struct {
-	chain  *engine.Chain
-	stages []rfmath.Stage
-	cas    rfmath.Cascade
-	notes  []string
-	err    error
-	input  *engine.Quantity // the level entering the chain, when the group has one
-	noise  *engine.Quantity // the bandwidth, for the integrated noise level
-	inV    units.Q          // their values
-	noiseV units.Q
-}
+// inputDBm is the level entering a chain, in dBm, when its group gives one.
+func inputDBm(ci analysis.Cascade) (float64, bool) { return ci.InputDBm, ci.Input != nil }
 
-// chains works out every chain's cascade.
-func chains(r *engine.Result) []chainInfo {
-	sh := r.Sheet()
-	var out []chainInfo
-	for _, c := range sh.Chains() {
-		ci := chainInfo{chain: c}
-		ci.stages, ci.notes, ci.err = rflib.Stages(r.Chain(c))
-		if ci.err == nil {
-			ci.cas = rfmath.CascadeChain(ci.stages)
-		}
-		group := c.Name[:max(strings.LastIndex(c.Name, "."), 0)]
-		for _, key := range []string{"level", "input"} {
-			if q, ok := sh.Quantity(join(group, key)); ok {
-				if v, known := r.Value(q); known && v.D == units.Power {
-					ci.input, ci.inV = q, v
-					break
-				}
-			}
-		}
-		if q, ok := sh.Quantity(join(group, "bandwidth")); ok {
-			if v, known := r.Value(q); known && v.D == units.Frequency {
-				ci.noise, ci.noiseV = q, v
-			}
-		}
-		out = append(out, ci)
-	}
-	return out
-}
-
-func join(a, b string) string {
-	if a == "" {
-		return b
-	}
-	return a + "." + b
-}
-
-// inputDBm is the chain's input level in dBm.
-func (ci chainInfo) inputDBm() (float64, bool) {
-	if ci.input == nil {
-		return 0, false
-	}
-	l, err := ci.inV.ToLevel()
-	if err != nil {
-		return 0, false
-	}
-	return l.V + 30, true
-}
-
-// noiseInDBm is the thermal noise at the chain input (k·T0·B) in dBm.
-func (ci chainInfo) noiseInDBm() (float64, bool) {
-	if ci.noise == nil {
-		return 0, false
-	}
-	return rfmath.DBm(rfmath.Thermal(ci.noiseV.Linear().V, rfmath.T0)), true
-}
+// noiseInDBm is the thermal noise at a chain's input (k·T0·B) in dBm, when its group gives a
+// noise bandwidth.
+func noiseInDBm(ci analysis.Cascade) (float64, bool) { return ci.NoiseDBm, ci.Bandwidth != nil }
 
 // db2 formats a decibel number with 2 decimals.
 func db2(v float64) string { return units.FormatDB(v) }
@@ -184,7 +121,7 @@ func fmtNum(v float64, unit string) string {
 	return units.FormatNum(v) + " " + unit
 }
 
-type sweepResult = engine.SweepResult
+type sweepResult = analysis.SweepResult
 
 // unitOfName parses a unit name the engine reported; a failure gives the plain-number unit.
 func unitOfName(sym string) *units.Unit {

@@ -1,4 +1,10 @@
-package engine
+// Package analysis works out what a budget page shows beyond the values: for the focus
+// quantity, its sensitivity to each input, where the budget goes (the signed line items of a
+// sum of decibel terms), the worst case, RSS and Monte Carlo spread from the inputs'
+// tolerances; the sweeps and solves; and each chain's cascade with every stage's share of
+// the noise and distortion. It works on an [engine.Result] through [engine.Scenario]s, so
+// that only what depends on a changed input is computed again; the result is not changed.
+package analysis
 
 import (
 	"fmt"
@@ -7,6 +13,7 @@ import (
 	"runtime"
 	"sort"
 
+	"github.com/rfledger/rfledger/engine"
 	"github.com/rfledger/rfledger/engine/numeric"
 	"github.com/rfledger/rfledger/units"
 )
@@ -17,8 +24,8 @@ const (
 	MaxTrials     = 1_000_000
 )
 
-// AnalysisOptions configure Analyze.
-type AnalysisOptions struct {
+// Options configure Analyze.
+type Options struct {
 	Trials   int    // Monte Carlo trials; 0 means DefaultTrials
 	Seed     uint64 // Monte Carlo seed; the same seed gives the same report
 	Workers  int    // goroutines for the trials; 0 means GOMAXPROCS. Results do not depend on it.
@@ -27,7 +34,7 @@ type AnalysisOptions struct {
 
 // Analysis is what the analyses found about the focus quantity, and the sweeps and solves.
 type Analysis struct {
-	Focus       *Quantity
+	Focus       *engine.Quantity
 	FocusValue  units.Q
 	Unit        string // the unit focus values below are in ("dB", "dBm", "m" …)
 	ChangeUnit  string // the unit of changes of the focus ("dB" for a decibel focus)
@@ -77,7 +84,7 @@ type Share struct {
 
 // SweepResult holds a sweep's points.
 type SweepResult struct {
-	Sweep     *Sweep
+	Sweep     *engine.Sweep
 	Unit      string // unit of X
 	X         []float64
 	Series    []Series
@@ -100,7 +107,7 @@ type Crossing struct {
 
 // SolveResult is the answer to a solve. Found is false when there is no crossing in range.
 type SolveResult struct {
-	Solve *Solve
+	Solve *engine.Solve
 	Found bool
 	Value float64 // in Unit
 	Unit  string
@@ -108,10 +115,10 @@ type SolveResult struct {
 }
 
 // Analyze runs the analyses on the focus quantity of r's sheet, and the sweeps and solves,
-// around the values of r (overrides included). r is not changed. Problems (a solve that
-// failed to evaluate, say) come back as diagnostics.
-func Analyze(r *Result, opt AnalysisOptions) (*Analysis, Diagnostics) {
-	s := r.sh
+// around the values of r (overrides included). Problems (a solve that failed to evaluate,
+// say) come back as diagnostics.
+func Analyze(r *engine.Result, opt Options) (*Analysis, engine.Diagnostics) {
+	s := r.Sheet()
 	if opt.Trials <= 0 {
 		opt.Trials = DefaultTrials
 	}
@@ -119,23 +126,22 @@ func Analyze(r *Result, opt AnalysisOptions) (*Analysis, Diagnostics) {
 		opt.Workers = runtime.GOMAXPROCS(0)
 	}
 	a := &Analysis{}
-	var diags Diagnostics
-	if id, ok := s.byName[s.Focus]; ok && s.nodes[id].q != nil && r.known[id] {
-		f := s.nodes[id].q
+	var diags engine.Diagnostics
+	if f, ok := s.Quantity(s.Focus); ok && r.Known(f) {
 		a.Focus = f
 		a.FocusValue, _ = r.Value(f)
-		a.Unit = unitName(f)
+		a.Unit = engine.UnitName(f)
 		a.ChangeUnit = a.Unit
 		if a.FocusValue.K == units.Level {
 			a.ChangeUnit = "dB"
 		}
-		sc := newScenario(r, id)
-		a.Sensitivity = sc.sensitivity()
-		a.Budget = s.budget(sc.e, id)
+		fa := newFocusAt(r, f)
+		a.Sensitivity = fa.sensitivity()
+		a.Budget = budget(fa.sc, f)
 		if opt.Trials > MaxTrials {
-			diags = append(diags, Diagnostic{Severity: Error, Quantity: "trials", Summary: fmt.Sprintf("at most %d Monte Carlo trials", MaxTrials), Range: Range{File: s.File}})
+			diags = append(diags, engine.Diagnostic{Severity: engine.Error, Quantity: "trials", Summary: fmt.Sprintf("at most %d Monte Carlo trials", MaxTrials), Range: engine.Range{File: s.File}})
 		} else {
-			a.Tolerance = sc.tolerance(opt)
+			a.Tolerance = fa.tolerance(opt)
 		}
 	}
 	for _, sw := range s.Sweeps {
@@ -144,37 +150,20 @@ func Analyze(r *Result, opt AnalysisOptions) (*Analysis, Diagnostics) {
 	for _, so := range s.Solves {
 		res, err := solve(r, so)
 		if err != nil {
-			diags = append(diags, Diagnostic{Severity: Warning, Quantity: "solve " + so.Name, Summary: err.Error(), Range: so.Range})
+			diags = append(diags, engine.Diagnostic{Severity: engine.Warning, Quantity: "solve " + so.Name, Summary: err.Error(), Range: so.Range})
 		}
 		a.Solves = append(a.Solves, res)
 	}
 	return a, diags
 }
 
-// unitOf returns the unit a quantity's numbers are reported in: its display unit, else the
-// unit its type gives.
-func unitOf(q *Quantity) *units.Unit {
-	if u := q.DisplayUnit(); u != nil && u.Sym != "" {
-		return u
-	}
-	t, _ := q.Type()
-	u, err := units.ParseUnit(t.UnitName())
+// reportUnit is the unit a quantity's numbers are reported in (nil for a plain number).
+func reportUnit(q *engine.Quantity) *units.Unit {
+	u, err := units.ParseUnit(engine.UnitName(q))
 	if err != nil {
 		return nil
 	}
 	return u
-}
-
-func unitName(q *Quantity) string {
-	if u := unitOf(q); u != nil {
-		return u.Sym
-	}
-	return ""
-}
-
-// Number returns a value of quantity q as a number in the unit the report uses for q.
-func Number(q *Quantity, v units.Q) float64 {
-	return numberIn(unitOf(q), v)
 }
 
 func numberIn(u *units.Unit, v units.Q) float64 {
@@ -188,57 +177,31 @@ func numberIn(u *units.Unit, v units.Q) float64 {
 	return x
 }
 
-// scenario re-evaluates a sheet around a result with some inputs changed: only the cone of
-// the changed inputs (what depends on them, in evaluation order) is recomputed, and put back
-// from the nominal values afterwards.
-type scenario struct {
-	nom   *Result
-	e     *Result
-	focus int
+// focusAt evaluates the focus with some inputs changed.
+type focusAt struct {
+	nom   *engine.Result
+	sc    *engine.Scenario
+	focus *engine.Quantity
 	fu    *units.Unit // the focus's report unit
 }
 
-func newScenario(r *Result, focus int) *scenario {
-	return &scenario{nom: r, e: r.clone(), focus: focus, fu: unitOf(r.sh.nodes[focus].q)}
+func newFocusAt(r *engine.Result, focus *engine.Quantity) *focusAt {
+	return &focusAt{nom: r, sc: r.Scenario(), focus: focus, fu: reportUnit(focus)}
 }
 
-// at evaluates the focus with inputs ids set to vals (over cone), then restores the nominal.
-func (sc *scenario) at(ids []int, vals []units.Q, cone []int32) (float64, bool) {
-	e := sc.e
-	for i, id := range ids {
-		e.vals[id], e.known[id] = vals[i].V, true
+// at evaluates the focus with inputs set to vals (over cone), then restores the nominal.
+func (fa *focusAt) at(ins []*engine.Quantity, vals []units.Q, cone *engine.Cone) (float64, bool) {
+	for i, q := range ins {
+		fa.sc.Set(q, vals[i])
 	}
-	e.runCone(cone)
-	x, ok := math.NaN(), e.known[sc.focus]
+	fa.sc.Run(cone)
+	x := math.NaN()
+	v, ok := fa.sc.Value(fa.focus)
 	if ok {
-		v := e.sh.nodes[sc.focus].ty
-		v.V = e.vals[sc.focus]
-		x = numberIn(sc.fu, v)
+		x = numberIn(fa.fu, v)
 	}
-	for _, id := range ids {
-		e.vals[id], e.known[id] = sc.nom.vals[id], sc.nom.known[id]
-	}
-	e.restore(sc.nom, cone)
+	fa.sc.Reset(cone)
 	return x, ok && !math.IsNaN(x)
-}
-
-// runCone evaluates the nodes of a cone, quietly.
-func (r *Result) runCone(cone []int32) {
-	r.quiet, r.call.quiet = true, true
-	for _, id := range cone {
-		r.evalNode(int(id))
-	}
-}
-
-// restore copies the nominal values of a cone back.
-func (r *Result) restore(nom *Result, cone []int32) {
-	for _, id := range cone {
-		r.vals[id], r.known[id] = nom.vals[id], nom.known[id]
-		if n := r.sh.nodes[id]; n.chain != nil {
-			copy(r.chains[n.chainIdx].Stages, nom.chains[n.chainIdx].Stages)
-			r.chains[n.chainIdx].Memo.Valid = false
-		}
-	}
 }
 
 // step returns an input raised by 1 dB (decibel inputs) or by 10 % (linear inputs).
@@ -251,21 +214,15 @@ func step(q units.Q) (units.Q, string) {
 	return q, "10 %"
 }
 
-// inputValue returns an input's value in a result.
-func (r *Result) inputValue(id int) units.Q {
-	v := r.sh.nodes[id].ty
-	v.V = r.vals[id]
-	return v
-}
-
-func (sc *scenario) sensitivity() []Sensitivity {
-	s := sc.nom.sh
-	f0 := numberIn(sc.fu, sc.nom.inputValue(sc.focus))
+func (fa *focusAt) sensitivity() []Sensitivity {
+	s := fa.nom.Sheet()
+	fv, _ := fa.nom.Value(fa.focus)
+	f0 := numberIn(fa.fu, fv)
 	var out []Sensitivity
-	for _, id := range s.upstreamInputs(sc.focus) {
-		q := s.nodes[id].q
-		up, per := step(sc.nom.inputValue(id))
-		v, ok := sc.at([]int{id}, []units.Q{up}, s.cone(id))
+	for _, q := range s.Inputs(fa.focus) {
+		nv, _ := fa.nom.Value(q)
+		up, per := step(nv)
+		v, ok := fa.at([]*engine.Quantity{q}, []units.Q{up}, s.Cone(q))
 		change := v - f0
 		if !ok {
 			change = math.NaN()
@@ -277,49 +234,47 @@ func (sc *scenario) sensitivity() []Sensitivity {
 }
 
 // tolerance computes worst cases, RSS and the Monte Carlo spread of the focus.
-func (sc *scenario) tolerance(opt AnalysisOptions) *Tolerance {
-	s, nom, focus := sc.nom.sh, sc.nom, sc.focus
-	sinks := []int{focus}
+func (fa *focusAt) tolerance(opt Options) *Tolerance {
+	s, nom, focus := fa.nom.Sheet(), fa.nom, fa.focus
+	sinks := []*engine.Quantity{focus}
 	for _, rq := range s.Requires {
-		if rq.code != nil {
-			sinks = append(sinks, rq.deps...)
-		}
+		sinks = append(sinks, rq.Quantities()...)
 	}
 	type tolIn struct {
-		id          int
+		q           *engine.Quantity
 		nom, lo, hi units.Q
 		dist        numeric.Dist
 	}
 	var ins []tolIn
-	for _, id := range s.upstreamInputs(sinks...) {
-		q := s.nodes[id].q
+	for _, q := range s.Inputs(sinks...) {
 		if q.Tol == nil {
 			continue
 		}
-		v := nom.inputValue(id)
+		v, _ := nom.Value(q)
 		lo, hi, err := q.Tol.Limits(v)
 		if err != nil {
 			continue
 		}
 		d, _ := numeric.ParseDist(q.Tol.Dist)
-		ins = append(ins, tolIn{id, v, lo, hi, d})
+		ins = append(ins, tolIn{q, v, lo, hi, d})
 	}
 	if len(ins) == 0 {
 		return nil
 	}
-	t := &Tolerance{Nominal: numberIn(sc.fu, nom.inputValue(focus)), Trials: opt.Trials, Seed: opt.Seed}
+	fv, _ := nom.Value(focus)
+	t := &Tolerance{Nominal: numberIn(fa.fu, fv), Trials: opt.Trials, Seed: opt.Seed}
 
 	// Worst case: find which limit of each input lowers (raises) the focus, then evaluate
 	// the corner where all of them sit at those limits together.
 	lowCorner := make([]units.Q, len(ins))
 	highCorner := make([]units.Q, len(ins))
-	ids := make([]int, len(ins))
+	qs := make([]*engine.Quantity, len(ins))
 	var rss float64
 	for i, in := range ins {
-		ids[i] = in.id
-		cone := s.cone(in.id)
-		fl, okl := sc.at([]int{in.id}, []units.Q{in.lo}, cone)
-		fh, okh := sc.at([]int{in.id}, []units.Q{in.hi}, cone)
+		qs[i] = in.q
+		cone := s.Cone(in.q)
+		fl, okl := fa.at(qs[i:i+1], []units.Q{in.lo}, cone)
+		fh, okh := fa.at(qs[i:i+1], []units.Q{in.hi}, cone)
 		lowCorner[i], highCorner[i] = in.nom, in.nom
 		if okl && okh {
 			if fl < fh {
@@ -334,44 +289,42 @@ func (sc *scenario) tolerance(opt AnalysisOptions) *Tolerance {
 			}
 		}
 	}
-	union := s.coneOf(ids)
-	t.WorstLow, _ = sc.at(ids, lowCorner, union)
-	t.WorstHigh, _ = sc.at(ids, highCorner, union)
+	union := s.Cone(qs...)
+	t.WorstLow, _ = fa.at(qs, lowCorner, union)
+	t.WorstHigh, _ = fa.at(qs, highCorner, union)
 	t.RSSSigma = math.Sqrt(rss)
 
 	// Monte Carlo: every trial draws every toleranced input, recomputes the cone of all of
 	// them, and records the focus and whether all requirements hold. Each worker has its own
-	// copy of the result; nothing is allocated per trial.
+	// scenario; nothing is allocated per trial.
 	n := opt.Trials
 	focusVals := make([]float64, n)
 	pass := make([]bool, n)
 	draws := make([]float64, n*len(ins))
-	workers := make([]*Result, opt.Workers)
+	workers := make([]*engine.Scenario, opt.Workers)
 	for w := range workers {
-		workers[w] = nom.clone()
+		workers[w] = nom.Scenario()
 	}
 	var progress func(int)
 	if opt.Progress != nil {
 		progress = func(done int) { opt.Progress("Monte Carlo", done, n) }
 	}
-	fty := s.nodes[focus].ty
 	numeric.Trials(n, opt.Workers, opt.Seed, func(w, trial int, r *rand.Rand) {
-		ev := workers[w]
+		sc := workers[w]
 		row := draws[trial*len(ins) : (trial+1)*len(ins)]
 		for i, in := range ins {
-			x := numeric.Draw(r, in.dist, in.nom.V, in.lo.V, in.hi.V)
-			row[i] = x
-			ev.vals[in.id], ev.known[in.id] = x, true
+			v := in.nom
+			v.V = numeric.Draw(r, in.dist, in.nom.V, in.lo.V, in.hi.V)
+			row[i] = v.V
+			sc.Set(in.q, v)
 		}
-		ev.runCone(union)
+		sc.Run(union)
 		focusVals[trial] = math.NaN()
-		if ev.known[focus] {
-			v := fty
-			v.V = ev.vals[focus]
-			focusVals[trial] = numberIn(sc.fu, v)
+		v, ok := sc.Value(focus)
+		if ok {
+			focusVals[trial] = numberIn(fa.fu, v)
 		}
-		ev.requirements()
-		pass[trial] = ev.known[focus] && ev.allPass()
+		pass[trial] = ok && sc.Holds()
 	}, progress)
 
 	passed := 0
@@ -394,7 +347,7 @@ func (sc *scenario) tolerance(opt AnalysisOptions) *Tolerance {
 		t.P50 = numeric.Quantile(samples, 0.50)
 		t.P99 = numeric.Quantile(samples, 0.99)
 	}
-	t.Shares = varianceShares(focusVals, draws, len(ins), func(i int) string { return s.nodes[ins[i].id].name })
+	t.Shares = varianceShares(focusVals, draws, len(ins), func(i int) string { return ins[i].q.Name })
 	return t
 }
 
@@ -466,7 +419,7 @@ func varianceShares(f, draws []float64, k int, name func(int) string) []Share {
 
 // sweepPoints returns the values of a sweep's input, evenly spaced (or log-spaced):
 // Steps intervals, Steps+1 points including both ends.
-func sweepPoints(sw *Sweep) []float64 {
+func sweepPoints(sw *engine.Sweep) []float64 {
 	xs := make([]float64, sw.Steps+1)
 	for i := range xs {
 		f := float64(i) / float64(sw.Steps)
@@ -479,35 +432,34 @@ func sweepPoints(sw *Sweep) []float64 {
 	return xs
 }
 
-func sweep(nom *Result, sw *Sweep) SweepResult {
-	s := nom.sh
-	vid := s.byName[sw.Vary]
-	vq := s.nodes[vid].q
-	res := SweepResult{Sweep: sw, Unit: unitName(vq)}
-	e := nom.clone()
-	down := s.cone(vid)
+func sweep(nom *engine.Result, sw *engine.Sweep) SweepResult {
+	s := nom.Sheet()
+	vq, _ := s.Quantity(sw.Vary)
+	res := SweepResult{Sweep: sw, Unit: engine.UnitName(vq)}
+	sc := nom.Scenario()
+	down := s.Cone(vq)
 	xs := sweepPoints(sw)
-	base := nom.inputValue(vid)
+	base, _ := nom.Value(vq)
 	set := func(q units.Q) {
-		e.vals[vid], e.known[vid] = q.V, true
-		e.runCone(down)
+		sc.Set(vq, q)
+		sc.Run(down)
 	}
-	var plots []int
+	var plots []*engine.Quantity
 	for _, p := range sw.Plot {
-		id := s.byName[p]
-		plots = append(plots, id)
-		res.Series = append(res.Series, Series{Quantity: p, Unit: unitName(s.nodes[id].q)})
+		pq, _ := s.Quantity(p)
+		plots = append(plots, pq)
+		res.Series = append(res.Series, Series{Quantity: p, Unit: engine.UnitName(pq)})
 	}
 	for _, x := range xs {
 		q := base
 		q.V = x
 		set(q)
-		res.X = append(res.X, Number(vq, q))
-		for i, id := range plots {
-			v, ok := e.Value(s.nodes[id].q)
+		res.X = append(res.X, engine.Number(vq, q))
+		for i, pq := range plots {
+			v, ok := sc.Value(pq)
 			y := math.NaN()
 			if ok {
-				y = Number(s.nodes[id].q, v)
+				y = engine.Number(pq, v)
 			}
 			res.Series[i].Y = append(res.Series[i].Y, y)
 		}
@@ -515,11 +467,11 @@ func sweep(nom *Result, sw *Sweep) SweepResult {
 	set(base)
 	// Where a plotted quantity crosses a requirement's bound, refine the crossing on the model.
 	for ri, rq := range s.Requires {
-		for si, id := range plots {
-			if rq.Subject != s.nodes[id].name {
+		for si, pq := range plots {
+			if rq.Subject != pq.Name {
 				continue
 			}
-			bound := Number(s.nodes[id].q, rq.Bound)
+			bound := engine.Number(pq, rq.Bound)
 			ys := res.Series[si].Y
 			for i := 1; i < len(xs); i++ {
 				a, b := ys[i-1]-bound, ys[i]-bound
@@ -530,18 +482,18 @@ func sweep(nom *Result, sw *Sweep) SweepResult {
 					q := base
 					q.V = x
 					set(q)
-					v, ok := e.Value(s.nodes[id].q)
+					v, ok := sc.Value(pq)
 					if !ok {
 						return math.NaN(), nil
 					}
-					return Number(s.nodes[id].q, v) - bound, nil
+					return engine.Number(pq, v) - bound, nil
 				}
 				x, found, err := numeric.Brent(g, xs[i-1], xs[i], false, 1e-9)
 				set(base)
 				if err == nil && found {
 					q := base
 					q.V = x
-					res.Crossings = append(res.Crossings, Crossing{Quantity: s.nodes[id].name, Require: ri, X: Number(vq, q), Y: bound})
+					res.Crossings = append(res.Crossings, Crossing{Quantity: pq.Name, Require: ri, X: engine.Number(vq, q), Y: bound})
 				}
 				if b == 0 {
 					i++ // do not report a crossing exactly at a point twice
@@ -552,36 +504,40 @@ func sweep(nom *Result, sw *Sweep) SweepResult {
 	return res
 }
 
-func solve(nom *Result, so *Solve) (SolveResult, error) {
-	s := nom.sh
-	vid := s.byName[so.Vary]
-	tid := s.byName[so.SoThat]
-	vq, tq := s.nodes[vid].q, s.nodes[tid].q
-	res := SolveResult{Solve: so, Unit: unitName(vq)}
-	base := nom.inputValue(vid)
+func solve(nom *engine.Result, so *engine.Solve) (SolveResult, error) {
+	s := nom.Sheet()
+	vq, _ := s.Quantity(so.Vary)
+	tq, _ := s.Quantity(so.SoThat)
+	res := SolveResult{Solve: so, Unit: engine.UnitName(vq)}
+	base, _ := nom.Value(vq)
 	if so.Within[0].D != base.D || so.Within[1].D != base.D || so.Within[0].K != base.K {
 		res.Note = fmt.Sprintf("within must be in the same unit kind as %s", so.Vary)
 		return res, fmt.Errorf("%s", res.Note)
 	}
-	if !nom.known[tid] {
+	if !nom.Known(tq) {
 		res.Note = so.SoThat + " could not be evaluated"
 		return res, nil
 	}
-	target, err := so.Equals.In(unitOf(tq))
+	target, err := so.Equals.V, error(nil)
+	if u := reportUnit(tq); u != nil {
+		target, err = so.Equals.In(u)
+	}
 	if err != nil {
 		res.Note = fmt.Sprintf("equals %s does not fit %s: %v", so.Equals, so.SoThat, err)
 		return res, fmt.Errorf("%s", res.Note)
 	}
-	e := nom.clone()
-	down := s.cone(vid)
+	sc := nom.Scenario()
+	down := s.Cone(vq)
 	g := func(x float64) (float64, error) {
-		e.vals[vid], e.known[vid] = x, true
-		e.runCone(down)
-		v, ok := e.Value(tq)
+		q := base
+		q.V = x
+		sc.Set(vq, q)
+		sc.Run(down)
+		v, ok := sc.Value(tq)
 		if !ok {
 			return math.NaN(), nil
 		}
-		return Number(tq, v) - target, nil
+		return engine.Number(tq, v) - target, nil
 	}
 	lo, hi := so.Within[0].V, so.Within[1].V
 	logScale := base.K == units.Linear && lo > 0 && hi > 0 && math.Max(lo, hi)/math.Min(lo, hi) >= 100
@@ -596,10 +552,6 @@ func solve(nom *Result, so *Solve) (SolveResult, error) {
 	}
 	q := base
 	q.V = x
-	res.Found, res.Value = true, Number(vq, q)
+	res.Found, res.Value = true, engine.Number(vq, q)
 	return res, nil
 }
-
-// UnitName returns the symbol of the unit a quantity's numbers are reported in: its display
-// unit, else the unit its type gives ("" for a plain number).
-func UnitName(q *Quantity) string { return unitName(q) }

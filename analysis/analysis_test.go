@@ -1,4 +1,4 @@
-package engine_test
+package analysis_test
 
 import (
 	"fmt"
@@ -9,13 +9,14 @@ import (
 
 	"gonum.org/v1/gonum/stat/distuv"
 
+	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/engine"
 )
 
-func analyze(t *testing.T, src string, opt engine.AnalysisOptions, set ...engine.Override) (*engine.Result, *engine.Analysis) {
+func analyze(t *testing.T, src string, opt analysis.Options, set ...engine.Override) (*engine.Result, *analysis.Analysis) {
 	t.Helper()
 	sh := evalSrc(t, src, set...)
-	a, diags := engine.Analyze(sh, opt)
+	a, diags := analysis.Analyze(sh, opt)
 	if diags.HasErrors() {
 		t.Fatalf("analyze:\n%v", diags)
 	}
@@ -29,7 +30,7 @@ x = { is = "10 dB", tol = "3 dB" }
 that = "= x >= 9 dB"
 `
 	const n = 20000
-	_, a := analyze(t, src, engine.AnalysisOptions{Trials: n, Seed: 7})
+	_, a := analyze(t, src, analysis.Options{Trials: n, Seed: 7})
 	// SPEC §2: tol is the 3σ limit, so x ~ N(10, 1); P(x >= 9) from gonum's normal CDF.
 	p := distuv.Normal{Mu: 10, Sigma: 1}.Survival(9)
 	se := math.Sqrt(p * (1 - p) / n) // binomial standard error of a proportion
@@ -52,7 +53,7 @@ func TestZeroTolerance(t *testing.T) {
 		want  float64
 	}{{"9 dB", 1}, {"11 dB", 0}} {
 		src := fmt.Sprintf("focus = \"x\"\nx = { is = \"10 dB\", tol = \"0 dB\" }\n[[require]]\nthat = \"= x >= %s\"\n", c.bound)
-		_, a := analyze(t, src, engine.AnalysisOptions{Trials: 500, Seed: 1})
+		_, a := analyze(t, src, analysis.Options{Trials: 500, Seed: 1})
 		tl := a.Tolerance
 		if tl == nil {
 			t.Fatalf("no tolerance analysis")
@@ -92,7 +93,7 @@ so_that = "margin"
 equals  = "0 dB"
 within  = ["10 m", "1 km"]
 `
-	_, a := analyze(t, src, engine.AnalysisOptions{Trials: 10})
+	_, a := analyze(t, src, analysis.Options{Trials: 10})
 	// Margin 0 dB means L = p − s = 130 dB; inverting ITU-R P.525 (L = 20·log10(4π·d·f/c)):
 	// d = c/(4π·f)·10^(L/20).
 	const c = 299792458.0
@@ -110,7 +111,7 @@ within  = ["10 m", "1 km"]
 
 func TestSweepPointsMatchDirectEvaluation(t *testing.T) {
 	sh := loadValid(t, "link.toml")
-	a, diags := engine.Analyze(sh, engine.AnalysisOptions{Trials: 10})
+	a, diags := analysis.Analyze(sh, analysis.Options{Trials: 10})
 	if diags.HasErrors() {
 		t.Fatal(diags)
 	}
@@ -138,26 +139,13 @@ func TestSweepPointsMatchDirectEvaluation(t *testing.T) {
 	near(t, "margin at the crossing", value(t, direct, "link.margin", "dB"), 20, 1e-6)
 }
 
-func evalFile(t testing.TB, path string, set ...engine.Override) *engine.Result {
-	t.Helper()
-	sh, diags := engine.Load(path, engine.Options{Library: lib})
-	if err := diags.Err(); err != nil {
-		t.Fatal(err)
-	}
-	r, diags := sh.Eval(set...)
-	if err := diags.Err(); err != nil {
-		t.Fatal(err)
-	}
-	return r
-}
-
-func sensitivityOf(a *engine.Analysis, input string) (engine.Sensitivity, bool) {
+func sensitivityOf(a *analysis.Analysis, input string) (analysis.Sensitivity, bool) {
 	for _, s := range a.Sensitivity {
 		if s.Input == input {
 			return s, true
 		}
 	}
-	return engine.Sensitivity{}, false
+	return analysis.Sensitivity{}, false
 }
 
 func TestSensitivity(t *testing.T) {
@@ -166,7 +154,7 @@ a = "10 dBm"
 b = "3 dB"
 c = "2 dB"
 m = "= a + b - c"
-`, engine.AnalysisOptions{Trials: 10})
+`, analysis.Options{Trials: 10})
 	// A sum of decibel terms moves exactly 1 dB per dB of each term, with the term's sign.
 	for in, want := range map[string]float64{"a": 1, "b": 1, "c": -1} {
 		s, ok := sensitivityOf(a, in)
@@ -180,7 +168,7 @@ m = "= a + b - c"
 d = "2 km"
 f = "868 MHz"
 loss = "= fspl(d, f)"
-`, engine.AnalysisOptions{Trials: 10})
+`, analysis.Options{Trials: 10})
 	// ITU-R P.525: L grows by 20·log10(1.1) ≈ 0.828 dB when d (or f) grows by 10 %.
 	for _, in := range []string{"d", "f"} {
 		s, ok := sensitivityOf(a, in)
@@ -199,7 +187,7 @@ func TestWorstCaseAsymmetric(t *testing.T) {
 x = { is = "10 dB", tol = ["-0.5 dB", "+1.5 dB"] }
 z = { is = "2 dB", tol = ["-0.25 dB", "+0.75 dB"] }
 m = "= x - z"
-`, engine.AnalysisOptions{Trials: 100})
+`, analysis.Options{Trials: 100})
 	// SPEC §5: the worst case sits at the corner of the tolerance box; x raises m, z lowers it.
 	near(t, "worst low", a.Tolerance.WorstLow, (10-0.5)-(2+0.75), 1e-12)
 	near(t, "worst high", a.Tolerance.WorstHigh, (10+1.5)-(2-0.25), 1e-12)
@@ -211,7 +199,7 @@ func TestRSSAndShares(t *testing.T) {
 x = { is = "10 dB", tol = "3 dB" }
 z = { is = "2 dB", tol = "6 dB" }
 m = "= x + z"
-`, engine.AnalysisOptions{Trials: 20000, Seed: 3})
+`, analysis.Options{Trials: 20000, Seed: 3})
 	tl := a.Tolerance
 	// σ = tol/3 (SPEC §2): σx = 1, σz = 2; independent inputs add in quadrature.
 	near(t, "rss", tl.RSSSigma, math.Sqrt(1*1+2*2), 1e-9)
@@ -229,10 +217,10 @@ m = "= x + z"
 
 func TestTrialsDeterministic(t *testing.T) {
 	path := "../worksheets/field-probe-uplink.toml"
-	run := func(workers, procs int) *engine.Tolerance {
+	run := func(workers, procs int) *analysis.Tolerance {
 		defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(procs))
 		sh := evalFile(t, path)
-		a, _ := engine.Analyze(sh, engine.AnalysisOptions{Trials: 3000, Seed: 42, Workers: workers})
+		a, _ := analysis.Analyze(sh, analysis.Options{Trials: 3000, Seed: 42, Workers: workers})
 		if a.Tolerance == nil {
 			t.Fatal("no tolerance analysis")
 		}
@@ -249,7 +237,7 @@ func TestTrialsDeterministic(t *testing.T) {
 func TestBudgetSumsToFocus(t *testing.T) {
 	for _, path := range []string{"../testdata/valid/link.toml", "../worksheets/field-probe-uplink.toml"} {
 		sh := evalFile(t, path)
-		a, _ := engine.Analyze(sh, engine.AnalysisOptions{Trials: 10})
+		a, _ := analysis.Analyze(sh, analysis.Options{Trials: 10})
 		if len(a.Budget) < 2 {
 			t.Fatalf("%s: budget %+v", path, a.Budget)
 		}
@@ -262,7 +250,7 @@ func TestBudgetSumsToFocus(t *testing.T) {
 		near(t, path+": budget total", total, f, 1e-9)
 	}
 	sh := loadValid(t, "link.toml")
-	a, _ := engine.Analyze(sh, engine.AnalysisOptions{Trials: 10})
+	a, _ := analysis.Analyze(sh, analysis.Options{Trials: 10})
 	items := map[string]float64{}
 	for _, c := range a.Budget {
 		items[c.Item] = c.Value
@@ -292,7 +280,7 @@ loss = "1 dB"
 gain = "= g"
 nf = "0.8 dB"
 `)
-	a, diags := engine.Analyze(sh, engine.AnalysisOptions{Trials: 2000, Seed: 1})
+	a, diags := analysis.Analyze(sh, analysis.Options{Trials: 2000, Seed: 1})
 	if diags.HasErrors() {
 		t.Fatal(diags)
 	}

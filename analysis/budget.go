@@ -1,0 +1,77 @@
+package analysis
+
+import (
+	"math"
+	"sort"
+
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/units"
+)
+
+// budget breaks a decibel focus into its signed line items: the focus's formula is followed
+// through the quantities it names for as long as each is a sum and difference of decibel
+// terms. It returns nil when the focus is not such a sum.
+func budget(sc *engine.Scenario, focus *engine.Quantity) []Contribution {
+	s := focus.Sheet()
+	fv, ok := sc.Value(focus)
+	if !ok || fv.K != units.Level {
+		return nil
+	}
+	b := &budgeter{sh: s, sc: sc}
+	if !b.walk(focus, 1, 0) || len(b.items) < 2 {
+		return nil
+	}
+	// The items are in their own units (dBm, dB, dBi); when those references do not cancel
+	// against the focus's unit, one line makes up the difference so the total is exact.
+	total := 0.0
+	for _, it := range b.items {
+		total += it.Value
+	}
+	if d := engine.Number(focus, fv) - total; math.Abs(d) > 1e-9 {
+		b.items = append(b.items, Contribution{Item: "reference level conversion", Value: d, Unit: "dB"})
+	}
+	sort.SliceStable(b.items, func(i, j int) bool { return math.Abs(b.items[i].Value) > math.Abs(b.items[j].Value) })
+	return b.items
+}
+
+type budgeter struct {
+	sh    *engine.Sheet
+	sc    *engine.Scenario
+	items []Contribution
+}
+
+// walk adds the terms of q's formula with the given sign; it reports false when a term is
+// not a decibel value (the focus is then not a sum of decibel terms).
+func (b *budgeter) walk(q *engine.Quantity, sign, depth int) bool {
+	terms, ok := b.sh.Terms(q)
+	if !ok || depth > 64 {
+		return false
+	}
+	for _, t := range terms {
+		s := sign * t.Sign
+		if t.Quantity != nil {
+			if _, isSum := b.sh.Terms(t.Quantity); isSum {
+				if !b.walk(t.Quantity, s, depth+1) {
+					return false
+				}
+				continue
+			}
+			v, ok := b.sc.Value(t.Quantity)
+			if !ok || v.K != units.Level {
+				return false
+			}
+			b.items = append(b.items, Contribution{Item: t.Quantity.Name, Quantity: t.Quantity.Name, Value: float64(s) * engine.Number(t.Quantity, v), Unit: engine.UnitName(t.Quantity)})
+			continue
+		}
+		v, ok := b.sc.Term(t)
+		if !ok || v.K != units.Level {
+			return false
+		}
+		x := v.V
+		if u, _ := units.ParseUnit(v.UnitName()); u != nil {
+			x, _ = v.In(u)
+		}
+		b.items = append(b.items, Contribution{Item: q.Name + ": " + t.Text, Quantity: q.Name, Value: float64(s) * x, Unit: v.UnitName()})
+	}
+	return true
+}
