@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"io/fs"
-	"os"
 	"path/filepath"
 	"strings"
 	"unicode/utf8"
@@ -37,7 +36,9 @@ type Override struct {
 func Load(path string, opt Options) (*Sheet, Diagnostics) {
 	fsys, fsPath := opt.FS, path
 	if fsys == nil {
-		fsys, fsPath = os.DirFS(filepath.Dir(path)), filepath.Base(path)
+		var release func()
+		fsys, fsPath, release = osFS(path)
+		defer release()
 	}
 	fsPath = filepath.ToSlash(fsPath)
 	sh := &Sheet{File: path, byName: map[string]int{}}
