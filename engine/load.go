@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"io/fs"
+	"math"
 	"path"
 	"regexp"
 	"sort"
@@ -380,6 +381,11 @@ func (l *loader) quantityFields(f *sheetFile, q *Quantity, path string, m map[st
 	case int64:
 		q.Text, q.Value = strconv.FormatInt(v, 10), units.Num(float64(v))
 	case float64:
+		if math.IsInf(v, 0) || math.IsNaN(v) {
+			l.errAt(vr, q.Name, "write a finite number", "%v is not a value a quantity can have", v)
+			ok = false
+			break
+		}
 		q.Text, q.Value = strconv.FormatFloat(v, 'g', -1, 64), units.Num(v)
 	default:
 		l.errAt(vr, q.Name, "write a number, a number with a unit in quotes (\"3 dB\"), or \"= formula\"", "a %s is not a quantity", tomlType(v))
