@@ -123,25 +123,37 @@ func chartName(base, kind string) string {
 	return path.Base(base) + "." + kind + ".svg"
 }
 
-// cell escapes text for a Markdown table cell.
-func cell(s string) string {
-	s = strings.ReplaceAll(s, "\\", "\\\\")
-	s = strings.ReplaceAll(s, "|", "\\|")
-	s = strings.ReplaceAll(s, "\n", " ")
-	return s
-}
-
-// code writes text as inline code in a table cell.
+// code writes worksheet text as a code span: its content is shown as written (the renderer
+// escapes it), the fence is longer than any run of backticks inside, a pipe is escaped so a
+// table cell does not end there, and line breaks become spaces.
 func code(s string) string {
 	if s == "" {
 		return ""
 	}
+	s = strings.Map(func(r rune) rune {
+		switch {
+		case r == '\n' || r == '\r' || r == '\t':
+			return ' '
+		case r < 0x20 || r == 0x7f:
+			return -1
+		}
+		return r
+	}, s)
 	s = strings.ReplaceAll(s, "|", "\\|")
-	s = strings.ReplaceAll(s, "\n", " ")
-	if strings.Contains(s, "`") {
-		return "``" + s + "``"
+	run, longest := 0, 0
+	for _, r := range s {
+		if r == '`' {
+			run++
+			longest = max(longest, run)
+		} else {
+			run = 0
+		}
 	}
-	return "`" + s + "`"
+	fence := strings.Repeat("`", longest+1)
+	if strings.HasPrefix(s, "`") || strings.HasSuffix(s, "`") || strings.TrimSpace(s) == "" {
+		s = " " + s + " "
+	}
+	return fence + s + fence
 }
 
 // fmtNum formats a number in a unit as the page shows it.
