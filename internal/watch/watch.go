@@ -107,7 +107,8 @@ func Run(ctx context.Context, r Render, o Options) error {
 	}
 
 	if ln != nil {
-		srv := newServer(ctx, l.st, o.Title, filepath.Base(out), l.errs)
+		hc := serveHosts(ln.Addr(), o.Serve)
+		srv := newServer(ctx, l.st, o.Title, filepath.Base(out), l.errs, hc)
 		var wg sync.WaitGroup
 		wg.Go(func() { srv.Serve(ln) })
 		defer func() {
@@ -116,6 +117,9 @@ func Run(ctx context.Context, r Render, o Options) error {
 		}()
 		addr := ln.Addr().String()
 		fmt.Fprintf(l.status, "%s serving http://%s/\n", stamp(), addr)
+		if !hc.ip.IsLoopback() {
+			fmt.Fprintf(l.status, "%s warning: %s is not a loopback address: anyone who can reach this machine on it can read the budget page\n", stamp(), addr)
+		}
 		if o.Ready != nil {
 			o.Ready(addr)
 		}
@@ -410,6 +414,21 @@ func firstLine(s string) string {
 
 func fmtMillis(d time.Duration) string {
 	return fmt.Sprintf("%.1f ms", float64(d.Microseconds())/1000)
+}
+
+// serveHosts is the Host check for a server listening on addr, started with the serve
+// address given.
+func serveHosts(addr net.Addr, serve string) hostCheck {
+	var hc hostCheck
+	if ta, ok := addr.(*net.TCPAddr); ok {
+		hc.ip = ta.IP
+	}
+	if s, err := listenAddr(serve); err == nil {
+		if h, _, err := net.SplitHostPort(s); err == nil && net.ParseIP(h) == nil {
+			hc.name = h
+		}
+	}
+	return hc
 }
 
 // listenAddr turns the Serve option into a listen address. A bare port or
