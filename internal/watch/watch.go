@@ -31,6 +31,7 @@ type Options struct {
 	Title    string                    // page title for the served page
 	Ready    func(addr string)         // called once the server listens (addr is the real address, useful with ":0"); may be nil
 	Extra    func(dir string) []string // optional: after each good render, files beside Out that should also be served (e.g. SVG charts linked from the Markdown); may be nil
+	Written  func()                    // optional: called after each good render's output is written (e.g. to remove charts the new output no longer links); may be nil
 }
 
 // DefaultDebounce is the debounce window used when Options.Debounce is zero or negative.
@@ -68,6 +69,7 @@ func Run(ctx context.Context, r Render, o Options) error {
 		status:   lockedWriter(o.Status),
 		errs:     lockedWriter(o.Errors),
 		extra:    o.Extra,
+		written:  o.Written,
 		files:    map[string]bool{},
 		st:       newState(),
 	}
@@ -137,6 +139,7 @@ type loop struct {
 	status   io.Writer
 	errs     io.Writer
 	extra    func(dir string) []string
+	written  func()
 	fw       *fsnotify.Watcher
 	files    map[string]bool // cleaned absolute names that trigger a recalculation
 	stale    bool            // a followed file changed while the last render ran
@@ -238,6 +241,9 @@ func (l *loop) recalc() bool {
 		l.setFiles(files, true)
 		l.stale = l.changedSince(files, start)
 		return false
+	}
+	if l.written != nil {
+		l.written()
 	}
 	fmt.Fprintf(l.status, "%s rendered %s in %s\n", stamp(), name, fmtMillis(elapsed))
 	l.st.succeed(data, l.extras())
