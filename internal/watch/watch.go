@@ -209,7 +209,28 @@ func (l *loop) relevant(ev fsnotify.Event) bool {
 			name = abs
 		}
 	}
-	return l.files[filepath.Clean(name)]
+	name = filepath.Clean(name)
+	if l.files[name] {
+		return true
+	}
+	if l.onTheWay(name) {
+		// A folder holding followed files (or one above it) went or came back: watch what
+		// exists now, and recalculate, since its files may have changed with it.
+		l.syncDirs()
+		return true
+	}
+	return false
+}
+
+// onTheWay reports whether name is a folder that holds followed files or lies above one.
+func (l *loop) onTheWay(name string) bool {
+	for f := range l.files {
+		d := filepath.Dir(f)
+		if d == name || strings.HasPrefix(d, name+string(filepath.Separator)) {
+			return true
+		}
+	}
+	return false
 }
 
 // recalc runs one render, writes the output when it succeeded, reports the
@@ -323,7 +344,20 @@ func (l *loop) setFiles(files []string, keep bool) {
 func (l *loop) syncDirs() {
 	want := map[string]bool{}
 	for f := range l.files {
-		want[filepath.Dir(f)] = true
+		// A folder that is gone cannot be watched; watch the nearest one above it that
+		// exists, so its return is seen (and the watch re-armed) without any other event.
+		d := filepath.Dir(f)
+		for {
+			if fi, err := os.Stat(d); err == nil && fi.IsDir() {
+				break
+			}
+			up := filepath.Dir(d)
+			if up == d {
+				break
+			}
+			d = up
+		}
+		want[d] = true
 	}
 	have := map[string]bool{}
 	for _, d := range l.fw.WatchList() {

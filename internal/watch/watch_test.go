@@ -798,3 +798,40 @@ func TestServeWarnsOffLoopback(t *testing.T) {
 		}
 	}
 }
+
+// Issue 8, finding 8: the sheet's folder or a parts folder is deleted and made again; the
+// watch follows the new folder, and the saves after it are rendered.
+func TestRunFollowsRecreatedFolder(t *testing.T) {
+	for _, which := range []string{"sheet", "parts"} {
+		t.Run(which, func(t *testing.T) {
+			f := newFixture(t, "use lna.txt\nfirst")
+			part := filepath.Join(f.parts, "lna.txt")
+			writeFile(t, part, "gain 15")
+			start(t, f.sh.render, f.opts())
+			f.waitOut(t, "gain 15\nfirst\n")
+			dir := f.dir
+			if which == "parts" {
+				dir = f.parts
+			}
+			if err := os.RemoveAll(dir); err != nil {
+				t.Fatal(err)
+			}
+			eventually(t, "the error for the missing folder", func() bool { return strings.Contains(f.status.String(), " error: ") })
+			time.Sleep(100 * time.Millisecond) // let the watch settle on the folder above
+			if err := os.Mkdir(dir, 0o755); err != nil {
+				t.Fatal(err)
+			}
+			if which == "parts" {
+				writeFile(t, part, "gain 20")
+				f.waitOut(t, "gain 20\nfirst\n")
+				saveByRename(t, part, "gain 21")
+				f.waitOut(t, "gain 21\nfirst\n")
+			} else {
+				writeFile(t, f.main, "use lna.txt\nsecond")
+				f.waitOut(t, "gain 15\nsecond\n")
+				saveByRename(t, f.main, "use lna.txt\nthird")
+				f.waitOut(t, "gain 15\nthird\n")
+			}
+		})
+	}
+}
