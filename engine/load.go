@@ -130,7 +130,7 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 		msg := err.Error()
 		hint := "see https://toml.io for the syntax"
 		if errors.As(err, &pe) {
-			r.Start = Pos{pe.Position.Line, max(pe.Position.Col, 1)}
+			r.Start = clampPos(src, Pos{pe.Position.Line, pe.Position.Col})
 			msg = "TOML syntax: " + pe.Message
 			if m := dupKey.FindStringSubmatch(pe.Message); m != nil {
 				msg, hint = fmt.Sprintf("%s is defined twice", m[1]), ""

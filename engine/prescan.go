@@ -322,3 +322,12 @@ func (s *prescanner) str(at int) {
 		s.fail(at, "split it into named intermediate quantities", "formula is %d characters long; the limit is %d", length, maxFormulaLen)
 	}
 }
+
+// clampPos moves a position the TOML decoder reported onto the text: at an unexpected end of
+// the file it can name a column past the end of the last line.
+func clampPos(src string, p Pos) Pos {
+	lines := strings.Split(src, "\n")
+	p.Line = min(max(p.Line, 1), len(lines))
+	p.Col = min(max(p.Col, 1), utf8.RuneCountInString(lines[p.Line-1])+1)
+	return p
+}

@@ -178,6 +178,8 @@ func TestPartsStayInside(t *testing.T) {
 	must(t, os.Symlink("../../outside", filepath.Join(dir, "parts", "outdir")))
 	must(t, os.Symlink("real", filepath.Join(dir, "parts", "inside")))
 	must(t, os.Symlink("/dev/zero", filepath.Join(dir, "parts", "zero.toml")))
+	must(t, os.Symlink("loop2.toml", filepath.Join(dir, "parts", "loop1.toml")))
+	must(t, os.Symlink("loop1.toml", filepath.Join(dir, "parts", "loop2.toml")))
 	fifo := filepath.Join(dir, "parts", "fifo.toml")
 	if err := syscall.Mkfifo(fifo, 0o644); err != nil {
 		t.Logf("no named pipe (%v); that case is skipped", err)
@@ -187,6 +189,7 @@ func TestPartsStayInside(t *testing.T) {
 		{"parts/evil.toml", "leads outside the worksheet's folder"},
 		{"parts/outdir/secret.toml", "leads outside the worksheet's folder"},
 		{"parts/zero.toml", "leads outside the worksheet's folder"},
+		{"parts/loop1.toml", "cannot read"},
 		{"parts/inside/ok.toml", ""}, // a link that stays inside is followed
 		{"../outside/secret.toml", "leaves the worksheet's folder"},
 		{"/etc/passwd", "absolute paths are not allowed"},
