@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"io/fs"
+	"math"
 	"path"
 	"regexp"
 	"slices"
@@ -20,10 +21,9 @@ import (
 
 // Limits on a worksheet, each with its own error.
 const (
-	MaxQuantities = 1_000_000
+	MaxQuantities = 200_000 // twice the 100,000 that must work; the pre-scan counts them before decoding
 	MaxPartsDepth = 8
 	MaxSweepSteps = 10_000
-	maxFileSize   = 64 << 20
 )
 
 var (
@@ -39,6 +39,7 @@ type loader struct {
 	hash  []byte
 	stack []string // part files being loaded, for loops
 	nq    int
+	lim   limits
 
 	formulaSites []site
 	reqSites     []site
@@ -101,17 +102,13 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 		l.errAt(at, "", "flatten the parts", "parts nest more than %d deep", MaxPartsDepth)
 		return
 	}
-	data, err := fs.ReadFile(l.fsys, fsPath)
+	data, err := readSheet(l.fsys, fsPath, prefix != "")
 	if err != nil {
-		msg := err.Error()
-		if errors.Is(err, fs.ErrNotExist) {
-			msg = "no such file"
-		}
-		l.errAt(at, "", "", "cannot read %s: %s", display, msg)
+		l.errAt(at, "", "", "cannot read %s: %v", display, err)
 		return
 	}
 	if len(data) > maxFileSize {
-		l.errAt(at, "", "", "%s is larger than %d MiB", display, maxFileSize>>20)
+		l.errAt(at, "", "split the worksheet into parts", "%s is larger than %d MiB, the room 100,000 quantities need", display, maxFileSize>>20)
 		return
 	}
 	h := sha256.Sum256(data)
@@ -124,6 +121,10 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 	defer func() { l.stack = l.stack[:len(l.stack)-1] }()
 
 	src := string(data)
+	if d := l.lim.prescan(src, display); d != nil {
+		l.diags = append(l.diags, *d)
+		return
+	}
 	f := &sheetFile{name: display, fsPath: fsPath, ix: indexTOML(src), prefix: prefix, src: src}
 	var doc map[string]any
 	if _, err := toml.Decode(src, &doc); err != nil {
@@ -388,6 +389,11 @@ func (l *loader) quantityFields(f *sheetFile, q *Quantity, path string, m map[st
 	case int64:
 		q.Text, value = strconv.FormatInt(v, 10), units.Num(float64(v))
 	case float64:
+		if math.IsInf(v, 0) || math.IsNaN(v) {
+			l.errAt(vr, q.Name, "write a finite number", "%v is not a value a quantity can have", v)
+			ok = false
+			break
+		}
 		q.Text, value = strconv.FormatFloat(v, 'g', -1, 64), units.Num(v)
 	default:
 		l.errAt(vr, q.Name, "write a number, a number with a unit in quotes (\"3 dB\"), or \"= formula\"", "a %s is not a quantity", tomlType(v))

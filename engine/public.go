@@ -3,7 +3,6 @@ package engine
 import (
 	"fmt"
 	"io/fs"
-	"os"
 	"path/filepath"
 	"strings"
 	"unicode"
@@ -36,7 +35,9 @@ type Override struct {
 func Load(path string, opt Options) (*Sheet, Diagnostics) {
 	fsys, fsPath := opt.FS, path
 	if fsys == nil {
-		fsys, fsPath = os.DirFS(filepath.Dir(path)), filepath.Base(path)
+		var release func()
+		fsys, fsPath, release = osFS(path)
+		defer release()
 	}
 	fsPath = filepath.ToSlash(fsPath)
 	sh := &Sheet{File: path, byName: map[string]int{}, lib: opt.Library}

@@ -46,6 +46,9 @@ func cmdExport(e *Env, args []string) int {
 		_, _ = e.Stdout.Write(data)
 		return ExitOK
 	}
+	if err := checkOut(*out, inputFiles(pos[0], ev.sheet.Parts)); err != nil {
+		return usageErr(e, "export", "%v", err)
+	}
 	if err := watch.WriteAtomic(*out, data); err != nil {
 		fmt.Fprintf(e.Stderr, "rfledger export: %v\n", err)
 		return ExitBadSheet

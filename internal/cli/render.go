@@ -90,15 +90,18 @@ func output(ev *evaluated, asJSON bool, out string) ([]byte, []report.File) {
 }
 
 // writeOutputs writes the charts first and the page last, each atomically, so a reader
-// never sees a page whose charts are missing.
-func writeOutputs(out string, page []byte, files []report.File) error {
-	dir := filepath.Dir(out)
-	for _, f := range files {
-		if err := watch.WriteAtomic(filepath.Join(dir, f.Name), f.Data); err != nil {
-			return err
-		}
+// never sees a page whose charts are missing; charts of earlier pages go after the page.
+func writeOutputs(out string, page []byte, files []report.File, inputs []string) error {
+	if err := checkOut(out, inputs); err != nil {
+		return err
 	}
-	return watch.WriteAtomic(out, page)
+	if err := writeCharts(out, files, inputs); err != nil {
+		return err
+	}
+	if err := watch.WriteAtomic(out, page); err != nil {
+		return err
+	}
+	return removeOldCharts(out, files)
 }
 
 func cmdRender(e *Env, args []string) int {
@@ -120,6 +123,11 @@ func cmdRender(e *Env, args []string) int {
 	if err != nil {
 		return usageErr(e, "render", "%v", err)
 	}
+	if *out != "" {
+		if err := checkOut(*out, []string{pos[0]}); err != nil {
+			return usageErr(e, "render", "%v", err)
+		}
+	}
 	ev := evaluate(pos[0], over, nil, &analysis.Options{Trials: *trials, Seed: *seed, Progress: progress(e)})
 	printDiags(e, ev.diags)
 	if !ev.ok() {
@@ -131,9 +139,9 @@ func cmdRender(e *Env, args []string) int {
 		_, _ = e.Stdout.Write(page)
 		return ExitOK
 	}
-	if err := writeOutputs(*out, page, files); err != nil {
+	if err := writeOutputs(*out, page, files, inputFiles(pos[0], ev.sheet.Parts)); err != nil {
 		fmt.Fprintf(e.Stderr, "rfledger: %v\n", err)
-		return ExitBadSheet
+		return ExitUsage
 	}
 	return ExitOK
 }

@@ -10,6 +10,9 @@ import (
 	"strings"
 
 	"github.com/rfledger/rfledger/analysis"
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/internal/report"
+	"github.com/rfledger/rfledger/internal/rflib"
 	"github.com/rfledger/rfledger/internal/watch"
 )
 
@@ -30,24 +33,32 @@ func cmdWatch(e *Env, args []string) int {
 		return usageErr(e, "watch", "%v", err)
 	}
 	sheet := pos[0]
-	dir := filepath.Dir(sheet)
+	// The parts are known once the sheet is loaded; a part named as -o is refused here too.
+	first, _ := engine.Load(sheet, engine.Options{Library: rflib.Library()})
+	if err := checkOut(*out, inputFiles(sheet, first.Parts)); err != nil {
+		return usageErr(e, "watch", "%v", err)
+	}
 	var charts []string
+	var written []report.File
 	render := func() ([]byte, []string, error) {
 		ev := evaluate(sheet, over, nil, &analysis.Options{Trials: *trials, Seed: *seed})
-		files := []string{sheet}
-		for _, p := range ev.sheet.Parts {
-			files = append(files, filepath.Join(dir, filepath.FromSlash(p)))
-		}
+		files := inputFiles(sheet, ev.sheet.Parts)
 		if !ev.ok() {
 			return nil, files, errors.New(strings.TrimSuffix(formatDiags(ev.diags, nil), "\n"))
 		}
+		if err := checkOut(*out, files); err != nil {
+			return nil, files, err
+		}
+		for _, d := range ev.diags {
+			fmt.Fprintln(e.Stderr, d.String())
+		}
 		printDiags(e, ev.diags)
 		page, extra := output(ev, false, *out)
-		charts = charts[:0]
+		if err := writeCharts(*out, extra, files); err != nil {
+			return nil, files, err
+		}
+		charts, written = charts[:0], extra
 		for _, f := range extra {
-			if err := watch.WriteAtomic(filepath.Join(filepath.Dir(*out), f.Name), f.Data); err != nil {
-				return nil, files, err
-			}
 			charts = append(charts, f.Name)
 		}
 		return page, files, nil
@@ -57,6 +68,11 @@ func cmdWatch(e *Env, args []string) int {
 	err = watch.Run(ctx, render, watch.Options{
 		Out: *out, Status: e.Stderr, Errors: e.Stderr, Serve: *serve, Title: strings.TrimSuffix(filepath.Base(sheet), ".toml"),
 		Extra: func(string) []string { return append([]string(nil), charts...) },
+		Written: func() {
+			if err := removeOldCharts(*out, written); err != nil {
+				fmt.Fprintf(e.Stderr, "rfledger watch: %v\n", err)
+			}
+		},
 	})
 	if err != nil {
 		fmt.Fprintf(e.Stderr, "rfledger watch: %v\n", err)

@@ -16,12 +16,12 @@ func (p *page) addChart(kind, alt string, draw func(*bytes.Buffer) error) {
 	}
 	var buf bytes.Buffer
 	if err := draw(&buf); err != nil {
-		p.f("_(The %s chart could not be drawn: %s.)_\n\n", alt, mdText(err.Error()))
+		p.f("_(The %s chart could not be drawn: %s.)_\n\n", text(alt), text(err.Error()))
 		return
 	}
-	name := chartName(p.in.ChartBase, kind)
+	name := chartName(p.in.ChartBase, kind, buf.Bytes())
 	p.files = append(p.files, File{Name: name, Data: buf.Bytes()})
-	p.f("![%s](%s)\n\n", alt, name)
+	p.f("![%s](%s)\n\n", text(alt), name)
 }
 
 func (p *page) levelChart(ci analysis.Cascade) {

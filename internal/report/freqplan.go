@@ -158,12 +158,12 @@ func responseKind(r freqplan.Response) string {
 
 func (p *page) spurSection(i int, si spurInfo) {
 	b, u := si.block, si.unit
-	p.f("### Spurious responses: %s\n\n", mdText(b.Name))
+	p.f("### Spurious responses: %s\n\n", text(b.Name))
 	if b.Note != "" {
-		p.f("%s\n\n", mdText(b.Note))
+		p.f("%s\n\n", text(b.Note))
 	}
 	if si.err != nil {
-		p.f("The responses cannot be worked out: %s.\n\n", mdText(si.err.Error()))
+		p.f("The responses cannot be worked out: %s.\n\n", text(si.err.Error()))
 		return
 	}
 	p.f("LO %s, IF passband %s, preselector passband %s; every m·LO ± n·f up to order m + n = %d.\n\n",
@@ -272,9 +272,9 @@ func productText(k []int) string {
 
 func (p *page) productSection(i int, pi productInfo) {
 	b, u := pi.block, pi.unit
-	p.f("### Products in protected bands: %s\n\n", mdText(b.Name))
+	p.f("### Products in protected bands: %s\n\n", text(b.Name))
 	if b.Note != "" {
-		p.f("%s\n\n", mdText(b.Note))
+		p.f("%s\n\n", text(b.Note))
 	}
 	var tones, bands []string
 	for j, t := range pi.tones {
@@ -285,7 +285,7 @@ func (p *page) productSection(i int, pi productInfo) {
 	}
 	p.f("Tones %s; protected %s; every k1·f1 + k2·f2 + … with 2 ≤ Σ|k| ≤ %d.\n\n", strings.Join(tones, ", "), strings.Join(bands, ", "), b.Order)
 	if pi.err != nil {
-		p.f("The products cannot be worked out: %s.\n\n", mdText(pi.err.Error()))
+		p.f("The products cannot be worked out: %s.\n\n", text(pi.err.Error()))
 		return
 	}
 	if len(pi.hits) == 0 {

@@ -32,9 +32,9 @@ func Markdown(in Input) ([]byte, []File) {
 	if title == "" {
 		title = "Link budget"
 	}
-	p.f("# %s\n\n", mdText(title))
+	p.f("# %s\n\n", text(title))
 	if sh.Summary != "" {
-		p.f("%s\n\n", mdText(sh.Summary))
+		p.f("%s\n\n", text(sh.Summary))
 	}
 	p.verdict()
 	p.lineItems()
@@ -53,10 +53,48 @@ func Markdown(in Input) ([]byte, []File) {
 	return p.b.Bytes(), p.files
 }
 
-// mdText escapes characters that Markdown would take as formatting in running text.
-func mdText(s string) string {
-	r := strings.NewReplacer("\\", "\\\\", "*", "\\*", "_", "\\_", "`", "\\`", "<", "&lt;", ">", "&gt;", "[", "\\[", "]", "\\]", "|", "\\|", "#", "\\#")
-	return r.Replace(strings.TrimSpace(s))
+// text is the one escape for worksheet text (titles, notes, sources, stage labels, names,
+// messages) on the page: every character Markdown or HTML could read as syntax is
+// backslash-escaped, so no text becomes a tag, a link, an autolink, emphasis or a table
+// cell boundary, and line breaks become spaces. Code spans go through code.
+func text(s string) string {
+	s = strings.TrimSpace(s)
+	var b strings.Builder
+	for i, r := range s {
+		switch {
+		case r == '\n' || r == '\r' || r == '\t':
+			b.WriteByte(' ')
+		case r < 0x20 || r == 0x7f:
+			// control characters carry nothing a reader needs
+		case strings.ContainsRune(markdownPunct, r), i == 0 && strings.ContainsRune("-+=", r), listNumber(s, i):
+			b.WriteByte('\\')
+			b.WriteRune(r)
+		default:
+			b.WriteRune(r)
+		}
+	}
+	return b.String()
+}
+
+// markdownPunct is the ASCII punctuation that can start Markdown or HTML syntax inside a
+// line: emphasis, strikethrough, code, links and images, tags and entities, table cell
+// boundaries, headings' closing marks, and autolinks (scheme colons, e-mail at-signs). The
+// list and heading marks that count only at the start of a line are escaped there (text may
+// start a line: the summary does).
+const markdownPunct = "\\`*_~[]<>|&#:@"
+
+// listNumber reports whether s[i] is the "." or ")" that would make the digits before it,
+// at the start of the text, an ordered list item.
+func listNumber(s string, i int) bool {
+	if i == 0 || s[i] != '.' && s[i] != ')' {
+		return false
+	}
+	for _, c := range []byte(s[:i]) {
+		if c < '0' || c > '9' {
+			return false
+		}
+	}
+	return true
 }
 
 func (p *page) verdict() {
@@ -84,7 +122,7 @@ func (p *page) verdict() {
 		p.f(".**\n\n")
 	}
 	if f, ok := sh.Quantity(sh.Focus); ok {
-		p.f("Focus: `%s` = **%s**.\n\n", f.Name, p.r.Display(f))
+		p.f("Focus: %s = **%s**.\n\n", code(f.Name), p.r.Display(f))
 	}
 	if a := p.in.Analysis; a != nil {
 		for _, so := range a.Solves {
@@ -110,7 +148,7 @@ func (p *page) verdict() {
 		case !passes(p.r, rq):
 			result = "**FAIL**"
 		}
-		p.f("| %s | %s | %s | %s |\n", code(rq.That), value, result, cell(rq.Note))
+		p.f("| %s | %s | %s | %s |\n", code(rq.That), value, result, text(rq.Note))
 	}
 	p.f("\n")
 }
@@ -122,9 +160,9 @@ func solveSentence(sh *engine.Sheet, r analysis.SolveResult) string {
 		if why == "" {
 			why = "no crossing in range"
 		}
-		return fmt.Sprintf("`%s`: %s does not reach %s for %s between %s and %s: %s.", so.Name, so.SoThat, inUnitOf(sh, so.SoThat, so.Equals), so.Vary, inUnitOf(sh, so.Vary, so.Within[0]), inUnitOf(sh, so.Vary, so.Within[1]), why)
+		return fmt.Sprintf("%s: %s does not reach %s for %s between %s and %s: %s.", code(so.Name), code(so.SoThat), inUnitOf(sh, so.SoThat, so.Equals), code(so.Vary), inUnitOf(sh, so.Vary, so.Within[0]), inUnitOf(sh, so.Vary, so.Within[1]), text(why))
 	}
-	return fmt.Sprintf("`%s`: %s reaches %s at %s = **%s**.", so.Name, so.SoThat, inUnitOf(sh, so.SoThat, so.Equals), so.Vary, fmtNum(r.Value, r.Unit))
+	return fmt.Sprintf("%s: %s reaches %s at %s = **%s**.", code(so.Name), code(so.SoThat), inUnitOf(sh, so.SoThat, so.Equals), code(so.Vary), fmtNum(r.Value, r.Unit))
 }
 
 func tolText(t *engine.Tol) string {
@@ -149,7 +187,7 @@ func (p *page) lineItems() {
 		if name == "" {
 			name = "General"
 		}
-		p.f("### %s\n\n", mdText(name))
+		p.f("### %s\n\n", text(name))
 		p.f("| quantity | value | obtained from | tolerance | note | source |\n| --- | ---: | --- | --- | --- | --- |\n")
 		for _, q := range g.Quantities {
 			how := "input"
@@ -160,7 +198,7 @@ func (p *page) lineItems() {
 			if len(p.r.Warnings(q)) > 0 {
 				key += " (warning)"
 			}
-			p.f("| %s | %s | %s | %s | %s | %s |\n", cell(key), p.r.Display(q), how, tolText(q.Tol), cell(q.Note), cell(q.Source))
+			p.f("| %s | %s | %s | %s | %s | %s |\n", text(key), p.r.Display(q), how, text(tolText(q.Tol)), text(q.Note), text(q.Source))
 		}
 		p.f("\n")
 	}
@@ -172,18 +210,18 @@ func (p *page) cascades() {
 	}
 	p.f("## Cascades\n\n")
 	for _, ci := range p.chains {
-		p.f("### %s\n\n", mdText(ci.Chain.Name))
+		p.f("### %s\n\n", text(ci.Chain.Name))
 		if ci.Err != nil {
-			p.f("The cascade cannot be computed: %s.\n\n", mdText(ci.Err.Error()))
+			p.f("The cascade cannot be computed: %s.\n\n", text(ci.Err.Error()))
 			continue
 		}
 		in, hasIn := inputDBm(ci)
 		nin, hasNoise := noiseInDBm(ci)
 		if hasIn {
-			p.f("Signal at the chain input: `%s` = %s. ", ci.Input.Name, p.r.Display(ci.Input))
+			p.f("Signal at the chain input: %s = %s. ", code(ci.Input.Name), p.r.Display(ci.Input))
 		}
 		if hasNoise {
-			p.f("Noise in `%s` = %s at T0 = 290 K: %s dBm.", ci.Bandwidth.Name, p.r.Display(ci.Bandwidth), db2(nin))
+			p.f("Noise in %s = %s at T0 = 290 K: %s dBm.", code(ci.Bandwidth.Name), p.r.Display(ci.Bandwidth), db2(nin))
 		}
 		if hasIn || hasNoise {
 			p.f("\n\n")
@@ -220,7 +258,7 @@ func (p *page) cascades() {
 			if r.HasIIP3 {
 				cumIIP3 = db2(r.CumIIP3) + " dBm"
 			}
-			p.f("| %d | %s | %s dB | %s dB | %s | %s dB | %s dB | %s | %s | %s |", i+1, cell(st.Name), db2(st.GainDB), db2(st.NFDB), iip3, db2(r.CumGainDB), db2(r.CumNFDB), cumIIP3, pct(r.NoiseShare), share3)
+			p.f("| %d | %s | %s dB | %s dB | %s | %s dB | %s dB | %s | %s | %s |", i+1, text(st.Name), db2(st.GainDB), db2(st.NFDB), iip3, db2(r.CumGainDB), db2(r.CumNFDB), cumIIP3, pct(r.NoiseShare), share3)
 			if hasIP2 {
 				p.f(" %s | %s |", dbmIf(st.IIP2, st.HasIIP2), dbmIf(r.CumIIP2, r.HasIIP2))
 			}
@@ -250,7 +288,7 @@ func (p *page) cascades() {
 		p.f(".\n\n")
 		p.f("%s\n\n", dominantStages(ci))
 		for _, n := range ci.Notes {
-			p.f("- Note: %s.\n", mdText(n))
+			p.f("- Note: %s.\n", text(n))
 		}
 		if len(ci.Notes) > 0 {
 			p.f("\n")
@@ -280,10 +318,10 @@ func dominantStages(ci analysis.Cascade) string {
 	}
 	var parts []string
 	if bestN >= 0 && ci.Result.NFDB > 0 {
-		parts = append(parts, fmt.Sprintf("**%s** sets %s of the noise factor excess (F − 1)", mdText(ci.Stages[bestN].Name), pct(ci.Result.Stages[bestN].NoiseShare)))
+		parts = append(parts, fmt.Sprintf("**%s** sets %s of the noise factor excess (F − 1)", text(ci.Stages[bestN].Name), pct(ci.Result.Stages[bestN].NoiseShare)))
 	}
 	if bestI >= 0 {
-		parts = append(parts, fmt.Sprintf("**%s** sets %s of the IIP3 degradation", mdText(ci.Stages[bestI].Name), pct(ci.Result.Stages[bestI].IIP3Share)))
+		parts = append(parts, fmt.Sprintf("**%s** sets %s of the IIP3 degradation", text(ci.Stages[bestI].Name), pct(ci.Result.Stages[bestI].IIP3Share)))
 	}
 	if len(parts) == 0 {
 		return "The chain adds no noise and has no intercept points."
@@ -295,7 +333,7 @@ func (p *page) budget() {
 	a := p.in.Analysis
 	p.f("## Where the budget goes\n\n")
 	if len(a.Budget) == 0 {
-		p.f("`%s` is not a sum and difference of decibel terms, so it does not break down into line items; see the sensitivity below.\n\n", a.Focus.Name)
+		p.f("%s is not a sum and difference of decibel terms, so it does not break down into line items; see the sensitivity below.\n\n", code(a.Focus.Name))
 		p.chainShares()
 		return
 	}
@@ -303,7 +341,7 @@ func (p *page) budget() {
 	for _, c := range a.Budget {
 		abs += math.Abs(c.Value)
 	}
-	p.f("`%s` = %s is the sum of these terms, largest first (followed through the quantities its formula names):\n\n", a.Focus.Name, p.r.Display(a.Focus))
+	p.f("%s = %s is the sum of these terms, largest first (followed through the quantities its formula names):\n\n", code(a.Focus.Name), p.r.Display(a.Focus))
 	p.f("| # | item | contribution | running total | share of the total swing |\n| ---: | --- | ---: | ---: | ---: |\n")
 	run := 0.0
 	for i, c := range a.Budget {
@@ -320,7 +358,7 @@ func (p *page) chainShares() {
 	var lines []string
 	for _, ci := range p.chains {
 		if ci.Err == nil {
-			lines = append(lines, fmt.Sprintf("- `%s`: %s", ci.Chain.Name, strings.TrimPrefix(dominantStages(ci), "In this chain ")))
+			lines = append(lines, fmt.Sprintf("- %s: %s", code(ci.Chain.Name), strings.TrimPrefix(dominantStages(ci), "In this chain ")))
 		}
 	}
 	if len(lines) > 0 {
@@ -332,11 +370,11 @@ func (p *page) sensitivity() {
 	a := p.in.Analysis
 	p.f("## Sensitivity\n\n")
 	if len(a.Sensitivity) == 0 {
-		p.f("`%s` depends on no input.\n\n", a.Focus.Name)
+		p.f("%s depends on no input.\n\n", code(a.Focus.Name))
 		return
 	}
-	p.f("Change of `%s` when one input rises by 1 dB (decibel inputs) or 10 %% (linear inputs), every other input at its nominal value; largest first:\n\n", a.Focus.Name)
-	p.f("| input | step | change of %s |\n| --- | ---: | ---: |\n", mdText(a.Focus.Name))
+	p.f("Change of %s when one input rises by 1 dB (decibel inputs) or 10 %% (linear inputs), every other input at its nominal value; largest first:\n\n", code(a.Focus.Name))
+	p.f("| input | step | change of %s |\n| --- | ---: | ---: |\n", text(a.Focus.Name))
 	for _, s := range a.Sensitivity {
 		p.f("| %s | +%s | %s |\n", p.inputName(s.Input), s.Per, signedIn(s.Change, a.ChangeUnit))
 	}
@@ -348,12 +386,12 @@ func (p *page) tolerance() {
 	t := a.Tolerance
 	p.f("## Tolerance\n\n")
 	if t == nil {
-		p.f("No input that `%s` depends on has a tolerance; add `tol = \"1 dB\"` to the long form of an input to see the spread.\n\n", a.Focus.Name)
+		p.f("No input that %s depends on has a tolerance; add `tol = \"1 dB\"` to the long form of an input to see the spread.\n\n", code(a.Focus.Name))
 		return
 	}
 	u := a.Unit
-	p.f("Spread of `%s` from the input tolerances (a normal tolerance is its 3σ limit):\n\n", a.Focus.Name)
-	p.f("| measure | %s |\n| --- | ---: |\n", mdText(a.Focus.Name))
+	p.f("Spread of %s from the input tolerances (a normal tolerance is its 3σ limit):\n\n", code(a.Focus.Name))
+	p.f("| measure | %s |\n| --- | ---: |\n", text(a.Focus.Name))
 	p.f("| nominal | %s |\n", fmtNum(t.Nominal, u))
 	p.f("| worst case low (every input at the limit that lowers it) | %s |\n", fmtNum(t.WorstLow, u))
 	p.f("| worst case high (every input at the limit that raises it) | %s |\n", fmtNum(t.WorstHigh, u))
@@ -372,7 +410,7 @@ func (p *page) tolerance() {
 		moved = moved || s.Share > 0
 	}
 	if !moved {
-		p.f("The tolerances given do not move `%s`.\n\n", a.Focus.Name)
+		p.f("The tolerances given do not move %s.\n\n", code(a.Focus.Name))
 	} else {
 		p.f("| input | share of the variance |\n| --- | ---: |\n")
 		for _, s := range t.Shares {
@@ -390,18 +428,18 @@ func (p *page) sweeps() {
 	}
 	p.f("## Sweeps\n\n")
 	for i, sw := range a.Sweeps {
-		p.f("### %s from %s to %s\n\n", mdText(sw.Sweep.Vary), inUnitOf(p.in.Sheet, sw.Sweep.Vary, sw.Sweep.From), inUnitOf(p.in.Sheet, sw.Sweep.Vary, sw.Sweep.To))
+		p.f("### %s from %s to %s\n\n", text(sw.Sweep.Vary), inUnitOf(p.in.Sheet, sw.Sweep.Vary, sw.Sweep.From), inUnitOf(p.in.Sheet, sw.Sweep.Vary, sw.Sweep.To))
 		p.sweepChart(i, sw)
 		for _, c := range sw.Crossings {
 			rq := p.in.Sheet.Requires[c.Require]
-			p.f("- `%s` crosses the bound of `%s` at %s = %s.\n", c.Quantity, rq.That, sw.Sweep.Vary, fmtNum(c.X, sw.Unit))
+			p.f("- %s crosses the bound of %s at %s = %s.\n", code(c.Quantity), code(rq.That), code(sw.Sweep.Vary), fmtNum(c.X, sw.Unit))
 		}
 		if len(sw.Crossings) > 0 {
 			p.f("\n")
 		}
-		p.f("| %s |", cell(unitHead(sw.Sweep.Vary, sw.Unit)))
+		p.f("| %s |", text(unitHead(sw.Sweep.Vary, sw.Unit)))
 		for _, s := range sw.Series {
-			p.f(" %s |", cell(unitHead(s.Quantity, s.Unit)))
+			p.f(" %s |", text(unitHead(s.Quantity, s.Unit)))
 		}
 		p.f("\n| ---: |%s\n", strings.Repeat(" ---: |", len(sw.Series)))
 		for j, x := range sw.X {
@@ -444,7 +482,7 @@ func (p *page) solves() {
 		if r.Found {
 			res = "**" + fmtNum(r.Value, r.Unit) + "**"
 		} else if r.Note != "" {
-			res = cell(r.Note)
+			res = text(r.Note)
 		}
 		sh := p.in.Sheet
 		p.f("| %s | %s | %s = %s | %s to %s | %s |\n", code(so.Name), code(so.Vary), code(so.SoThat), inUnitOf(sh, so.SoThat, so.Equals), inUnitOf(sh, so.Vary, so.Within[0]), inUnitOf(sh, so.Vary, so.Within[1]), res)
@@ -460,13 +498,13 @@ func (p *page) warnings() {
 		}
 		who := ""
 		if d.Quantity != "" {
-			who = "`" + d.Quantity + "`: "
+			who = code(d.Quantity) + ": "
 		}
-		lines = append(lines, "- "+who+mdText(d.Summary))
+		lines = append(lines, "- "+who+text(d.Summary))
 	}
 	for _, ci := range p.chains {
 		if ci.Err != nil {
-			lines = append(lines, "- `"+ci.Chain.Name+"`: "+mdText(ci.Err.Error()))
+			lines = append(lines, "- "+code(ci.Chain.Name)+": "+text(ci.Err.Error()))
 		}
 	}
 	p.f("## Warnings\n\n")
@@ -494,7 +532,7 @@ func (p *page) cautions() {
 
 func (p *page) footer() {
 	sh := p.in.Sheet
-	p.f("---\n\nRendered by rfledger from `%s` (content hash `%s`", filepath.Base(sh.File), sh.Hash)
+	p.f("---\n\nRendered by rfledger from %s (content hash %s", code(filepath.Base(sh.File)), code(sh.Hash))
 	if len(sh.Parts) > 0 {
 		p.f(", with parts %s", strings.Join(quoteAll(sh.Parts), ", "))
 	}
@@ -504,7 +542,7 @@ func (p *page) footer() {
 func quoteAll(ss []string) []string {
 	out := make([]string, len(ss))
 	for i, s := range ss {
-		out[i] = "`" + s + "`"
+		out[i] = code(s)
 	}
 	return out
 }
@@ -527,7 +565,7 @@ func (p *page) inputName(name string) string {
 		for _, st := range ci.Chain.Stages {
 			for _, q := range st.Values {
 				if q.Name == name {
-					return code(name) + " (" + cell(st.Label) + ")"
+					return code(name) + " (" + text(st.Label) + ")"
 				}
 			}
 		}

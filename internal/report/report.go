@@ -4,9 +4,12 @@
 package report
 
 import (
+	"crypto/sha256"
+	"encoding/hex"
 	"fmt"
 	"math"
 	"path"
+	"regexp"
 	"strings"
 
 	"github.com/rfledger/rfledger/analysis"
@@ -21,7 +24,7 @@ type Input struct {
 	Analysis *analysis.Analysis // nil when the analyses were not run
 	Warnings engine.Diagnostics // warnings from evaluation and the analyses
 	// ChartBase is the file name prefix for charts written beside the page ("budget" gives
-	// "budget.sweep-1.svg"); "" leaves the charts out.
+	// "budget.sweep-1.<hash>.svg"); "" leaves the charts out.
 	ChartBase string
 }
 
@@ -81,30 +84,55 @@ func pct(v float64) string {
 	return fmt.Sprintf("%.2f %%", 100*v)
 }
 
-// chartName returns the file name of a chart beside the page.
-func chartName(base, kind string) string {
-	return path.Base(base) + "." + kind + ".svg"
+// chartName returns the file name of a chart beside the page: it carries a hash of the
+// chart's content, so a new page never links an older run's chart by the same name, and the
+// charts of the page on disk stay in place until the new page has replaced it.
+func chartName(base, kind string, data []byte) string {
+	h := sha256.Sum256(data)
+	return path.Base(base) + "." + kind + "." + hex.EncodeToString(h[:6]) + ".svg"
 }
 
-// cell escapes text for a Markdown table cell.
-func cell(s string) string {
-	s = strings.ReplaceAll(s, "\\", "\\\\")
-	s = strings.ReplaceAll(s, "|", "\\|")
-	s = strings.ReplaceAll(s, "\n", " ")
-	return s
+// OwnChart reports whether name is a chart of the page with the given ChartBase: one with
+// a content hash, or one of the names without a hash that older versions wrote. Whoever
+// writes the page removes the ones the new page does not link, after writing it.
+func OwnChart(base, name string) bool {
+	rest, ok := strings.CutPrefix(name, path.Base(base)+".")
+	return ok && ownChart.MatchString(rest)
 }
 
-// code writes text as inline code in a table cell.
+var ownChart = regexp.MustCompile(`^(?:budget|montecarlo|sweep-[0-9]+|levels-[A-Za-z0-9_.\[\]-]+)(?:\.[0-9a-f]{12})?\.svg$`)
+
+// code writes worksheet text as a code span: its content is shown as written (the renderer
+// escapes it), the fence is longer than any run of backticks inside, a pipe is escaped so a
+// table cell does not end there, and line breaks become spaces.
 func code(s string) string {
 	if s == "" {
 		return ""
 	}
+	s = strings.Map(func(r rune) rune {
+		switch {
+		case r == '\n' || r == '\r' || r == '\t':
+			return ' '
+		case r < 0x20 || r == 0x7f:
+			return -1
+		}
+		return r
+	}, s)
 	s = strings.ReplaceAll(s, "|", "\\|")
-	s = strings.ReplaceAll(s, "\n", " ")
-	if strings.Contains(s, "`") {
-		return "``" + s + "``"
+	run, longest := 0, 0
+	for _, r := range s {
+		if r == '`' {
+			run++
+			longest = max(longest, run)
+		} else {
+			run = 0
+		}
 	}
-	return "`" + s + "`"
+	fence := strings.Repeat("`", longest+1)
+	if strings.HasPrefix(s, "`") || strings.HasSuffix(s, "`") || strings.TrimSpace(s) == "" {
+		s = " " + s + " "
+	}
+	return fence + s + fence
 }
 
 // fmtNum formats a number in a unit as the page shows it.

@@ -79,10 +79,17 @@ func stagesInto(out []rfmath.Stage, notes []string, cv *engine.ChainValue) ([]rf
 			if !nf.IsRatio() {
 				return nil, nil, fmt.Errorf("stage %q: nf is %s, want dB", sv.Label, nameOf(nf))
 			}
+			if nf.V < 0 {
+				// F = 1 + Te/T0 ≥ 1 for a physical two-port (Friis 1944): NF ≥ 0 dB.
+				return nil, nil, fmt.Errorf("stage %q: nf %s is below 0 dB: no two-port adds less than no noise", sv.Label, nf)
+			}
 			st.NFDB = nf.V
 		} else if te, ok := sv.Get("te"); ok {
 			if te.D != units.Temperature {
 				return nil, nil, fmt.Errorf("stage %q: te is %s, want a temperature", sv.Label, nameOf(te))
+			}
+			if te.Linear().V < 0 {
+				return nil, nil, fmt.Errorf("stage %q: te %s is negative: a noise temperature is 0 K or more", sv.Label, te)
 			}
 			st.NFDB = rfmath.TeToNF(te.Linear().V)
 		} else {

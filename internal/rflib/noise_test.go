@@ -162,3 +162,31 @@ func TestChainAndNoiseErrors(t *testing.T) {
 		t.Errorf("cascade_iip3 without intercepts: %v", diags)
 	}
 }
+
+// Issue 8, finding 9: impossible stage values are errors. A physical two-port has noise
+// factor F = 1 + Te/T0 ≥ 1 (Friis 1944), so NF ≥ 0 dB and Te ≥ 0 K; a stage of −1.2 dB
+// once gave a share of F−1 of −476.82 %.
+func TestImpossibleStages(t *testing.T) {
+	cases := []struct{ stage, want string }{
+		{"nf = \"-1.2 dB\"", `stage "lna": nf -1.20 dB is below 0 dB`},
+		{"te = \"-5 K\"", `stage "lna": te -5 K is negative`},
+	}
+	for _, c := range cases {
+		for _, fn := range []string{"cascade_nf", "cascade_te", "cascade_gain"} {
+			_, diags := load(t, "x = \"= "+fn+"(c)\"\n[[c]]\nstage = \"lna\"\ngain = \"10 dB\"\n"+c.stage+"\n")
+			if !strings.Contains(diags.Error(), c.want) {
+				t.Errorf("%s with %s: %v", fn, c.stage, diags)
+			}
+		}
+	}
+	// The edge is allowed: a noiseless stage, NF 0 dB = Te 0 K (F = 1 + 0/T0 = 1, Friis 1944).
+	sh, diags := load(t, "x = \"= cascade_nf(c)\"\ny = \"= cascade_nf(d)\"\n[[c]]\ngain = \"10 dB\"\nte = \"0 K\"\n[[d]]\ngain = \"10 dB\"\nnf = \"0 dB\"\n")
+	if err := diags.Err(); err != nil {
+		t.Fatal(err)
+	}
+	for _, name := range []string{"x", "y"} {
+		if got := value(t, sh, name, "dB"); math.Abs(got) > 1e-12 {
+			t.Errorf("%s = %g dB, want 0 (F = 1)", name, got)
+		}
+	}
+}

@@ -43,7 +43,17 @@ var propagation = []*engine.Func{
 		Source: "Rappaport, Wireless Communications: Principles and Practice, log-distance path loss model; free-space anchor ITU-R P.525-4",
 		Call: func(c *engine.Call, a []engine.Value) (units.Q, error) {
 			d, f, d0, n := q(a, 0), q(a, 1), q(a, 2), q(a, 3)
-			if d > 0 && d0 > 0 && d < d0 {
+			switch {
+			case !(d0 > 0):
+				return units.Q{}, fmt.Errorf("logdist: the reference distance d0 = %s must be positive", units.Lin(d0, units.Length))
+			case n < 0:
+				return units.Q{}, fmt.Errorf("logdist: the path-loss exponent n = %g is negative: the loss would fall with distance", n)
+			case n < 1.6 || n > 6:
+				// Rappaport, Table 4.2 (recalled from memory): measured exponents run from
+				// 1.6–1.8 (line of sight in buildings) to 4–6 (obstructed in buildings).
+				c.Warn("logdist: the path-loss exponent n = %g is outside 1.6–6, the range of measured environments; check it (2 is free space)", n)
+			}
+			if d > 0 && d < d0 {
 				c.Warn("logdist: distance %s is shorter than the reference distance d0 = %s; the model is anchored at d0 and only extrapolates below it",
 					units.Lin(d, units.Length), units.Lin(d0, units.Length))
 			}

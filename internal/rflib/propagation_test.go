@@ -195,3 +195,28 @@ func TestPropagationErrors(t *testing.T) {
 		}
 	}
 }
+
+// Issue 8, finding 9: logdist with a reference distance that is not positive, or a negative
+// exponent, is an error; an exponent outside the measured range 1.6–6 (Rappaport, Table 4.2,
+// recalled from memory) is a warning, n = 0 included.
+func TestLogdistImpossible(t *testing.T) {
+	for _, c := range []struct{ formula, want string }{
+		{"logdist(1 km, 1 GHz, 0 m, 3)", "logdist: the reference distance d0 = 0 m must be positive"},
+		{"logdist(1 km, 1 GHz, -1 m, 3)", "logdist: the reference distance d0 = -1 m must be positive"},
+		{"logdist(1 km, 1 GHz, 1 m, -2)", "logdist: the path-loss exponent n = -2 is negative"},
+	} {
+		if got := evalErr(t, c.formula); !strings.Contains(got, c.want) {
+			t.Errorf("%s: error %q, want %q", c.formula, got, c.want)
+		}
+	}
+	for _, f := range []string{"logdist(1 km, 1 GHz, 1 m, 0)", "logdist(1 km, 1 GHz, 1 m, 1.5)", "logdist(1 km, 1 GHz, 1 m, 7)"} {
+		if ws := evalWarn(t, f); len(ws) != 1 || !strings.Contains(ws[0], "outside 1.6–6") {
+			t.Errorf("%s: warnings %q", f, ws)
+		}
+	}
+	for _, f := range []string{"logdist(1 km, 1 GHz, 1 m, 1.6)", "logdist(1 km, 1 GHz, 1 m, 6)"} {
+		if ws := evalWarn(t, f); len(ws) != 0 {
+			t.Errorf("%s: unexpected warnings %q", f, ws)
+		}
+	}
+}

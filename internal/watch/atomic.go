@@ -1,16 +1,24 @@
 package watch
 
 import (
+	"crypto/rand"
+	"encoding/hex"
 	"errors"
 	"os"
 	"path/filepath"
+	"runtime"
+	"strconv"
+	"strings"
+	"syscall"
+	"time"
 )
 
 // WriteAtomic writes data to path via a temp file in the same directory and a
 // rename, so readers see either the old content or the new content and never a
 // partially written file. An existing file keeps its permission bits; a new
-// file is created with mode 0644. On failure the temp file is removed and the
-// original file is left untouched.
+// file gets 0666 less the process's umask, as any file the user creates. On
+// failure the temp file is removed and the original file is left untouched.
+// Temp files of path left by a run that was killed are removed first.
 func WriteAtomic(path string, data []byte) (err error) {
 	dir, base := filepath.Split(path)
 	if dir == "" {
@@ -19,18 +27,21 @@ func WriteAtomic(path string, data []byte) (err error) {
 	if base == "" {
 		return &os.PathError{Op: "write", Path: path, Err: errors.New("no file name")}
 	}
-	mode := os.FileMode(0o644)
+	keep := os.FileMode(0)
 	if fi, statErr := os.Stat(path); statErr == nil {
 		if !fi.Mode().IsRegular() {
 			return &os.PathError{Op: "write", Path: path, Err: errors.New("not a regular file")}
 		}
-		mode = fi.Mode().Perm()
+		keep = fi.Mode().Perm()
 	}
-	f, err := os.CreateTemp(dir, "."+base+".tmp-*")
+	RemoveStale(dir, base)
+	var b [6]byte
+	rand.Read(b[:])
+	tmp := filepath.Join(dir, tempPrefix(base)+strconv.Itoa(os.Getpid())+"-"+hex.EncodeToString(b[:]))
+	f, err := os.OpenFile(tmp, os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o666) // the umask applies
 	if err != nil {
 		return err
 	}
-	tmp := f.Name()
 	defer func() {
 		if err != nil {
 			f.Close()
@@ -40,8 +51,10 @@ func WriteAtomic(path string, data []byte) (err error) {
 	if _, err = f.Write(data); err != nil {
 		return err
 	}
-	if err = f.Chmod(mode); err != nil {
-		return err
+	if keep != 0 {
+		if err = f.Chmod(keep); err != nil {
+			return err
+		}
 	}
 	if err = f.Sync(); err != nil {
 		return err
@@ -54,6 +67,52 @@ func WriteAtomic(path string, data []byte) (err error) {
 	}
 	syncDir(dir)
 	return nil
+}
+
+// tempPrefix is how WriteAtomic's temp files for base begin: ".base.tmp-PID-RANDOM".
+func tempPrefix(base string) string { return "." + base + ".tmp-" }
+
+// RemoveStale removes, in dir, the temp files WriteAtomic made for names starting with
+// prefix whose process is gone (a run killed between writing and renaming). Temp files of
+// running processes, this one included, are left alone; so is everything else.
+func RemoveStale(dir, prefix string) {
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		return
+	}
+	for _, e := range entries {
+		name := e.Name()
+		if !strings.HasPrefix(name, "."+prefix) || !e.Type().IsRegular() {
+			continue
+		}
+		i := strings.LastIndex(name, ".tmp-")
+		if i < 0 {
+			continue
+		}
+		pidText, _, ok := strings.Cut(name[i+len(".tmp-"):], "-")
+		pid, err := strconv.Atoi(pidText)
+		if !ok || err != nil || pid <= 0 || pid == os.Getpid() || alive(pid) {
+			continue
+		}
+		if fi, err := e.Info(); err != nil || time.Since(fi.ModTime()) < 0 {
+			continue
+		}
+		os.Remove(filepath.Join(dir, name))
+	}
+}
+
+// alive reports whether process pid is running (or cannot be probed: then it is kept).
+func alive(pid int) bool {
+	p, err := os.FindProcess(pid)
+	if err != nil {
+		return false
+	}
+	if runtime.GOOS == "windows" {
+		p.Release()
+		return true // FindProcess opens only a running process there
+	}
+	err = p.Signal(syscall.Signal(0))
+	return err == nil || errors.Is(err, syscall.EPERM)
 }
 
 // syncDir flushes the directory entry after a rename where the platform

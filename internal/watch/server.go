@@ -135,12 +135,12 @@ type server struct {
 	cancel context.CancelFunc
 }
 
-func newServer(ctx context.Context, st *state, title, outName string, errs io.Writer) *server {
+func newServer(ctx context.Context, st *state, title, outName string, errs io.Writer, hosts hostCheck) *server {
 	sctx, cancel := context.WithCancel(ctx)
 	if title == "" {
 		title = outName
 	}
-	h := &handler{st: st, title: title, done: sctx.Done()}
+	h := &handler{st: st, title: title, done: sctx.Done(), hosts: hosts}
 	return &server{
 		Server: &http.Server{
 			Handler:           h,
@@ -168,6 +168,31 @@ type handler struct {
 	st    *state
 	title string
 	done  <-chan struct{}
+	hosts hostCheck
+}
+
+// hostCheck says which Host headers the server answers. A page on another origin can point a
+// name it controls at 127.0.0.1 (DNS rebinding) and then read the budget as same-origin; the
+// browser still sends that name as Host, so only loopback names, IP addresses the server
+// listens on, and the host name given to --serve are answered.
+type hostCheck struct {
+	ip   net.IP // the address bound; unspecified (0.0.0.0, ::) accepts any IP literal
+	name string // the host name given in the serve address, "" when an IP or none was given
+}
+
+// allows reports whether a request's Host names this server.
+func (c hostCheck) allows(host string) bool {
+	if h, _, err := net.SplitHostPort(host); err == nil {
+		host = h
+	}
+	host = strings.TrimSuffix(strings.ToLower(strings.Trim(host, "[]")), ".")
+	if host == "" {
+		return false
+	}
+	if ip := net.ParseIP(host); ip != nil {
+		return ip.IsLoopback() || ip.Equal(c.ip) || c.ip != nil && c.ip.IsUnspecified()
+	}
+	return host == "localhost" || strings.HasSuffix(host, ".localhost") || c.name != "" && host == strings.ToLower(c.name)
 }
 
 // heartbeat keeps idle event streams alive through proxies and lets the
@@ -180,6 +205,10 @@ func (h *handler) ServeHTTP(w http.ResponseWriter, r *http.Request) {
 	hdr.Set("Referrer-Policy", "no-referrer")
 	hdr.Set("Cross-Origin-Resource-Policy", "same-origin")
 	hdr.Set("Content-Security-Policy", "default-src 'none'; base-uri 'none'; form-action 'none'; frame-ancestors 'none'")
+	if !h.hosts.allows(r.Host) {
+		http.Error(w, "misdirected request: this page answers only to its own address (loopback or the address it was started on)", http.StatusMisdirectedRequest)
+		return
+	}
 	if r.Method != http.MethodGet && r.Method != http.MethodHead {
 		hdr.Set("Allow", "GET, HEAD")
 		http.Error(w, "method not allowed", http.StatusMethodNotAllowed)

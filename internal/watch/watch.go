@@ -31,6 +31,7 @@ type Options struct {
 	Title    string                    // page title for the served page
 	Ready    func(addr string)         // called once the server listens (addr is the real address, useful with ":0"); may be nil
 	Extra    func(dir string) []string // optional: after each good render, files beside Out that should also be served (e.g. SVG charts linked from the Markdown); may be nil
+	Written  func()                    // optional: called after each good render's output is written (e.g. to remove charts the new output no longer links); may be nil
 }
 
 // DefaultDebounce is the debounce window used when Options.Debounce is zero or negative.
@@ -68,6 +69,7 @@ func Run(ctx context.Context, r Render, o Options) error {
 		status:   lockedWriter(o.Status),
 		errs:     lockedWriter(o.Errors),
 		extra:    o.Extra,
+		written:  o.Written,
 		files:    map[string]bool{},
 		st:       newState(),
 	}
@@ -107,7 +109,8 @@ func Run(ctx context.Context, r Render, o Options) error {
 	}
 
 	if ln != nil {
-		srv := newServer(ctx, l.st, o.Title, filepath.Base(out), l.errs)
+		hc := serveHosts(ln.Addr(), o.Serve)
+		srv := newServer(ctx, l.st, o.Title, filepath.Base(out), l.errs, hc)
 		var wg sync.WaitGroup
 		wg.Go(func() { srv.Serve(ln) })
 		defer func() {
@@ -116,6 +119,9 @@ func Run(ctx context.Context, r Render, o Options) error {
 		}()
 		addr := ln.Addr().String()
 		fmt.Fprintf(l.status, "%s serving http://%s/\n", stamp(), addr)
+		if !hc.ip.IsLoopback() {
+			fmt.Fprintf(l.status, "%s warning: %s is not a loopback address: anyone who can reach this machine on it can read the budget page\n", stamp(), addr)
+		}
 		if o.Ready != nil {
 			o.Ready(addr)
 		}
@@ -133,6 +139,7 @@ type loop struct {
 	status   io.Writer
 	errs     io.Writer
 	extra    func(dir string) []string
+	written  func()
 	fw       *fsnotify.Watcher
 	files    map[string]bool // cleaned absolute names that trigger a recalculation
 	stale    bool            // a followed file changed while the last render ran
@@ -202,7 +209,28 @@ func (l *loop) relevant(ev fsnotify.Event) bool {
 			name = abs
 		}
 	}
-	return l.files[filepath.Clean(name)]
+	name = filepath.Clean(name)
+	if l.files[name] {
+		return true
+	}
+	if l.onTheWay(name) {
+		// A folder holding followed files (or one above it) went or came back: watch what
+		// exists now, and recalculate, since its files may have changed with it.
+		l.syncDirs()
+		return true
+	}
+	return false
+}
+
+// onTheWay reports whether name is a folder that holds followed files or lies above one.
+func (l *loop) onTheWay(name string) bool {
+	for f := range l.files {
+		d := filepath.Dir(f)
+		if d == name || strings.HasPrefix(d, name+string(filepath.Separator)) {
+			return true
+		}
+	}
+	return false
 }
 
 // recalc runs one render, writes the output when it succeeded, reports the
@@ -234,6 +262,9 @@ func (l *loop) recalc() bool {
 		l.setFiles(files, true)
 		l.stale = l.changedSince(files, start)
 		return false
+	}
+	if l.written != nil {
+		l.written()
 	}
 	fmt.Fprintf(l.status, "%s rendered %s in %s\n", stamp(), name, fmtMillis(elapsed))
 	l.st.succeed(data, l.extras())
@@ -313,7 +344,20 @@ func (l *loop) setFiles(files []string, keep bool) {
 func (l *loop) syncDirs() {
 	want := map[string]bool{}
 	for f := range l.files {
-		want[filepath.Dir(f)] = true
+		// A folder that is gone cannot be watched; watch the nearest one above it that
+		// exists, so its return is seen (and the watch re-armed) without any other event.
+		d := filepath.Dir(f)
+		for {
+			if fi, err := os.Stat(d); err == nil && fi.IsDir() {
+				break
+			}
+			up := filepath.Dir(d)
+			if up == d {
+				break
+			}
+			d = up
+		}
+		want[d] = true
 	}
 	have := map[string]bool{}
 	for _, d := range l.fw.WatchList() {
@@ -410,6 +454,21 @@ func firstLine(s string) string {
 
 func fmtMillis(d time.Duration) string {
 	return fmt.Sprintf("%.1f ms", float64(d.Microseconds())/1000)
+}
+
+// serveHosts is the Host check for a server listening on addr, started with the serve
+// address given.
+func serveHosts(addr net.Addr, serve string) hostCheck {
+	var hc hostCheck
+	if ta, ok := addr.(*net.TCPAddr); ok {
+		hc.ip = ta.IP
+	}
+	if s, err := listenAddr(serve); err == nil {
+		if h, _, err := net.SplitHostPort(s); err == nil && net.ParseIP(h) == nil {
+			hc.name = h
+		}
+	}
+	return hc
 }
 
 // listenAddr turns the Serve option into a listen address. A bare port or

@@ -692,3 +692,146 @@ func TestServerShowsPreviousReport(t *testing.T) {
 		t.Fatalf("broken first render touched the output: %q", got)
 	}
 }
+
+// rawHost sends GET / with the Host header given.
+func rawHost(t *testing.T, addr, host string) int {
+	t.Helper()
+	c, err := net.DialTimeout("tcp", addr, 3*time.Second)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer c.Close()
+	c.SetDeadline(time.Now().Add(3 * time.Second))
+	fmt.Fprintf(c, "GET / HTTP/1.1\r\nHost: %s\r\nConnection: close\r\n\r\n", host)
+	resp, err := http.ReadResponse(bufio.NewReader(c), nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	resp.Body.Close()
+	return resp.StatusCode
+}
+
+// Issue 8, finding 6: a rebinding name pointed at 127.0.0.1 must not read the page; the
+// server answers only loopback names and the address it listens on (421 otherwise).
+func TestServerChecksHost(t *testing.T) {
+	s := startServed(t, tableMD)
+	_, port, _ := net.SplitHostPort(s.addr)
+	for host, want := range map[string]int{
+		s.addr:                     200,
+		"localhost:" + port:        200,
+		"LOCALHOST.:" + port:       200,
+		"app.localhost:" + port:    200,
+		"127.0.0.1":                200,
+		"[::1]:" + port:            200,
+		"evil.example:" + port:     http.StatusMisdirectedRequest,
+		"127.0.0.1.nip.io:" + port: http.StatusMisdirectedRequest,
+		"localhost.evil.example":   http.StatusMisdirectedRequest,
+		"192.168.1.20:" + port:     http.StatusMisdirectedRequest,
+	} {
+		if got := rawHost(t, s.addr, host); got != want {
+			t.Errorf("Host %s: %d, want %d", host, got, want)
+		}
+	}
+	for _, path := range []string{"/events", "/sweep.svg"} {
+		req, _ := http.NewRequest("GET", "http://"+s.addr+path, nil)
+		req.Host = "rebind.example"
+		resp, err := s.client.Do(req)
+		if err != nil {
+			t.Fatal(err)
+		}
+		resp.Body.Close()
+		if resp.StatusCode != http.StatusMisdirectedRequest {
+			t.Errorf("%s with a foreign Host: %d", path, resp.StatusCode)
+		}
+	}
+}
+
+// The rules for other binds: an unspecified address accepts any IP literal (the machine's
+// own addresses, whichever interface) but still no foreign name; a host name given to
+// --serve is accepted.
+func TestHostCheckRules(t *testing.T) {
+	any := serveHosts(&net.TCPAddr{IP: net.IPv4zero, Port: 80}, "0.0.0.0:80")
+	named := serveHosts(&net.TCPAddr{IP: net.ParseIP("192.168.1.5"), Port: 80}, "barn-pc.lan:80")
+	for _, c := range []struct {
+		hc   hostCheck
+		host string
+		want bool
+	}{
+		{any, "192.168.1.5:80", true},
+		{any, "[fe80::1]:80", true},
+		{any, "evil.example:80", false},
+		{named, "barn-pc.lan:80", true},
+		{named, "BARN-PC.LAN", true},
+		{named, "192.168.1.5", true},
+		{named, "192.168.1.6", false},
+		{named, "evil.example", false},
+		{named, "", false},
+	} {
+		if got := c.hc.allows(c.host); got != c.want {
+			t.Errorf("%+v allows %q = %v", c.hc, c.host, got)
+		}
+	}
+}
+
+// Binding a non-loopback address prints a warning line; loopback does not.
+func TestServeWarnsOffLoopback(t *testing.T) {
+	for _, c := range []struct {
+		serve string
+		warn  bool
+	}{{"127.0.0.1:0", false}, {"0.0.0.0:0", true}} {
+		f := newFixture(t, "# x")
+		status := f.status
+		o := f.opts()
+		o.Serve = c.serve
+		_ = o
+		ready := make(chan string, 1)
+		o.Ready = func(a string) { ready <- a }
+		stop := start(t, f.sh.render, o)
+		select {
+		case <-ready:
+		case <-time.After(3 * time.Second):
+			t.Fatal("Ready was not called")
+		}
+		stop()
+		if got := strings.Contains(status.String(), "warning: ") && strings.Contains(status.String(), "not a loopback address"); got != c.warn {
+			t.Errorf("%s: warning printed %v, want %v:\n%s", c.serve, got, c.warn, status.String())
+		}
+	}
+}
+
+// Issue 8, finding 8: the sheet's folder or a parts folder is deleted and made again; the
+// watch follows the new folder, and the saves after it are rendered.
+func TestRunFollowsRecreatedFolder(t *testing.T) {
+	for _, which := range []string{"sheet", "parts"} {
+		t.Run(which, func(t *testing.T) {
+			f := newFixture(t, "use lna.txt\nfirst")
+			part := filepath.Join(f.parts, "lna.txt")
+			writeFile(t, part, "gain 15")
+			start(t, f.sh.render, f.opts())
+			f.waitOut(t, "gain 15\nfirst\n")
+			dir := f.dir
+			if which == "parts" {
+				dir = f.parts
+			}
+			if err := os.RemoveAll(dir); err != nil {
+				t.Fatal(err)
+			}
+			eventually(t, "the error for the missing folder", func() bool { return strings.Contains(f.status.String(), " error: ") })
+			time.Sleep(100 * time.Millisecond) // let the watch settle on the folder above
+			if err := os.Mkdir(dir, 0o755); err != nil {
+				t.Fatal(err)
+			}
+			if which == "parts" {
+				writeFile(t, part, "gain 20")
+				f.waitOut(t, "gain 20\nfirst\n")
+				saveByRename(t, part, "gain 21")
+				f.waitOut(t, "gain 21\nfirst\n")
+			} else {
+				writeFile(t, f.main, "use lna.txt\nsecond")
+				f.waitOut(t, "gain 15\nsecond\n")
+				saveByRename(t, f.main, "use lna.txt\nthird")
+				f.waitOut(t, "gain 15\nthird\n")
+			}
+		})
+	}
+}
