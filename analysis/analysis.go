@@ -30,6 +30,9 @@ type Options struct {
 	Seed     uint64 // Monte Carlo seed; the same seed gives the same report
 	Workers  int    // goroutines for the trials; 0 means GOMAXPROCS. Results do not depend on it.
 	Progress func(what string, done, total int)
+	// SkipMonteCarlo leaves the trials out (Tolerance.Trials is then 0): the worst case and
+	// RSS come at once, for a page that is completed later.
+	SkipMonteCarlo bool
 }
 
 // Analysis is what the analyses found about the focus quantity, and the sweeps and solves.
@@ -293,6 +296,10 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 	t.WorstLow, _ = fa.at(qs, lowCorner, union)
 	t.WorstHigh, _ = fa.at(qs, highCorner, union)
 	t.RSSSigma = math.Sqrt(rss)
+	if opt.SkipMonteCarlo {
+		t.Trials = 0
+		return t
+	}
 
 	// Monte Carlo: every trial draws every toleranced input, recomputes the cone of all of
 	// them, and records the focus and whether all requirements hold. Each worker has its own

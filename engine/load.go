@@ -34,6 +34,7 @@ var (
 // loader builds a Sheet from a worksheet file and its parts.
 type loader struct {
 	sh    *Sheet
+	prev  *Sheet // an earlier load of the same worksheet, or nil
 	fsys  fs.FS
 	diags Diagnostics
 	hash  []byte
@@ -62,6 +63,8 @@ type sheetFile struct {
 	ix     *posIndex
 	prefix string // part prefix, "" for the worksheet
 	src    string
+	doc    map[string]any // the decoded text (shared with later loads, never changed)
+	lines  lineKeys       // the keys on each line, found on first use
 }
 
 // rangeOf returns where the key at an index path (see keyJoin) is written, or its nearest
@@ -125,9 +128,30 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 		l.diags = append(l.diags, *d)
 		return
 	}
-	f := &sheetFile{name: display, fsPath: fsPath, ix: indexTOML(src), prefix: prefix, src: src}
-	var doc map[string]any
-	if _, err := toml.Decode(src, &doc); err != nil {
+	// A file as the earlier load read it is taken as it was decoded and indexed; a file whose
+	// edit only changed values is patched (patchDoc); any other is decoded in full, beside
+	// the position index.
+	prevFile := l.sh.prevFile(l.prev, fsPath, prefix)
+	if prevFile != nil && prevFile.src == src {
+		f := &sheetFile{name: display, fsPath: fsPath, ix: prevFile.ix, prefix: prefix, src: src, doc: prevFile.doc}
+		l.sh.files = append(l.sh.files, f)
+		l.document(f, f.doc)
+		return
+	}
+	ixc := make(chan *posIndex, 1)
+	go func() { ixc <- indexTOML(src) }()
+	doc, patched := patchDoc(prevFile, src)
+	if patched {
+		l.sh.npatched++
+	} else {
+		doc = nil
+		_, err = toml.Decode(src, &doc)
+	}
+	f := &sheetFile{name: display, fsPath: fsPath, ix: <-ixc, prefix: prefix, src: src, doc: doc}
+	if err == nil {
+		l.sh.files = append(l.sh.files, f)
+	}
+	if err != nil {
 		var pe toml.ParseError
 		r := Range{File: display}
 		msg := err.Error()
@@ -842,4 +866,17 @@ func looksLikeQuantity(text string) bool {
 	}
 	_, _, err := units.Parse(text)
 	return err == nil
+}
+
+// prevFile returns the earlier load's file of the same path and part prefix, or nil.
+func (s *Sheet) prevFile(prev *Sheet, fsPath, prefix string) *sheetFile {
+	if prev == nil {
+		return nil
+	}
+	for _, f := range prev.files {
+		if f.fsPath == fsPath && f.prefix == prefix {
+			return f
+		}
+	}
+	return nil
 }

@@ -26,15 +26,17 @@ type Sheet struct {
 
 	FreqPlans FreqPlans // [[spurs]] and [[products]] blocks (freqplan.go)
 
-	nodes   []*node
-	byName  map[string]int
-	order   []int // evaluation order of nodes (topological)
-	pos     []int // each node's place in order (-1 when it is not evaluated)
-	lib     *Library
-	diags   Diagnostics
-	nchains int
-	graph   graphCache
-	nparsed int // formulas parsed by Load (the others were reused from Options.Previous)
+	nodes    []*node
+	files    []*sheetFile // the files read, in load order
+	byName   map[string]int
+	order    []int // evaluation order of nodes (topological)
+	pos      []int // each node's place in order (-1 when it is not evaluated)
+	lib      *Library
+	diags    Diagnostics
+	nchains  int
+	graph    graphCache
+	nparsed  int // formulas parsed by Load (the others were reused from Options.Previous)
+	npatched int // files whose edit was patched into the earlier load's decoded text
 }
 
 // Group is a TOML table of the worksheet: quantities and chains under one dotted name.

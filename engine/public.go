@@ -41,7 +41,7 @@ func Load(path string, opt Options) (*Sheet, Diagnostics) {
 	}
 	fsPath = filepath.ToSlash(fsPath)
 	sh := &Sheet{File: path, byName: map[string]int{}, lib: opt.Library}
-	l := &loader{sh: sh, fsys: fsys}
+	l := &loader{sh: sh, fsys: fsys, prev: opt.Previous}
 	l.load(fsPath, path, "", Range{File: path})
 	sh.Hash = hashHex(l.hash)
 	l.compile(opt.Previous)

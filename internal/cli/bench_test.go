@@ -3,12 +3,16 @@ package cli
 import (
 	"flag"
 	"fmt"
+	"io"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 	"testing/fstest"
 
 	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/internal/gen"
+	"github.com/rfledger/rfledger/internal/rflib"
 )
 
 // renderOnce does what `rfledger render` does short of writing files, for a worksheet text:
@@ -56,4 +60,45 @@ func BenchmarkRender(b *testing.B) {
 func benchNamed() bool {
 	f := flag.Lookup("test.bench")
 	return f != nil && strings.Contains(f.Value.String(), "Render/")
+}
+
+// BenchmarkWatchEdit is what watch does after a save of the generated 10,000-quantity sheet
+// (internal/gen): reload reusing the previous load, evaluate what changed, the quick analyses
+// and the page with its charts (the Monte Carlo completion comes after, in the background).
+// Each op alternates between two versions of the sheet that differ in one input (input) or
+// one formula (formula). The debounce (30 ms) comes on top of this.
+func BenchmarkWatchEdit(b *testing.B) {
+	src, err := gen.Budget(10_000, 1)
+	if err != nil {
+		b.Fatal(err)
+	}
+	for _, c := range []struct{ name, from, to string }{
+		{"input", `conn02 = "0.2 dB"`, `conn02 = "0.3 dB"`},
+		{"formula", `gw_cable = "= 0.22 dB/m * gw_length"`, `gw_cable = "= 0.23 dB/m * gw_length"`},
+	} {
+		b.Run(c.name, func(b *testing.B) {
+			edited := strings.Replace(string(src), c.from, c.to, 1)
+			if edited == string(src) {
+				b.Fatalf("the generated sheet has no %q", c.from)
+			}
+			dir := b.TempDir()
+			sheet := filepath.Join(dir, "s.toml")
+			lw := &liveSheet{e: &Env{Stdout: io.Discard, Stderr: io.Discard}, sheet: sheet, out: filepath.Join(dir, "s.md"), lib: rflib.Library(), ao: analysis.Options{Seed: 1}}
+			versions := [][]byte{src, []byte(edited)}
+			render := func(i int) {
+				if err := os.WriteFile(sheet, versions[i%2], 0o644); err != nil {
+					b.Fatal(err)
+				}
+				if _, _, err := lw.render(); err != nil {
+					b.Fatal(err)
+				}
+			}
+			render(0)
+			i := 1
+			for b.Loop() {
+				render(i)
+				i++
+			}
+		})
+	}
 }

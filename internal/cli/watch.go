@@ -8,6 +8,7 @@ import (
 	"os/signal"
 	"path/filepath"
 	"strings"
+	"sync"
 
 	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/engine"
@@ -34,49 +35,129 @@ func cmdWatch(e *Env, args []string) int {
 	}
 	sheet := pos[0]
 	// The parts are known once the sheet is loaded; a part named as -o is refused here too.
-	first, _ := engine.Load(sheet, engine.Options{Library: rflib.Library()})
+	lib := rflib.Library()
+	first, _ := engine.Load(sheet, engine.Options{Library: lib})
 	if err := checkOut(*out, inputFiles(sheet, first.Parts)); err != nil {
 		return usageErr(e, "watch", "%v", err)
 	}
-	var charts []string
-	var written []report.File
-	render := func() ([]byte, []string, error) {
-		ev := evaluate(sheet, over, nil, &analysis.Options{Trials: *trials, Seed: *seed})
-		files := inputFiles(sheet, ev.sheet.Parts)
-		if !ev.ok() {
-			return nil, files, errors.New(strings.TrimSuffix(formatDiags(ev.diags, nil), "\n"))
-		}
-		if err := checkOut(*out, files); err != nil {
-			return nil, files, err
-		}
-		for _, d := range ev.diags {
-			fmt.Fprintln(e.Stderr, d.String())
-		}
-		printDiags(e, ev.diags)
-		page, extra := output(ev, false, *out)
-		if err := writeCharts(*out, extra, files); err != nil {
-			return nil, files, err
-		}
-		charts, written = charts[:0], extra
-		for _, f := range extra {
-			charts = append(charts, f.Name)
-		}
-		return page, files, nil
-	}
+	lw := &liveSheet{e: e, sheet: sheet, out: *out, over: over, lib: lib, ao: analysis.Options{Trials: *trials, Seed: *seed}}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
-	err = watch.Run(ctx, render, watch.Options{
+	err = watch.Run(ctx, lw.render, watch.Options{
 		Out: *out, Status: e.Stderr, Errors: e.Stderr, Serve: *serve, Title: strings.TrimSuffix(filepath.Base(sheet), ".toml"),
-		Extra: func(string) []string { return append([]string(nil), charts...) },
-		Written: func() {
-			if err := removeOldCharts(*out, written); err != nil {
-				fmt.Fprintf(e.Stderr, "rfledger watch: %v\n", err)
-			}
-		},
+		Extra:   lw.extra,
+		Written: lw.written,
+		Refine:  lw.refine,
 	})
 	if err != nil {
 		fmt.Fprintf(e.Stderr, "rfledger watch: %v\n", err)
 		return ExitBadSheet
 	}
 	return ExitOK
+}
+
+// liveSheet is what watch renders. Each save reloads the sheet reusing the previous load's
+// parsed formulas and evaluates only what the edit changed (engine.Options.Previous,
+// Sheet.EvalFrom); the page is written first without the Monte Carlo trials, then completed
+// by refine in the background.
+type liveSheet struct {
+	e     *Env
+	sheet string
+	out   string
+	over  []engine.Override
+	lib   *engine.Library
+	ao    analysis.Options
+
+	prevSh *engine.Sheet // used by render only (one goroutine)
+	prevR  *engine.Result
+
+	mu     sync.Mutex
+	charts []report.File // the charts of the page on disk
+	last   *evaluated    // the latest good evaluation, which refine completes
+}
+
+// render loads and evaluates the sheet and writes the quick page's charts.
+func (lw *liveSheet) render() ([]byte, []string, error) {
+	lw.mu.Lock()
+	lw.last = nil
+	lw.mu.Unlock()
+	sh, diags := engine.Load(lw.sheet, engine.Options{Library: lw.lib, Previous: lw.prevSh})
+	r, ediags := sh.EvalFrom(lw.prevR, lw.over...)
+	diags = append(diags, ediags...)
+	files := inputFiles(lw.sheet, sh.Parts)
+	if diags.HasErrors() {
+		return nil, files, errors.New(strings.TrimSuffix(formatDiags(engine.SortDiagnostics(diags), nil), "\n"))
+	}
+	lw.prevSh, lw.prevR = sh, r
+	quick := lw.ao
+	quick.SkipMonteCarlo = true
+	a, ds := analysis.Analyze(r, quick)
+	ev := &evaluated{sheet: sh, result: r, analysis: a, diags: engine.SortDiagnostics(append(diags, ds...))}
+	if err := checkOut(lw.out, files); err != nil {
+		return nil, files, err
+	}
+	printDiags(lw.e, ev.diags)
+	lw.mu.Lock()
+	lw.last = ev
+	lw.mu.Unlock()
+	page, ok := lw.page(ev, files)
+	if !ok {
+		return nil, files, errors.New("writing the charts failed")
+	}
+	return page, files, nil
+}
+
+// refine completes the latest page with the Monte Carlo trials.
+func (lw *liveSheet) refine() ([]byte, bool) {
+	lw.mu.Lock()
+	ev := lw.last
+	lw.mu.Unlock()
+	if ev == nil || ev.analysis == nil || ev.analysis.Tolerance == nil {
+		return nil, false // nothing was left out
+	}
+	a, ds := analysis.Analyze(ev.result, lw.ao)
+	full := &evaluated{sheet: ev.sheet, result: ev.result, analysis: a, diags: engine.SortDiagnostics(append(ev.diags, ds...))}
+	return lw.pageOf(ev, full)
+}
+
+// page renders ev and writes its charts.
+func (lw *liveSheet) page(ev *evaluated, files []string) ([]byte, bool) { return lw.pageOf(ev, ev) }
+
+// pageOf renders shown (ev or its completion) and writes its charts; they become the served
+// ones only while ev is still the latest evaluation (a completion that a newer save
+// overtook must not replace them).
+func (lw *liveSheet) pageOf(ev, shown *evaluated) ([]byte, bool) {
+	page, charts := output(shown, false, lw.out)
+	if err := writeCharts(lw.out, charts, inputFiles(lw.sheet, ev.sheet.Parts)); err != nil {
+		fmt.Fprintf(lw.e.Stderr, "rfledger watch: %v\n", err)
+		return nil, false
+	}
+	lw.mu.Lock()
+	defer lw.mu.Unlock()
+	if lw.last != ev {
+		return nil, false
+	}
+	lw.charts = charts
+	return page, true
+}
+
+// extra lists the charts to serve beside the page.
+func (lw *liveSheet) extra(string) []string {
+	lw.mu.Lock()
+	defer lw.mu.Unlock()
+	var names []string
+	for _, f := range lw.charts {
+		names = append(names, f.Name)
+	}
+	return names
+}
+
+// written removes the charts the page on disk no longer links.
+func (lw *liveSheet) written() {
+	lw.mu.Lock()
+	charts := lw.charts
+	lw.mu.Unlock()
+	if err := removeOldCharts(lw.out, charts); err != nil {
+		fmt.Fprintf(lw.e.Stderr, "rfledger watch: %v\n", err)
+	}
 }

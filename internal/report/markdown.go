@@ -396,6 +396,10 @@ func (p *page) tolerance() {
 	p.f("| worst case low (every input at the limit that lowers it) | %s |\n", fmtNum(t.WorstLow, u))
 	p.f("| worst case high (every input at the limit that raises it) | %s |\n", fmtNum(t.WorstHigh, u))
 	p.f("| root-sum-square σ | %s |\n", fmtNum(t.RSSSigma, a.ChangeUnit))
+	if t.Trials == 0 {
+		p.f("\nMonte Carlo: being computed; the page is completed when the trials are done.\n\n")
+		return
+	}
 	p.f("| Monte Carlo 1 %% point | %s |\n", fmtNum(t.P01, u))
 	p.f("| Monte Carlo median | %s |\n", fmtNum(t.P50, u))
 	p.f("| Monte Carlo 99 %% point | %s |\n", fmtNum(t.P99, u))

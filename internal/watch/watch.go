@@ -24,7 +24,7 @@ type Render func() (out []byte, files []string, err error)
 // Options configures Run.
 type Options struct {
 	Out      string                    // output file; written atomically (temp file in the same dir + rename), never half-written
-	Debounce time.Duration             // bursts of events within this window give one recalculation (default 150ms)
+	Debounce time.Duration             // bursts of events within this window give one recalculation (default 30ms)
 	Status   io.Writer                 // one line per recalculation, e.g. "12:04:05 rendered field.md in 3.1 ms" or "12:04:05 error: <first line>…" (the error text itself goes to Errors); nil discards
 	Errors   io.Writer                 // full error text when a render fails; nil discards
 	Serve    string                    // "" = no server; else an address like "127.0.0.1:8080" or ":0"; a bare port or ":port" binds 127.0.0.1 only, never all interfaces unless the host is given explicitly
@@ -32,10 +32,16 @@ type Options struct {
 	Ready    func(addr string)         // called once the server listens (addr is the real address, useful with ":0"); may be nil
 	Extra    func(dir string) []string // optional: after each good render, files beside Out that should also be served (e.g. SVG charts linked from the Markdown); may be nil
 	Written  func()                    // optional: called after each good render's output is written (e.g. to remove charts the new output no longer links); may be nil
+	// Refine, when set, is called in the background after each good render and returns the
+	// output again with the slow parts filled in (the Monte Carlo spread): the page appears
+	// at once and is completed when they are done. Its output replaces the render's unless a
+	// newer recalculation has started meanwhile; ok false leaves the render's output.
+	Refine func() (out []byte, ok bool)
 }
 
 // DefaultDebounce is the debounce window used when Options.Debounce is zero or negative.
-const DefaultDebounce = 150 * time.Millisecond
+// Editors write a save within a few milliseconds; 30 ms gathers the events of one save.
+const DefaultDebounce = 30 * time.Millisecond
 
 // maxDelayFactor bounds how long a continuous stream of events can postpone a
 // recalculation: at most this many debounce windows after the first event.
@@ -70,8 +76,11 @@ func Run(ctx context.Context, r Render, o Options) error {
 		errs:     lockedWriter(o.Errors),
 		extra:    o.Extra,
 		written:  o.Written,
+		refine:   o.Refine,
+		refined:  make(chan refinement, 1),
 		files:    map[string]bool{},
 		st:       newState(),
+		done:     ctx.Done(),
 	}
 
 	fw, err := fsnotify.NewWatcher()
@@ -140,6 +149,10 @@ type loop struct {
 	errs     io.Writer
 	extra    func(dir string) []string
 	written  func()
+	refine   func() ([]byte, bool)
+	refined  chan refinement // finished refinements, from their goroutines
+	gen      int             // recalculations started so far
+	done     <-chan struct{} // closed when Run returns
 	fw       *fsnotify.Watcher
 	files    map[string]bool // cleaned absolute names that trigger a recalculation
 	stale    bool            // a followed file changed while the last render ran
@@ -189,6 +202,8 @@ func (l *loop) run(ctx context.Context) error {
 		case <-timer.C:
 			first = time.Time{}
 			l.recalc()
+		case rf := <-l.refined:
+			l.finish(rf)
 		}
 		if ctx.Err() != nil {
 			return nil
@@ -237,6 +252,7 @@ func (l *loop) onTheWay(name string) bool {
 // outcome and updates the watched file set. It reports whether the output
 // was written.
 func (l *loop) recalc() bool {
+	l.gen++
 	start := time.Now()
 	data, files, err := l.callRender()
 	elapsed := time.Since(start)
@@ -269,7 +285,52 @@ func (l *loop) recalc() bool {
 	fmt.Fprintf(l.status, "%s rendered %s in %s\n", stamp(), name, fmtMillis(elapsed))
 	l.st.succeed(data, l.extras())
 	l.stale = l.changedSince(files, start)
+	if l.refine != nil {
+		gen, refine, out, done := l.gen, l.refine, l.refined, l.done
+		go func() {
+			data, ok := callRefine(refine)
+			select {
+			case out <- refinement{gen: gen, data: data, ok: ok, start: start}:
+			case <-done:
+			}
+		}()
+	}
 	return true
+}
+
+// refinement is a finished Refine call.
+type refinement struct {
+	gen   int
+	data  []byte
+	ok    bool
+	start time.Time
+}
+
+// finish writes a refined output, unless a newer recalculation has started since its render.
+func (l *loop) finish(rf refinement) {
+	if !rf.ok || rf.gen != l.gen {
+		return
+	}
+	name := filepath.Base(l.out)
+	if err := WriteAtomic(l.out, rf.data); err != nil {
+		fmt.Fprintf(l.status, "%s error: writing %s: %v\n", stamp(), name, err)
+		return
+	}
+	if l.written != nil {
+		l.written()
+	}
+	fmt.Fprintf(l.status, "%s completed %s in %s\n", stamp(), name, fmtMillis(time.Since(rf.start)))
+	l.st.succeed(rf.data, l.extras())
+}
+
+// callRefine calls Refine, turning a panic into no refinement.
+func callRefine(refine func() ([]byte, bool)) (data []byte, ok bool) {
+	defer func() {
+		if p := recover(); p != nil {
+			data, ok = nil, false
+		}
+	}()
+	return refine()
 }
 
 // changedSince reports whether any file was modified at or after t. A save that lands while

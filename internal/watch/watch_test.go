@@ -835,3 +835,39 @@ func TestRunFollowsRecreatedFolder(t *testing.T) {
 		})
 	}
 }
+
+// TestRunRefinesInTheBackground: the render's output appears first and Refine's replaces it
+// when it is done; a refinement that a newer save overtook is dropped, so the page on disk
+// is never older than the sheet.
+func TestRunRefinesInTheBackground(t *testing.T) {
+	f := newFixture(t, "alpha")
+	release := make(chan struct{})
+	var calls atomic.Int64
+	o := f.opts()
+	o.Refine = func() ([]byte, bool) {
+		n := calls.Add(1)
+		data, err := os.ReadFile(f.main)
+		if err != nil {
+			return nil, false
+		}
+		if n == 2 {
+			<-release // the second refinement is slow: a newer save overtakes it
+		}
+		return []byte(string(data) + " refined\n"), true
+	}
+	start(t, f.sh.render, o)
+	f.waitOut(t, "alpha refined\n")
+
+	saveByRename(t, f.main, "beta")
+	f.waitOut(t, "beta\n") // the render's output, while its refinement waits
+	saveByRename(t, f.main, "gamma")
+	f.waitOut(t, "gamma refined\n")
+	close(release) // the overtaken refinement of "beta" now finishes, and must be dropped
+	time.Sleep(200 * time.Millisecond)
+	if got := readString(t, f.out); got != "gamma refined\n" {
+		t.Fatalf("after the stale refinement finished the page is %q", got)
+	}
+	if !regexp.MustCompile(`(?m)^\d\d:\d\d:\d\d completed field\.md in \d+\.\d ms$`).MatchString(f.status.String()) {
+		t.Errorf("status lines lack a completion line:\n%s", f.status.String())
+	}
+}

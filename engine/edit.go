@@ -1,0 +1,241 @@
+package engine
+
+import (
+	"reflect"
+	"strconv"
+	"strings"
+	"sync"
+
+	"github.com/BurntSushi/toml"
+)
+
+// A reload after an edit (watch, an editor) usually changes a value or two on lines that keep
+// their keys. Decoding the whole TOML text again is then the largest single cost of loading
+// a big sheet; patchDoc takes such an edit from the earlier load's decoded document instead,
+// and decodes only the values that changed. Everything after decoding (positions, the model,
+// the checks) runs as on any load, so the sheet is the one a full load gives.
+
+// maxPatchedLines is the number of changed lines an edit may have to be patched in.
+const maxPatchedLines = 16
+
+// lineKeys lists, for each line of a file, the index paths of the keys written on it.
+type lineKeys struct {
+	once  sync.Once
+	paths map[int][]string
+}
+
+func (f *sheetFile) keysOnLine(line int) []string {
+	f.lines.once.Do(func() {
+		m := map[int][]string{}
+		for path, i := range f.ix.pos {
+			kp := f.ix.kps.at(i)
+			m[kp.Key.Line] = append(m[kp.Key.Line], path)
+		}
+		f.lines.paths = m
+	})
+	return f.lines.paths[line]
+}
+
+// patchDoc returns the decoded document of src, made from old's when src differs from old's
+// text only in the values of keys that keep their place (or in comments and blank lines);
+// ok is false when the edit is of another kind, and src must be decoded in full.
+func patchDoc(old *sheetFile, src string) (doc map[string]any, ok bool) {
+	if old == nil || old.doc == nil {
+		return nil, false
+	}
+	was, now := strings.Split(old.src, "\n"), strings.Split(src, "\n")
+	if len(was) != len(now) {
+		return nil, false
+	}
+	var changed []int
+	for i := range was {
+		if was[i] != now[i] {
+			if changed = append(changed, i); len(changed) > maxPatchedLines {
+				return nil, false
+			}
+		}
+	}
+	doc = old.doc
+	copied := map[any]bool{} // maps and slices of doc already copied for this edit
+	for _, i := range changed {
+		if blankOrComment(was[i]) && blankOrComment(now[i]) {
+			continue
+		}
+		path, valAt, ok := old.valueOnLine(i+1, was[i])
+		if !ok || len(now[i]) < valAt || now[i][:valAt] != was[i][:valAt] {
+			return nil, false
+		}
+		var m map[string]any
+		if _, err := toml.Decode("v = "+now[i][valAt:], &m); err != nil {
+			return nil, false // a broken value: a full decode reports it where it stands
+		}
+		v, isValue := m["v"]
+		if _, table := v.([]map[string]any); !isValue || table {
+			return nil, false
+		}
+		if doc, ok = setPath(doc, splitPath(path), v, copied); !ok {
+			return nil, false
+		}
+	}
+	return doc, true
+}
+
+func blankOrComment(line string) bool {
+	t := strings.TrimSpace(line)
+	return t == "" || strings.HasPrefix(t, "#")
+}
+
+// valueOnLine finds the one key whose whole value is written on the given line, and returns
+// its index path and the byte offset of its value in the line.
+func (f *sheetFile) valueOnLine(line int, text string) (path string, at int, ok bool) {
+	paths := f.keysOnLine(line)
+	if len(paths) == 0 {
+		return "", 0, false
+	}
+	top, best := "", -1
+	for _, p := range paths {
+		kp, _ := f.ix.get(p)
+		if best < 0 || kp.Key.Col < best {
+			top, best = p, kp.Key.Col
+		}
+	}
+	for _, p := range paths {
+		if p != top && !strings.HasPrefix(p, top+".") {
+			return "", 0, false // two keys on one line
+		}
+	}
+	kp, _ := f.ix.get(top)
+	if kp.Val.Line != line || kp.ValEnd.Line != line || kp.Val.Col < 1 {
+		return "", 0, false // a table header, or a value over several lines
+	}
+	at = runeOffset(text, kp.Val.Col-1)
+	return top, at, at >= 0
+}
+
+// runeOffset returns the byte offset of rune n of s, or -1 past its end.
+func runeOffset(s string, n int) int {
+	for i := range s {
+		if n == 0 {
+			return i
+		}
+		n--
+	}
+	if n == 0 {
+		return len(s)
+	}
+	return -1
+}
+
+// splitPath splits an index path into its keys, "[n]" marking an array element.
+func splitPath(path string) []string {
+	var out []string
+	var b strings.Builder
+	flush := func() {
+		if b.Len() > 0 {
+			out = append(out, b.String())
+			b.Reset()
+		}
+	}
+	for i := 0; i < len(path); i++ {
+		switch c := path[i]; c {
+		case '\\':
+			if i+1 < len(path) {
+				i++
+				b.WriteByte(path[i])
+			}
+		case '.':
+			flush()
+		case '[':
+			flush()
+			j := strings.IndexByte(path[i:], ']')
+			if j < 0 {
+				return nil
+			}
+			out = append(out, path[i:i+j+1])
+			i += j
+		default:
+			b.WriteByte(c)
+		}
+	}
+	flush()
+	if len(out) == 1 && out[0] == `""` {
+		out[0] = ""
+	}
+	return out
+}
+
+// setPath returns doc with the value at keys replaced by v, copying the maps and slices on
+// the way (the earlier load's document is shared, never changed). ok is false when the path
+// does not lead to a value.
+func setPath(doc map[string]any, keys []string, v any, copied map[any]bool) (map[string]any, bool) {
+	if len(keys) == 0 {
+		return nil, false
+	}
+	var set func(node any, keys []string) (any, bool)
+	set = func(node any, keys []string) (any, bool) {
+		if len(keys) == 0 {
+			return v, true
+		}
+		k := keys[0]
+		if strings.HasPrefix(k, "[") {
+			n, err := strconv.Atoi(strings.Trim(k, "[]"))
+			switch s := node.(type) {
+			case []map[string]any:
+				if err != nil || n < 0 || n >= len(s) {
+					return nil, false
+				}
+				child, ok := set(s[n], keys[1:])
+				cm, isMap := child.(map[string]any)
+				if !ok || !isMap {
+					return nil, false
+				}
+				c := append([]map[string]any(nil), s...)
+				c[n] = cm
+				return c, true
+			case []any:
+				if err != nil || n < 0 || n >= len(s) {
+					return nil, false
+				}
+				child, ok := set(s[n], keys[1:])
+				if !ok {
+					return nil, false
+				}
+				c := append([]any(nil), s...)
+				c[n] = child
+				return c, true
+			}
+			return nil, false
+		}
+		m, isMap := node.(map[string]any)
+		if !isMap {
+			return nil, false
+		}
+		old, exists := m[k]
+		if !exists {
+			return nil, false
+		}
+		child, ok := set(old, keys[1:])
+		if !ok {
+			return nil, false
+		}
+		c := m
+		if !copied[mapID(m)] {
+			c = make(map[string]any, len(m))
+			for key, val := range m {
+				c[key] = val
+			}
+			copied[mapID(c)] = true
+		}
+		c[k] = child
+		return c, true
+	}
+	out, ok := set(doc, keys)
+	if !ok {
+		return nil, false
+	}
+	m, isMap := out.(map[string]any)
+	return m, isMap
+}
+
+// mapID identifies a map, to copy each map of the document once per edit.
+func mapID(m map[string]any) any { return reflect.ValueOf(m).UnsafePointer() }
