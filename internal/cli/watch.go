@@ -18,6 +18,7 @@ func cmdWatch(e *Env, args []string) int {
 	out := fs.String("o", "", "write the page to `FILE` (required)")
 	serve := fs.String("serve", "", "also serve the page with live refresh on `ADDR` (e.g. :8080, loopback only unless a host is given)")
 	trials, seed, set := analysisFlags(fs)
+	sel := caseFlags(fs, true)
 	pos, err := parse(fs, args)
 	if err != nil {
 		return flagErr(e, fs, err)
@@ -33,7 +34,10 @@ func cmdWatch(e *Env, args []string) int {
 	dir := filepath.Dir(sheet)
 	var charts []string
 	render := func() ([]byte, []string, error) {
-		ev := evaluate(sheet, over, nil, &analysis.Options{Trials: *trials, Seed: *seed})
+		ev := evaluateCases(sheet, over, nil, &analysis.Options{Trials: *trials, Seed: *seed}, *sel)
+		if ev.caseErr != nil {
+			return nil, []string{sheet}, ev.caseErr
+		}
 		files := []string{sheet}
 		for _, p := range ev.sheet.Parts {
 			files = append(files, filepath.Join(dir, filepath.FromSlash(p)))
