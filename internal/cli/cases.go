@@ -129,3 +129,88 @@ func (ev *evaluated) evalCases(cases []*engine.Case, set []engine.Override, sel 
 	ev.analysis = ev.cases[0].Analysis
 	return diags
 }
+
+// diffCase is what changed in one case between two worksheets.
+type diffCase struct {
+	Name         string     `json:"name"`
+	Status       string     `json:"status"` // added, removed, changed or same
+	Focus        *diffFocus `json:"focus,omitempty"`
+	Requirements []diffReq  `json:"requirements"`
+	Quantities   []diffQ    `json:"quantities"`
+	Flipped      []string   `json:"flipped"`
+}
+
+// diffCases compares two worksheets case by case, matched by name: each case of the new
+// sheet (added when the old has none of its name), then the cases the new one dropped. A
+// requirement that passed in a case and fails there now counts in reg, as --exit-code reads it.
+// Sheets without cases give nothing (the nominal comparison above says it all).
+func diffCases(a, b *evaluated, tol units.Q, reg *regression) ([]diffCase, error) {
+	if len(a.cases) < 2 && len(b.cases) < 2 {
+		return nil, nil
+	}
+	old := map[string]report.Case{}
+	for _, c := range a.cases {
+		old[c.Case.Name] = c
+	}
+	var out []diffCase
+	seen := map[string]bool{}
+	for _, c := range b.cases {
+		seen[c.Case.Name] = true
+		oc, ok := old[c.Case.Name]
+		if !ok {
+			out = append(out, diffCase{Name: c.Case.Name, Status: "added", Requirements: []diffReq{}, Quantities: []diffQ{}, Flipped: []string{}})
+			continue
+		}
+		r, err := regressions(oc.Result, c.Result, tol)
+		if err != nil {
+			return nil, err
+		}
+		doc := diffDocOf("", "", oc.Result, c.Result, r)
+		dc := diffCase{Name: c.Case.Name, Status: "same", Focus: doc.Focus, Requirements: doc.Requirements, Quantities: doc.Quantities, Flipped: doc.Flipped}
+		if len(dc.Quantities) > 0 || fmt.Sprint(oc.Case.Set) != fmt.Sprint(c.Case.Set) {
+			dc.Status = "changed"
+		}
+		for _, that := range r.flipped {
+			reg.flipped = append(reg.flipped, fmt.Sprintf("%s (case %q)", that, c.Case.Name))
+		}
+		out = append(out, dc)
+	}
+	for _, c := range a.cases {
+		if !seen[c.Case.Name] {
+			out = append(out, diffCase{Name: c.Case.Name, Status: "removed", Requirements: []diffReq{}, Quantities: []diffQ{}, Flipped: []string{}})
+		}
+	}
+	return out, nil
+}
+
+// casesMarkdown writes the case-by-case comparison: one row per case.
+func casesMarkdown(cases []diffCase) []byte {
+	if len(cases) == 0 {
+		return nil
+	}
+	var b strings.Builder
+	b.WriteString("\n## Cases\n\n| case | status | focus old | focus new | requirements that changed | values changed |\n| --- | --- | ---: | ---: | --- | ---: |\n")
+	for _, c := range cases {
+		fo, fn := "", ""
+		if c.Focus != nil {
+			if c.Focus.Old != nil {
+				fo = c.Focus.Old.Display
+			}
+			if c.Focus.New != nil {
+				fn = c.Focus.New.Display
+			}
+		}
+		var reqs []string
+		for _, r := range c.Requirements {
+			if r.Old != r.New {
+				reqs = append(reqs, fmt.Sprintf("`%s`: %s → %s", r.That, r.Old, r.New))
+			}
+		}
+		changed := ""
+		if c.Status == "changed" || c.Status == "same" {
+			changed = fmt.Sprint(len(c.Quantities))
+		}
+		fmt.Fprintf(&b, "| %s | %s | %s | %s | %s | %s |\n", strings.ReplaceAll(c.Name, "|", "\\|"), c.Status, fo, fn, strings.Join(reqs, "; "), changed)
+	}
+	return []byte(b.String())
+}

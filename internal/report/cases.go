@@ -149,7 +149,11 @@ func (p *page) caseColumns() {
 	p.f("\n| --- |%s\n", strings.Repeat(" --- |", len(p.in.Cases)))
 	p.caseRow("note", func(c Case) string { return cell(c.Case.Note) })
 	p.caseRow("inputs", func(c Case) string { return overridesText(c.Case) })
-	p.caseRow("focus", func(c Case) string {
+	focusLabel := "focus"
+	if f, ok := sh.Quantity(sh.Focus); ok {
+		focusLabel = "focus " + code(f.Name)
+	}
+	p.caseRow(focusLabel, func(c Case) string {
 		f, ok := caseFocus(sh, c)
 		if !ok {
 			return ""
@@ -172,9 +176,6 @@ func (p *page) caseColumns() {
 		return "**FAIL**"
 	})
 	p.f("\n")
-	if f, ok := sh.Quantity(sh.Focus); ok {
-		p.f("Focus: `%s`.\n\n", f.Name)
-	}
 }
 
 func (p *page) caseRow(label string, value func(Case) string) {
