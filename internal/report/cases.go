@@ -147,7 +147,12 @@ func (p *page) caseColumns() {
 		p.f(" %s |", cell(c.Case.Name))
 	}
 	p.f("\n| --- |%s\n", strings.Repeat(" --- |", len(p.in.Cases)))
-	p.caseRow("note", func(c Case) string { return cell(c.Case.Note) })
+	for _, c := range p.in.Cases {
+		if c.Case.Note != "" {
+			p.caseRow("note", func(c Case) string { return cell(c.Case.Note) })
+			break
+		}
+	}
 	p.caseRow("inputs", func(c Case) string { return overridesText(c.Case) })
 	focusLabel := "focus"
 	if f, ok := sh.Quantity(sh.Focus); ok {
@@ -244,8 +249,10 @@ func (p *page) analysedCases() {
 		p.f("The analyses were not run.\n\n")
 	case len(not) == 0:
 		p.f("The analyses (sensitivity, tolerance, Monte Carlo, sweeps and solves) were run for every case; the sections below them show %s.\n\n", done[0])
+	case len(done) == 1:
+		p.f("The analyses (sensitivity, tolerance, Monte Carlo, sweeps and solves) below are those of %s; they were not run for %s (render with `--all-cases`, or set `analyses = true` on a case).\n\n", done[0], strings.Join(not, ", "))
 	default:
-		p.f("The analyses (sensitivity, tolerance, Monte Carlo, sweeps and solves) were run for %s and are shown below for %s; not for %s (render with `--all-cases`, or set `analyses = true` on a case).\n\n", strings.Join(done, ", "), done[0], strings.Join(not, ", "))
+		p.f("The analyses (sensitivity, tolerance, Monte Carlo, sweeps and solves) were run for %s, and the sections below show %s; they were not run for %s (render with `--all-cases`, or set `analyses = true` on a case).\n\n", strings.Join(done, ", "), done[0], strings.Join(not, ", "))
 	}
 }
 
