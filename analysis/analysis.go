@@ -29,6 +29,7 @@ type Options struct {
 	Trials   int    // Monte Carlo trials; 0 means DefaultTrials
 	Seed     uint64 // Monte Carlo seed; the same seed gives the same report
 	Workers  int    // goroutines for the trials; 0 means GOMAXPROCS. Results do not depend on it.
+	Focus    string // the quantity to centre on (a case's own focus); "" means the sheet's
 	Progress func(what string, done, total int)
 	// SkipMonteCarlo leaves the trials out (Tolerance.Trials is then 0): the worst case and
 	// RSS come at once, for a page that is completed later.
@@ -130,7 +131,11 @@ func Analyze(r *engine.Result, opt Options) (*Analysis, engine.Diagnostics) {
 	}
 	a := &Analysis{}
 	var diags engine.Diagnostics
-	if f, ok := s.Quantity(s.Focus); ok && r.Known(f) {
+	focus := s.Focus
+	if opt.Focus != "" {
+		focus = opt.Focus
+	}
+	if f, ok := s.Quantity(focus); ok && r.Known(f) {
 		a.Focus = f
 		a.FocusValue, _ = r.Value(f)
 		a.Unit = engine.UnitName(f)

@@ -44,6 +44,7 @@ type loader struct {
 
 	formulaSites []site
 	reqSites     []site
+	caseSites    []*caseSite
 	focusAt      Range
 }
 
@@ -172,7 +173,7 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 	l.document(f, doc)
 }
 
-var topKeys = []string{"title", "summary", "focus", "use", "require", "sweep", "solve", "spurs", "products"}
+var topKeys = []string{"title", "summary", "focus", "use", "require", "sweep", "solve", "spurs", "products", "case"}
 
 func (l *loader) document(f *sheetFile, doc map[string]any) {
 	top := &Group{Name: f.prefix, Range: Range{File: f.name, Start: Pos{Line: 1, Col: 1}}}
@@ -215,6 +216,10 @@ func (l *loader) document(f *sheetFile, doc map[string]any) {
 			}
 		case "spurs", "products":
 			l.freqPlan(f, key, v, main)
+		case "case":
+			if main {
+				l.cases(f, v)
+			}
 		default:
 			if n := units.Nearest(key, topKeys); n != "" {
 				if text, isText := v.(string); isText && !looksLikeQuantity(text) {

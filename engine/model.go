@@ -26,6 +26,12 @@ type Sheet struct {
 
 	FreqPlans FreqPlans // [[spurs]] and [[products]] blocks (freqplan.go)
 
+	// Nominal is the nominal evaluation's case (no overrides), named "nominal" unless a
+	// [[case]] without set names it; Cases are the other operating points in file order
+	// (cases.go). Neither changes the sheet's own evaluation: see Sheet.EvalCases.
+	Nominal *Case
+	Cases   []*Case
+
 	nodes    []*node
 	files    []*sheetFile // the files read, in load order
 	byName   map[string]int

@@ -47,6 +47,7 @@ func Load(path string, opt Options) (*Sheet, Diagnostics) {
 	l.compile(opt.Previous)
 	l.checkFocus()
 	l.checkStudies()
+	l.checkCases()
 	sh.diags = sortDiags(l.diags)
 	return sh, sh.diags
 }

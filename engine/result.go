@@ -26,6 +26,8 @@ type Result struct {
 	args      []Value // argument stack of function calls
 	quiet     bool
 	evaluated int // nodes EvalFrom computed (the rest it took from the earlier result)
+
+	warnShared bool // warn is an earlier result's, to be copied before it changes (see near)
 }
 
 // Sheet returns the sheet the result belongs to.
@@ -161,9 +163,18 @@ func (r *Result) applyAll(set []Override) Diagnostics {
 	return diags
 }
 
-// override checks one override and returns the input's node and the value in its type.
+// override checks one override given on the command line and returns the input's node and
+// the value in its type.
 func (s *Sheet) override(o Override) (int, units.Q, *Diagnostic) {
 	r := Range{File: "--set"}
+	return s.checkOverride(o, r, r)
+}
+
+// checkOverride checks one override (from --set or a case's set) and returns the input's
+// node and the value in its type; a problem with the name is positioned at keyAt, one with
+// the value at valAt.
+func (s *Sheet) checkOverride(o Override, keyAt, valAt Range) (int, units.Q, *Diagnostic) {
+	r := keyAt
 	bad := func(hint, format string, args ...any) (int, units.Q, *Diagnostic) {
 		return 0, units.Q{}, &Diagnostic{Severity: Error, Quantity: o.Name, Summary: fmt.Sprintf(format, args...), Hint: hint, Range: r}
 	}
@@ -175,12 +186,13 @@ func (s *Sheet) override(o Override) (int, units.Q, *Diagnostic) {
 	if n.q.Formula != "" {
 		return bad("only inputs can be set; it is \"= "+n.q.Formula+"\"", "derived from a formula")
 	}
+	if !n.ok {
+		return bad("", "cannot be set: it has an error of its own")
+	}
+	r = valAt
 	v, _, err := units.Parse(o.Value)
 	if err != nil {
 		return bad(unitHint(err), "%s", unitMsg(err))
-	}
-	if !n.ok {
-		return bad("", "cannot be set: it has an error of its own")
 	}
 	if v.D != n.ty.D || (v.K == units.Rate) != (n.ty.K == units.Rate) {
 		return bad("", "is %s; %s is not of the same kind", n.q.Text, o.Value)
@@ -255,12 +267,12 @@ func (r *Result) evalNode(id int) {
 func (r *Result) record(n *node, err error) {
 	q := n.q
 	if len(r.call.warnings) > 0 {
-		r.warn[q.node] = append([]string(nil), r.call.warnings...)
+		r.setWarn(q.node, append([]string(nil), r.call.warnings...))
 		for _, w := range r.call.warnings {
 			r.diags = append(r.diags, Diagnostic{Severity: Warning, Quantity: q.Name, Summary: w, Range: q.Range})
 		}
 	} else {
-		r.warn[q.node] = nil
+		r.setWarn(q.node, nil)
 	}
 	if err != nil {
 		r.diags = append(r.diags, runtimeDiag(err, q.Name, q.Formula, q.Range, n.at))
@@ -345,10 +357,24 @@ func (s *Sheet) EvalFrom(prev *Result, set ...Override) (*Result, Diagnostics) {
 	if prev == nil {
 		return s.Eval(set...)
 	}
-	r := s.newResult()
+	var r *Result
+	if prev.sh == s {
+		r = prev.near()
+	} else {
+		r = s.newResult()
+	}
 	r.set = set
-	r.diags = append(r.diags, r.applyAll(set)...)
 	old := prev.sh
+	if old == s {
+		// Inputs prev overrode go back to their nominal value before the new overrides apply.
+		for _, o := range prev.set {
+			if id, ok := s.byName[o.Name]; ok {
+				n := s.nodes[id]
+				r.vals[id], r.known[id] = n.input.V, n.q != nil && n.code == nil && n.ok && n.q.Formula == ""
+			}
+		}
+	}
+	r.diags = append(r.diags, r.applyAll(set)...)
 	overridden := map[string]string{}
 	for _, o := range prev.set {
 		overridden[o.Name] = o.Value
@@ -360,22 +386,12 @@ func (s *Sheet) EvalFrom(prev *Result, set ...Override) (*Result, Diagnostics) {
 			overridden[o.Name] = "changed"
 		}
 	}
-	dirty := make([]bool, len(s.nodes))
-	from := make([]int, len(s.nodes))
-	for _, id := range s.order {
-		n := s.nodes[id]
-		oid, ok := old.byName[n.name]
-		from[id] = oid
-		if !ok || !sameNode(n, old.nodes[oid], s, old) || !prev.known[oid] {
-			dirty[id] = true
-		} else if _, ch := overridden[n.name]; ch {
-			dirty[id] = true
-		} else {
-			for _, d := range n.deps {
-				dirty[id] = dirty[id] || dirty[d]
-			}
-		}
+	if old == s {
+		s.evalNear(r, prev, overridden)
+		r.diags = sortDiags(r.diags)
+		return r, r.diags
 	}
+	dirty, from := s.dirtySince(prev, overridden)
 	r.quiet, r.call.quiet = false, false
 	for _, id := range s.order {
 		if dirty[id] {
@@ -383,7 +399,10 @@ func (s *Sheet) EvalFrom(prev *Result, set ...Override) (*Result, Diagnostics) {
 			r.evaluated++
 			continue
 		}
-		oid := from[id]
+		oid := id
+		if from != nil {
+			oid = from[id]
+		}
 		r.vals[id], r.known[id] = prev.vals[oid], prev.known[oid]
 		n := s.nodes[id]
 		if n.chain != nil {
@@ -400,6 +419,89 @@ func (s *Sheet) EvalFrom(prev *Result, set ...Override) (*Result, Diagnostics) {
 	r.requirements()
 	r.diags = sortDiags(r.diags)
 	return r, r.diags
+}
+
+// near returns a copy of r, an evaluation of its own sheet, to evaluate again with other
+// overrides: values, outcomes and stage values as r has them, no diagnostics.
+func (r *Result) near() *Result {
+	c := &Result{
+		sh:     r.sh,
+		vals:   append([]float64(nil), r.vals...),
+		known:  append([]bool(nil), r.known...),
+		warn:   r.warn,
+		pass:   append([]int8(nil), r.pass...),
+		chains: make([]ChainValue, len(r.chains)),
+
+		warnShared: true,
+	}
+	for i, cv := range r.chains {
+		c.chains[i] = ChainValue{Name: cv.Name, Stages: append([]StageValue(nil), cv.Stages...), Memo: &ChainMemo{}}
+	}
+	return c
+}
+
+// setWarn keeps a node's warnings, copying a shared warn list first.
+func (r *Result) setWarn(id int, w []string) {
+	if len(w) == 0 && len(r.warn[id]) == 0 {
+		return
+	}
+	if r.warnShared {
+		r.warn, r.warnShared = append([][]string(nil), r.warn...), false
+	}
+	r.warn[id] = w
+}
+
+// evalNear finishes EvalFrom for prev of the same sheet (the cases of one load): r holds
+// prev's values with the new overrides applied; only the cones of the inputs whose override
+// changed are computed again. A node prev could not evaluate and that depends on none of
+// them stays unknown, as a full evaluation would leave it.
+func (s *Sheet) evalNear(r, prev *Result, overridden map[string]string) {
+	roots := make([]int, 0, len(overridden))
+	for name := range overridden {
+		if id, ok := s.byName[name]; ok {
+			roots = append(roots, id)
+		}
+	}
+	var cone []int32
+	if len(roots) > 0 {
+		cone = s.coneOf(roots)
+	}
+	r.quiet, r.call.quiet = false, false
+	inCone := make(map[int32]bool, len(cone))
+	for _, id := range cone {
+		inCone[id] = true
+		r.evalNode(int(id))
+		r.evaluated++
+	}
+	for _, d := range prev.diags {
+		if id, ok := s.byName[d.Quantity]; ok && d.Severity == Warning && !inCone[int32(id)] {
+			r.diags = append(r.diags, d)
+		}
+	}
+	r.requirements()
+}
+
+// dirtySince marks the nodes that must be computed again after prev, an evaluation of an
+// earlier load, and for each node the node of prev's sheet it corresponds to.
+func (s *Sheet) dirtySince(prev *Result, overridden map[string]string) (dirty []bool, from []int) {
+	old := prev.sh
+	dirty = make([]bool, len(s.nodes))
+	from = make([]int, len(s.nodes))
+	for _, id := range s.order {
+		n := s.nodes[id]
+		oid, ok := old.byName[n.name]
+		from[id] = oid
+		if !ok || !sameNode(n, old.nodes[oid], s, old) || !prev.known[oid] {
+			dirty[id] = true
+		} else if _, ch := overridden[n.name]; ch {
+			dirty[id] = true
+		} else {
+			for _, d := range n.deps {
+				dirty[id] = dirty[id] || dirty[d]
+			}
+		}
+	}
+	return dirty, from
 }
 
 // sameNode reports whether a node is defined as it was in an earlier load: the same formula

@@ -4,6 +4,7 @@ import (
 	"fmt"
 
 	"github.com/rfledger/rfledger/analysis"
+	"github.com/rfledger/rfledger/engine"
 	"github.com/rfledger/rfledger/internal/report"
 )
 
@@ -22,6 +23,7 @@ func cmdCheck(e *Env, args []string) int {
 	seed := fs.Uint64("seed", 1, "Monte Carlo seed `N`")
 	var set setFlag
 	fs.Var(&set, "set", "replace an input for this run, as `name=value` (repeatable)")
+	sel := caseFlags(fs, true)
 	pos, err := parse(fs, args)
 	if err != nil {
 		return flagErr(e, fs, err)
@@ -47,8 +49,11 @@ func cmdCheck(e *Env, args []string) int {
 	code := ExitOK
 	var in []report.CheckInput
 	for _, p := range pos {
-		ev := evaluate(p, over, nil, ao)
-		c := report.CheckInput{File: p, Result: ev.result, Analysis: ev.analysis, Diags: ev.diags}
+		ev := evaluateCases(p, over, nil, ao, *sel)
+		if ev.caseErr != nil {
+			return usageErr(e, "check", "%v", ev.caseErr)
+		}
+		c := report.CheckInput{File: p, Result: ev.result, Analysis: ev.analysis, Diags: ev.diags, Cases: ev.cases}
 		code = max(code, checkCode(c)) // a sheet that cannot be evaluated (3) outranks a failed requirement (1)
 		if write == nil {
 			checkText(e, c)
@@ -61,54 +66,87 @@ func cmdCheck(e *Env, args []string) int {
 	return code
 }
 
-// checkCode is a worksheet's exit code: 3 cannot be evaluated, 1 a requirement fails, else 0.
+// checkCode is a worksheet's exit code: 3 cannot be evaluated, 1 a requirement fails in
+// some case, else 0.
 func checkCode(c report.CheckInput) int {
 	if c.Diags.HasErrors() {
 		return ExitBadSheet
 	}
-	for _, rq := range c.Result.Sheet().Requires {
-		if pass, _ := c.Result.Pass(rq); !pass {
-			return ExitFail
+	for _, k := range checkedCases(c) {
+		for _, rq := range k.Result.Sheet().Requires {
+			if pass, _ := k.Result.Pass(rq); !pass {
+				return ExitFail
+			}
 		}
 	}
 	return ExitOK
 }
 
+// checkedCases returns the cases checked; a sheet without cases is its one result.
+func checkedCases(c report.CheckInput) []report.Case {
+	if len(c.Cases) > 0 {
+		return c.Cases
+	}
+	return []report.Case{{Case: &engine.Case{Name: engine.NominalName, Nominal: true}, Result: c.Result, Analysis: c.Analysis}}
+}
+
 // checkText writes the verdict for people: diagnostics on stderr, one line per sheet and one
-// per failed requirement on stdout.
+// per failed requirement on stdout, naming the case when the sheet has several.
 func checkText(e *Env, c report.CheckInput) {
 	printDiags(e, c.Diags)
 	if c.Diags.HasErrors() {
 		fmt.Fprintf(e.Stdout, "%s: cannot be evaluated\n", c.File)
 		return
 	}
-	r := c.Result
-	sh := r.Sheet()
-	fails := 0
-	for _, rq := range sh.Requires {
-		if pass, _ := r.Pass(rq); !pass {
-			fails++
+	sh := c.Result.Sheet()
+	cases := checkedCases(c)
+	type failure struct {
+		c  report.Case
+		rq *engine.Require
+	}
+	var fails []failure
+	failedCases := 0
+	for _, k := range cases {
+		before := len(fails)
+		for _, rq := range sh.Requires {
+			if pass, _ := k.Result.Pass(rq); !pass {
+				fails = append(fails, failure{k, rq})
+			}
+		}
+		if len(fails) > before {
+			failedCases++
 		}
 	}
 	verdict := "PASS"
-	if fails > 0 {
+	if len(fails) > 0 {
 		verdict = "FAIL"
 	}
-	fmt.Fprintf(e.Stdout, "%s: %s, %d of %d requirements hold", c.File, verdict, len(sh.Requires)-fails, len(sh.Requires))
-	if f, ok := sh.Quantity(sh.Focus); ok {
-		fmt.Fprintf(e.Stdout, "; %s = %s", f.Name, r.Display(f))
+	first := cases[0]
+	r := first.Result
+	if len(cases) == 1 {
+		fmt.Fprintf(e.Stdout, "%s: %s, %d of %d requirements hold", c.File, verdict, len(sh.Requires)-len(fails), len(sh.Requires))
+	} else {
+		fmt.Fprintf(e.Stdout, "%s: %s, every requirement holds in %d of %d cases", c.File, verdict, len(cases)-failedCases, len(cases))
+	}
+	if f, ok := sh.Quantity(first.Case.FocusName(sh)); ok {
+		if len(cases) > 1 {
+			fmt.Fprintf(e.Stdout, "; %s = %s in %q", f.Name, r.Display(f), first.Case.Name)
+		} else {
+			fmt.Fprintf(e.Stdout, "; %s = %s", f.Name, r.Display(f))
+		}
 	}
 	if c.Analysis != nil && c.Analysis.Tolerance != nil {
 		fmt.Fprintf(e.Stdout, "; all hold in %.1f %% of %d trials", 100*c.Analysis.Tolerance.PPass, c.Analysis.Tolerance.Trials)
 	}
 	fmt.Fprintln(e.Stdout)
-	for _, rq := range sh.Requires {
-		if pass, _ := r.Pass(rq); !pass {
-			fmt.Fprintf(e.Stdout, "  failed: %s", rq.That)
-			if q, ok := sh.Quantity(rq.Subject); ok {
-				fmt.Fprintf(e.Stdout, " (%s = %s)", q.Name, r.Display(q))
-			}
-			fmt.Fprintln(e.Stdout)
+	for _, f := range fails {
+		fmt.Fprintf(e.Stdout, "  failed: %s", f.rq.That)
+		if len(cases) > 1 {
+			fmt.Fprintf(e.Stdout, " in case %q", f.c.Case.Name)
 		}
+		if q, ok := sh.Quantity(f.rq.Subject); ok {
+			fmt.Fprintf(e.Stdout, " (%s = %s)", q.Name, f.c.Result.Display(q))
+		}
+		fmt.Fprintln(e.Stdout)
 	}
 }

@@ -51,11 +51,11 @@ var commands []command
 func init() {
 	sheet := [2]string{"SHEET", "a worksheet file (.toml)"}
 	commands = []command{
-		{"render", "SHEET [-o FILE] [--json] [--set name=value]... [--trials N] [--seed N]",
+		{"render", "SHEET [-o FILE] [--json] [--set name=value]... [--case NAME]... [--all-cases] [--trials N] [--seed N]",
 			"evaluate a worksheet and write its budget page (Markdown, charts beside -o) or its JSON",
 			[][2]string{sheet}, "rfledger render worksheets/field-probe-uplink.toml -o budget.md", cmdRender},
-		{"check", "SHEET... [--format text|json|junit|github] [--set name=value]... [--trials N]",
-			"evaluate worksheets and print a verdict for people or CI; exit 1 when a requirement fails",
+		{"check", "SHEET... [--format text|json|junit|github] [--set name=value]... [--case NAME]... [--trials N]",
+			"evaluate worksheets and print a verdict for people or CI; exit 1 when a requirement fails in any case",
 			[][2]string{{"SHEET...", "one or more worksheet files"}},
 			"rfledger check worksheets/*.toml\nrfledger check --format junit worksheets/*.toml > budget-junit.xml", cmdCheck},
 		{"watch", "SHEET -o FILE [--serve ADDR] [--set name=value]...",
@@ -65,7 +65,7 @@ func init() {
 			"what changed in the results between two worksheets, or a git revision and the working file",
 			[][2]string{{"OLD NEW", "two worksheet files, old first"}, {"SHEET", "with --rev: the working file, compared with itself at REV"}},
 			"rfledger diff field.toml --rev HEAD\nrfledger diff --exit-code --tolerance 0.5dB old.toml new.toml", cmdDiff},
-		{"export", "SHEET --c-header [--prefix NAME] [--type float|double|int] [-o FILE]",
+		{"export", "SHEET --c-header [--case NAME] [--prefix NAME] [--type float|double|int] [-o FILE]",
 			"write a C header of the quantities marked export, for firmware",
 			[][2]string{sheet}, "rfledger export field.toml --c-header --prefix FIELD -o field_budget.h", cmdExport},
 		{"new", "FILE [--kind link|receiver|satellite]", "write a commented starting worksheet",

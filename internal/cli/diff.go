@@ -59,10 +59,16 @@ func cmdDiff(e *Env, args []string) int {
 	if err != nil {
 		return usageErr(e, "diff", "--tolerance: %v", err)
 	}
+	cases, err := diffCases(oldEv, newEv, tol, &reg)
+	if err != nil {
+		return usageErr(e, "diff", "--tolerance: %v", err)
+	}
 	if *format == "json" {
-		_, _ = e.Stdout.Write(diffJSON(oldName, newName, oldEv.result, newEv.result, reg))
+		doc := diffDocOf(oldName, newName, oldEv.result, newEv.result, reg)
+		doc.Cases = cases
+		_, _ = e.Stdout.Write(encode(doc))
 	} else {
-		_, _ = e.Stdout.Write(diffMarkdown(oldName, newName, oldEv.result, newEv.result))
+		_, _ = e.Stdout.Write(append(diffMarkdown(oldName, newName, oldEv.result, newEv.result), casesMarkdown(cases)...))
 	}
 	if *exitCode && (reg.focusWorse || len(reg.flipped) > 0) {
 		for _, that := range reg.flipped {

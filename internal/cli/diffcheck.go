@@ -112,6 +112,7 @@ type diffDoc struct {
 	Quantities   []diffQ    `json:"quantities"`
 	Regression   bool       `json:"regression"` // what --exit-code exits 1 on
 	Flipped      []string   `json:"flipped"`
+	Cases        []diffCase `json:"cases,omitempty"` // case by case, when either sheet has [[case]] entries (cases.go)
 }
 
 type diffSide struct {
@@ -186,6 +187,11 @@ func reqState(r *engine.Result, rq *engine.Require) string {
 
 // diffJSON writes what changed between two evaluated sheets, in the order diffMarkdown uses.
 func diffJSON(oldName, newName string, ra, rb *engine.Result, reg regression) []byte {
+	return encode(diffDocOf(oldName, newName, ra, rb, reg))
+}
+
+// diffDocOf works out what changed between two evaluations.
+func diffDocOf(oldName, newName string, ra, rb *engine.Result, reg regression) diffDoc {
 	a, b := ra.Sheet(), rb.Sheet()
 	doc := diffDoc{Format: 1, Old: diffSide{oldName, a.Hash}, New: diffSide{newName, b.Hash},
 		Requirements: []diffReq{}, Quantities: []diffQ{}, Flipped: append([]string{}, reg.flipped...),
@@ -225,7 +231,7 @@ func diffJSON(oldName, newName string, ra, rb *engine.Result, reg regression) []
 			doc.Quantities = append(doc.Quantities, diffQ{Name: q.Name, Status: "removed", Old: valueOf(ra, q)})
 		}
 	}
-	return encode(doc)
+	return doc
 }
 
 // encode writes v as indented JSON, as the report writers do.

@@ -15,6 +15,7 @@ func cmdExport(e *Env, args []string) int {
 	out := fs.String("o", "", "write to `FILE` instead of standard output")
 	var set setFlag
 	fs.Var(&set, "set", "replace an input for this run, as `name=value` (repeatable)")
+	sel := caseFlags(fs, false)
 	pos, err := parse(fs, args)
 	if err != nil {
 		return flagErr(e, fs, err)
@@ -32,10 +33,21 @@ func cmdExport(e *Env, args []string) int {
 	if err != nil {
 		return usageErr(e, "export", "%v", err)
 	}
-	ev := evaluate(pos[0], over, nil, nil)
+	if len(sel.names) > 1 {
+		return usageErr(e, "export", "a header describes one operating point: give one --case, not %d", len(sel.names))
+	}
+	ev := evaluateCases(pos[0], over, nil, nil, *sel)
+	if ev.caseErr != nil {
+		return usageErr(e, "export", "%v", ev.caseErr)
+	}
 	printDiags(e, ev.diags)
 	if !ev.ok() {
 		return ExitBadSheet
+	}
+	if len(sel.names) == 0 {
+		if msg := ambiguousExport(ev); msg != "" {
+			return usageErr(e, "export", "%s", msg)
+		}
 	}
 	data, err := report.CHeader(ev.result, report.HeaderOptions{Prefix: *prefix, Type: report.CType(*ctype)})
 	if err != nil {
@@ -54,4 +66,29 @@ func cmdExport(e *Env, args []string) int {
 		return ExitBadSheet
 	}
 	return ExitOK
+}
+
+// ambiguousExport says why a header cannot be written without --case: an exported value
+// differs between the sheet's cases. It returns "" when every case gives the same header.
+func ambiguousExport(ev *evaluated) string {
+	if len(ev.cases) < 2 {
+		return ""
+	}
+	var names []string
+	for _, c := range ev.cases {
+		names = append(names, c.Case.Name)
+	}
+	for _, q := range ev.sheet.Quantities() {
+		if !q.Export {
+			continue
+		}
+		first := ev.cases[0].Result.Display(q)
+		for _, c := range ev.cases[1:] {
+			if v := c.Result.Display(q); v != first {
+				return fmt.Sprintf("%s is %s in %q but %s in %q, and a header describes one operating point: choose it with --case NAME (cases: %s)",
+					q.Name, first, ev.cases[0].Case.Name, v, c.Case.Name, quoteList(names))
+			}
+		}
+	}
+	return ""
 }

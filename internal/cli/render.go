@@ -18,25 +18,34 @@ import (
 // evaluated is a loaded, evaluated and analysed worksheet.
 type evaluated struct {
 	sheet    *engine.Sheet
-	result   *engine.Result
-	analysis *analysis.Analysis
+	result   *engine.Result     // the first case's (the nominal one unless --case leaves it out)
+	analysis *analysis.Analysis // the first case's analyses
+	cases    []report.Case      // every case evaluated, the first being result's
 	diags    engine.Diagnostics // everything found, sorted; errors mean the sheet cannot be evaluated
+	caseErr  error              // --case named a case the sheet does not have
 }
 
-// run loads, evaluates and (unless skipped) analyses a worksheet.
+// evaluate loads, evaluates and (unless ao is nil) analyses a worksheet, with every case.
 func evaluate(path string, set []engine.Override, fsys fs.FS, ao *analysis.Options) *evaluated {
+	return evaluateCases(path, set, fsys, ao, caseSel{})
+}
+
+// evaluateCases is evaluate for the cases sel chooses: each evaluated from the nominal
+// result; the analyses for the first, or for every case with sel.all.
+func evaluateCases(path string, set []engine.Override, fsys fs.FS, ao *analysis.Options, sel caseSel) *evaluated {
 	sh, diags := engine.Load(path, engine.Options{Library: rflib.Library(), FS: fsys})
 	// Evaluate even when loading found errors: failed quantities are skipped, and the
 	// user sees every error in the file at once, run-time ones included.
 	r, ediags := sh.Eval(set...)
 	ev := &evaluated{sheet: sh, result: r}
-	diags = append(diags, ediags...)
-	if !diags.HasErrors() && ao != nil {
-		a, ds := analysis.Analyze(r, *ao)
-		ev.analysis = a
-		diags = append(diags, ds...)
+	ev.diags = append(diags, ediags...)
+	cases, err := sel.chosen(sh)
+	if err != nil {
+		ev.caseErr = err
+		cases = []*engine.Case{sh.Nominal}
 	}
-	ev.diags = engine.SortDiagnostics(diags)
+	ev.diags = append(ev.diags, ev.evalCases(cases, set, sel, ao)...)
+	ev.diags = engine.SortDiagnostics(ev.diags)
 	return ev
 }
 
@@ -79,7 +88,7 @@ func progress(e *Env) func(string, int, int) {
 
 // output is what render produces: the main file and the charts beside it.
 func output(ev *evaluated, asJSON bool, out string) ([]byte, []report.File) {
-	in := report.Input{Result: ev.result, Analysis: ev.analysis, Warnings: ev.diags}
+	in := report.Input{Result: ev.result, Analysis: ev.analysis, Warnings: ev.diags, Cases: ev.cases}
 	if asJSON {
 		return report.JSON(in), nil
 	}
@@ -109,6 +118,7 @@ func cmdRender(e *Env, args []string) int {
 	out := fs.String("o", "", "write the page to `FILE` (charts go beside it) instead of standard output")
 	asJSON := fs.Bool("json", false, "write the JSON result (format 2; rfledger schema --render-output) instead of Markdown")
 	trials, seed, set := analysisFlags(fs)
+	sel := caseFlags(fs, true)
 	pos, err := parse(fs, args)
 	if err != nil {
 		return flagErr(e, fs, err)
@@ -128,7 +138,10 @@ func cmdRender(e *Env, args []string) int {
 			return usageErr(e, "render", "%v", err)
 		}
 	}
-	ev := evaluate(pos[0], over, nil, &analysis.Options{Trials: *trials, Seed: *seed, Progress: progress(e)})
+	ev := evaluateCases(pos[0], over, nil, &analysis.Options{Trials: *trials, Seed: *seed, Progress: progress(e)}, *sel)
+	if ev.caseErr != nil {
+		return usageErr(e, "render", "%v", ev.caseErr)
+	}
 	printDiags(e, ev.diags)
 	if !ev.ok() {
 		fmt.Fprintf(e.Stderr, "rfledger: %s cannot be evaluated; nothing written\n", pos[0])

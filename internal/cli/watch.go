@@ -22,6 +22,7 @@ func cmdWatch(e *Env, args []string) int {
 	out := fs.String("o", "", "write the page to `FILE` (required)")
 	serve := fs.String("serve", "", "also serve the page with live refresh on `ADDR` (e.g. :8080, loopback only unless a host is given)")
 	trials, seed, set := analysisFlags(fs)
+	sel := caseFlags(fs, true)
 	pos, err := parse(fs, args)
 	if err != nil {
 		return flagErr(e, fs, err)
@@ -40,7 +41,7 @@ func cmdWatch(e *Env, args []string) int {
 	if err := checkOut(*out, inputFiles(sheet, first.Parts)); err != nil {
 		return usageErr(e, "watch", "%v", err)
 	}
-	lw := &liveSheet{e: e, sheet: sheet, out: *out, over: over, lib: lib, ao: analysis.Options{Trials: *trials, Seed: *seed}}
+	lw := &liveSheet{e: e, sheet: sheet, out: *out, over: over, lib: lib, sel: *sel, ao: analysis.Options{Trials: *trials, Seed: *seed}}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
 	err = watch.Run(ctx, lw.render, watch.Options{
@@ -66,6 +67,7 @@ type liveSheet struct {
 	out   string
 	over  []engine.Override
 	lib   *engine.Library
+	sel   caseSel
 	ao    analysis.Options
 
 	prevSh *engine.Sheet // used by render only (one goroutine)
@@ -91,8 +93,12 @@ func (lw *liveSheet) render() ([]byte, []string, error) {
 	lw.prevSh, lw.prevR = sh, r
 	quick := lw.ao
 	quick.SkipMonteCarlo = true
-	a, ds := analysis.Analyze(r, quick)
-	ev := &evaluated{sheet: sh, result: r, analysis: a, diags: engine.SortDiagnostics(append(diags, ds...))}
+	ev := &evaluated{sheet: sh, result: r, diags: diags}
+	cases, err := lw.sel.chosen(sh)
+	if err != nil {
+		return nil, files, err
+	}
+	ev.diags = engine.SortDiagnostics(append(ev.diags, ev.evalCases(cases, lw.over, lw.sel, &quick)...))
 	if err := checkOut(lw.out, files); err != nil {
 		return nil, files, err
 	}
@@ -116,8 +122,9 @@ func (lw *liveSheet) refine() ([]byte, bool) {
 		return nil, false // nothing was left out
 	}
 	a, ds := analysis.Analyze(ev.result, lw.ao)
-	full := &evaluated{sheet: ev.sheet, result: ev.result, analysis: a, diags: engine.SortDiagnostics(append(ev.diags, ds...))}
-	return lw.pageOf(ev, full)
+	full := *ev
+	full.analysis, full.diags = a, engine.SortDiagnostics(append(ev.diags, ds...))
+	return lw.pageOf(ev, &full)
 }
 
 // page renders ev and writes its charts.

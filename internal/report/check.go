@@ -18,6 +18,9 @@ type CheckInput struct {
 	Result   *engine.Result
 	Analysis *analysis.Analysis // nil unless the Monte Carlo run was asked for
 	Diags    engine.Diagnostics // everything loading, evaluation and the analyses found
+	// Cases are the operating points checked, the first being Result's; nil or one entry
+	// for a worksheet without cases.
+	Cases []Case
 }
 
 // Verdicts of a checked worksheet.
@@ -43,10 +46,19 @@ type checkSheet struct {
 	Requirements []checkReq   `json:"requirements"`
 	MonteCarlo   *checkMC     `json:"monte_carlo,omitempty"`
 	Diagnostics  []checkDiag  `json:"diagnostics"`
+	Cases        []checkCase  `json:"cases,omitempty"` // with [[case]]: every case checked, the first as above
 	counts       checkCounted // for the JUnit totals
 }
 
 type checkCounted struct{ failed, errors int }
+
+// checkCase is one operating point's verdict.
+type checkCase struct {
+	Name         string      `json:"name"`
+	Verdict      string      `json:"verdict"` // pass or fail
+	Focus        *checkValue `json:"focus"`
+	Requirements []checkReq  `json:"requirements"`
+}
 
 type checkValue struct {
 	Name   string   `json:"name"`
@@ -113,21 +125,66 @@ func checkOf(c CheckInput) checkSheet {
 	if c.Diags.HasErrors() {
 		cs.Verdict = VerdictError
 	}
-	var focus *engine.Quantity
-	if q, ok := sh.Quantity(sh.Focus); ok {
-		focus = q
-		cs.Focus = &checkValue{Name: q.Name, Unit: unitName(q)}
-		if qv, known := res.Value(q); known {
-			v, _ := res.Number(q)
-			cs.Focus.Value = num(v)
-			cs.Focus.SI, cs.Focus.SIUnit = SI(qv)
-		}
-	}
 	var tol *analysis.Tolerance
 	if c.Analysis != nil && c.Analysis.Tolerance != nil {
 		tol = c.Analysis.Tolerance
 		cs.MonteCarlo = &checkMC{Trials: tol.Trials, Seed: tol.Seed, PPass: tol.PPass}
 	}
+	focusName := sh.Focus
+	if len(c.Cases) > 0 {
+		focusName = c.Cases[0].Case.FocusName(sh)
+	}
+	cs.Focus, cs.Requirements = checkResult(res, focusName, c.Analysis)
+	for _, r := range cs.Requirements {
+		if !r.Pass {
+			cs.counts.failed++
+		}
+	}
+	if len(c.Cases) > 1 {
+		for _, k := range c.Cases {
+			cc := checkCase{Name: k.Case.Name, Verdict: VerdictPass}
+			cc.Focus, cc.Requirements = checkResult(k.Result, k.Case.FocusName(sh), k.Analysis)
+			for _, r := range cc.Requirements {
+				if !r.Pass {
+					cc.Verdict = VerdictFail
+				}
+			}
+			cs.Cases = append(cs.Cases, cc)
+		}
+		cs.counts.failed = 0
+		for _, cc := range cs.Cases {
+			for _, r := range cc.Requirements {
+				if !r.Pass {
+					cs.counts.failed++
+				}
+			}
+		}
+	}
+	if cs.counts.failed > 0 && cs.Verdict == VerdictPass {
+		cs.Verdict = VerdictFail
+	}
+	return cs
+}
+
+// checkResult works out the focus and every requirement's outcome of one evaluation.
+func checkResult(res *engine.Result, focusName string, a *analysis.Analysis) (*checkValue, []checkReq) {
+	sh := res.Sheet()
+	var fv *checkValue
+	var focus *engine.Quantity
+	if q, ok := sh.Quantity(focusName); ok {
+		focus = q
+		fv = &checkValue{Name: q.Name, Unit: unitName(q)}
+		if qv, known := res.Value(q); known {
+			v, _ := res.Number(q)
+			fv.Value = num(v)
+			fv.SI, fv.SIUnit = SI(qv)
+		}
+	}
+	var tol *analysis.Tolerance
+	if a != nil && a.Tolerance != nil && a.Focus == focus {
+		tol = a.Tolerance
+	}
+	reqs := []checkReq{}
 	for _, rq := range sh.Requires {
 		pass, known := res.Pass(rq)
 		r := checkReq{That: rq.That, Note: rq.Note, Pass: pass, Evaluated: known,
@@ -143,15 +200,9 @@ func checkOf(c CheckInput) checkSheet {
 				r.Chance = chance(tol, rq.Op, *r.Limit)
 			}
 		}
-		if !r.Pass {
-			cs.counts.failed++
-			if cs.Verdict == VerdictPass {
-				cs.Verdict = VerdictFail
-			}
-		}
-		cs.Requirements = append(cs.Requirements, r)
+		reqs = append(reqs, r)
 	}
-	return cs
+	return fv, reqs
 }
 
 // chance is the share of Monte Carlo trials in which the focus meets a bound on itself; trials
@@ -245,10 +296,11 @@ func CheckJUnit(in []CheckInput) []byte {
 	for _, s := range checkSheets(in) {
 		class := strings.TrimSuffix(baseName(s.File), ".toml")
 		su := junitSuite{Name: s.File}
-		for _, r := range s.Requirements {
-			jc := junitCase{Name: "require " + r.That, Classname: class, File: r.File, Line: r.Line}
+		for _, cr := range caseReqs(s) {
+			r := cr.req
+			jc := junitCase{Name: "require " + r.That + cr.suffix, Classname: class, File: r.File, Line: r.Line}
 			if !r.Pass {
-				msg := requirementMessage(r)
+				msg := cr.prefix + requirementMessage(r)
 				jc.Failure = &junitProblem{Message: msg, Type: "requirement", Text: fmt.Sprintf("%s:%d:%d: %s", r.File, r.Line, r.Column, msg)}
 				su.Failures++
 			}
@@ -278,6 +330,30 @@ func CheckJUnit(in []CheckInput) []byte {
 	_ = enc.Encode(doc) // only plain values: cannot fail
 	b.WriteString("\n")
 	return b.Bytes()
+}
+
+// caseReq is a requirement's outcome in one case, with how to name the case in a message.
+type caseReq struct {
+	req            checkReq
+	prefix, suffix string // "case \"x\": " before a message, " [case x]" after a test name
+}
+
+// caseReqs lists every requirement's outcome in every case of a checked sheet (the sheet's
+// own requirements when it has no cases).
+func caseReqs(s checkSheet) []caseReq {
+	var out []caseReq
+	if len(s.Cases) == 0 {
+		for _, r := range s.Requirements {
+			out = append(out, caseReq{req: r})
+		}
+		return out
+	}
+	for _, c := range s.Cases {
+		for _, r := range c.Requirements {
+			out = append(out, caseReq{req: r, prefix: fmt.Sprintf("case %q: ", c.Name), suffix: " [case " + c.Name + "]"})
+		}
+	}
+	return out
 }
 
 // requirementMessage says why a requirement does not hold, with the values where it is a bound.
@@ -332,9 +408,9 @@ func CheckGitHub(in []CheckInput) []byte {
 		for _, d := range s.Diagnostics {
 			ghLine(&b, d.Severity, d.File, d.Line, d.Column, diagMessage(d))
 		}
-		for _, r := range s.Requirements {
-			if !r.Pass {
-				ghLine(&b, "error", r.File, r.Line, r.Column, requirementMessage(r))
+		for _, cr := range caseReqs(s) {
+			if !cr.req.Pass {
+				ghLine(&b, "error", cr.req.File, cr.req.Line, cr.req.Column, cr.prefix+requirementMessage(cr.req))
 			}
 		}
 		fmt.Fprintf(&b, "%s: %s\n", s.File, strings.ToUpper(s.Verdict))

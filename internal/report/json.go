@@ -33,6 +33,7 @@ type jsonDoc struct {
 	Hash         string               `json:"hash"`
 	Spurs        []jsonSpurs          `json:"spurs"`
 	Products     []jsonProducts       `json:"products"`
+	Cases        []jsonCase           `json:"cases"` // every operating point, the top-level fields' first (cases.go)
 }
 
 type jsonQ struct {
@@ -168,25 +169,7 @@ func JSON(in Input) []byte {
 	doc := jsonDoc{Format: 2, Tolerance: struct{}{}, Title: sh.Title, Summary: sh.Summary, Focus: sh.Focus, Hash: sh.Hash, Pass: true,
 		Quantities: map[string]jsonQ{}, Chains: map[string]jsonChain{},
 		Requirements: []jsonReq{}, Sensitivity: []jsonSens{}, Sweeps: []jsonSweep{}, Solves: []jsonSolve{}, Warnings: []string{}, Budget: []jsonContribution{}}
-	for _, q := range sh.Quantities() {
-		v, unit := r.Number(q)
-		jq := jsonQ{Unit: unit, Kind: "input", Note: q.Note, Source: q.Source, Warnings: r.Warnings(q)}
-		if r.Known(q) {
-			jq.Value = num(v)
-			qv, _ := r.Value(q)
-			jq.SI, jq.SIUnit = SI(qv)
-		} else {
-			qt, _ := q.Type()
-			_, jq.SIUnit = SI(qt)
-		}
-		if !q.Input() {
-			jq.Kind, jq.Formula = "derived", q.Formula
-		}
-		if q.Tol != nil {
-			jq.Tol, jq.Dist = q.Tol.Text, q.Tol.Dist
-		}
-		doc.Quantities[q.Name] = jq
-	}
+	doc.Quantities = quantitiesJSON(sh, r)
 	for _, rq := range sh.Requires {
 		pass := passes(r, rq)
 		doc.Pass = doc.Pass && pass
@@ -204,7 +187,33 @@ func JSON(in Input) []byte {
 		analysisJSON(&doc, a, sh)
 	}
 	doc.Spurs, doc.Products = freqPlanJSON(r)
+	doc.Cases = casesJSON(in)
 	return encodeJSON(doc)
+}
+
+// quantitiesJSON writes every quantity of a result.
+func quantitiesJSON(sh *engine.Sheet, r *engine.Result) map[string]jsonQ {
+	out := map[string]jsonQ{}
+	for _, q := range sh.Quantities() {
+		v, unit := r.Number(q)
+		jq := jsonQ{Unit: unit, Kind: "input", Note: q.Note, Source: q.Source, Warnings: r.Warnings(q)}
+		if r.Known(q) {
+			jq.Value = num(v)
+			qv, _ := r.Value(q)
+			jq.SI, jq.SIUnit = SI(qv)
+		} else {
+			qt, _ := q.Type()
+			_, jq.SIUnit = SI(qt)
+		}
+		if !q.Input() {
+			jq.Kind, jq.Formula = "derived", q.Formula
+		}
+		if q.Tol != nil {
+			jq.Tol, jq.Dist = q.Tol.Text, q.Tol.Dist
+		}
+		out[q.Name] = jq
+	}
+	return out
 }
 
 func chainJSON(ci analysis.Cascade) jsonChain {
@@ -279,6 +288,12 @@ func analysisJSON(doc *jsonDoc, a *analysis.Analysis, sh *engine.Sheet) {
 		}
 		doc.Sweeps = append(doc.Sweeps, js)
 	}
+	doc.Solves = solvesJSON(a)
+}
+
+// solvesJSON writes the answers of the solves.
+func solvesJSON(a *analysis.Analysis) []jsonSolve {
+	out := []jsonSolve{}
 	for _, r := range a.Solves {
 		js := jsonSolve{Name: r.Solve.Name, Unit: r.Unit, Found: r.Found, Note: r.Note}
 		_, js.SIUnit = siOfNumber(1, r.Unit)
@@ -286,6 +301,7 @@ func analysisJSON(doc *jsonDoc, a *analysis.Analysis, sh *engine.Sheet) {
 			js.Value = num(r.Value)
 			js.SI, _ = siOfNumber(r.Value, r.Unit)
 		}
-		doc.Solves = append(doc.Solves, js)
+		out = append(out, js)
 	}
+	return out
 }

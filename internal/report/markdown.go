@@ -36,9 +36,15 @@ func Markdown(in Input) ([]byte, []File) {
 	if sh.Summary != "" {
 		p.f("%s\n\n", text(sh.Summary))
 	}
-	p.verdict()
-	p.lineItems()
+	if p.multiCase() {
+		p.caseVerdict()
+		p.caseLineItems()
+	} else {
+		p.verdict()
+		p.lineItems()
+	}
 	p.cascades()
+	p.caseSections()
 	if a := in.Analysis; a != nil && a.Focus != nil {
 		p.budget()
 		p.sensitivity()
@@ -294,6 +300,7 @@ func (p *page) cascades() {
 			p.f("\n")
 		}
 		p.levelChart(ci)
+		p.caseLevels(ci)
 	}
 }
 

@@ -23,6 +23,9 @@ type Input struct {
 	Sheet    *engine.Sheet      // the result's sheet (filled in from Result when nil)
 	Analysis *analysis.Analysis // nil when the analyses were not run
 	Warnings engine.Diagnostics // warnings from evaluation and the analyses
+	// Cases are the operating points the page shows side by side, the first as the page's
+	// main evaluation (Result is Cases[0].Result); nil or one entry for a page of one.
+	Cases []Case
 	// ChartBase is the file name prefix for charts written beside the page ("budget" gives
 	// "budget.sweep-1.<hash>.svg"); "" leaves the charts out.
 	ChartBase string

@@ -1,0 +1,296 @@
+package cli
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+	"testing"
+
+	"github.com/yuin/goldmark"
+	"github.com/yuin/goldmark/extension"
+
+	"github.com/rfledger/rfledger/internal/gen"
+	"github.com/rfledger/rfledger/internal/schematest"
+)
+
+// withCases writes sheet's text with [[case]] entries appended into a temporary folder.
+func withCases(t *testing.T, sheet string, cases ...string) string {
+	t.Helper()
+	src, err := os.ReadFile(sheet)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b bytes.Buffer
+	b.Write(src)
+	for _, c := range cases {
+		b.WriteString("\n[[case]]\n" + c + "\n")
+	}
+	p := filepath.Join(t.TempDir(), filepath.Base(sheet))
+	if err := os.WriteFile(p, b.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+type caseDoc struct {
+	Quantities map[string]json.RawMessage `json:"quantities"`
+	Cases      []struct {
+		Name       string                     `json:"name"`
+		Nominal    bool                       `json:"nominal"`
+		Set        map[string]string          `json:"set"`
+		Pass       bool                       `json:"pass"`
+		Analyses   bool                       `json:"analyses"`
+		Quantities map[string]json.RawMessage `json:"quantities"`
+	} `json:"cases"`
+}
+
+func renderJSON(t *testing.T, args ...string) caseDoc {
+	t.Helper()
+	code, out, stderr := run(t, append([]string{"render", "--json", "--trials", "20"}, args...)...)
+	if code != ExitOK {
+		t.Fatalf("render %v: exit %d\n%s", args, code, stderr)
+	}
+	var doc caseDoc
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatal(err)
+	}
+	return doc
+}
+
+// TestCaseValuesEqualSetRender is the issue's own check: every case's quantities in the JSON
+// equal, quantity by quantity (value, unit, SI value and warnings), those of a separate
+// render --json --set … with the same overrides, for the demo with cases, a demo given cases
+// here, and a generated network of 2,000 quantities with five cases.
+func TestCaseValuesEqualSetRender(t *testing.T) {
+	hill := withCases(t, "../../worksheets/hill-relay-backhaul.toml",
+		`name = "short hop"`+"\n"+`set = { "path.distance" = "3 km" }`,
+		`name = "wet radomes, long"`+"\n"+`set = { "path.distance" = "9 km", "path.radomes" = "3 dB", "climate.r001" = "60 mm/h" }`,
+		`name = "low power"`+"\n"+`set = { "tx.power" = "10 dBm" }`)
+	src, err := gen.Budget(2000, 3)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var g bytes.Buffer
+	g.Write(src)
+	for i := range 5 {
+		fmt.Fprintf(&g, "\n[[case]]\nname = \"p%d\"\nset = { \"r01.f01.p%02d.distance\" = \"%d m\", \"r01.f01.gw_antenna\" = \"%d dBi\" }\n", i+1, i+1, 900+700*i, 2+i)
+	}
+	genSheet := filepath.Join(t.TempDir(), "net.toml")
+	if err := os.WriteFile(genSheet, g.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, sheet := range []string{"../../worksheets/barn-silo-backhaul.toml", hill, genSheet} {
+		doc := renderJSON(t, sheet)
+		if len(doc.Cases) < 4 || !doc.Cases[0].Nominal {
+			t.Fatalf("%s: %d cases, first nominal %v", sheet, len(doc.Cases), len(doc.Cases) > 0 && doc.Cases[0].Nominal)
+		}
+		for _, c := range doc.Cases {
+			var args []string
+			names := make([]string, 0, len(c.Set))
+			for k := range c.Set {
+				names = append(names, k)
+			}
+			sort.Strings(names)
+			for _, k := range names {
+				args = append(args, "--set", k+"="+c.Set[k])
+			}
+			alone := renderJSON(t, append(args, sheet)...)
+			if len(alone.Quantities) != len(c.Quantities) {
+				t.Fatalf("%s, case %q: %d quantities, --set render has %d", sheet, c.Name, len(c.Quantities), len(alone.Quantities))
+			}
+			for name, want := range alone.Quantities {
+				if got := c.Quantities[name]; compact(got) != compact(want) {
+					t.Errorf("%s, case %q: %s = %s, --set render gives %s", sheet, c.Name, name, got, want)
+				}
+			}
+		}
+	}
+}
+
+func compact(b []byte) string {
+	var c bytes.Buffer
+	if err := json.Compact(&c, b); err != nil {
+		return "invalid: " + string(b)
+	}
+	return c.String()
+}
+
+// caseSheet is a small link with a near and a far case; the far one fails its margin.
+func caseSheet(t *testing.T) string {
+	t.Helper()
+	src := `focus = "link.margin"
+[path]
+distance = "2 km"
+loss = "= fspl(distance, 2.4 GHz)"
+[link]
+sens = "-100 dBm"
+rssi = { is = "= 20 dBm - path.loss", export = true }
+margin = "= rssi - sens"
+[[require]]
+that = "= link.margin >= 0 dB"
+[[case]]
+name = "near"
+set = { "path.distance" = "1 km" }
+[[case]]
+name = "far"
+set = { "path.distance" = "100 km" }
+`
+	// fspl(2 km, 2.4 GHz) = 106.1 dB and fspl(100 km, 2.4 GHz) = 140.0 dB (ITU-R P.525-4
+	// eq. (6), 32.4 + 20 log f(MHz) + 20 log d(km)): the margin is 120 dB − fspl.
+	p := filepath.Join(t.TempDir(), "link.toml")
+	if err := os.WriteFile(p, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+// TestCheckWithOneFailingCase: check exits 1 when any case fails a requirement and says
+// which, in every format; restricted to the passing cases it exits 0.
+func TestCheckWithOneFailingCase(t *testing.T) {
+	sheet := caseSheet(t)
+	code, out, _ := run(t, "check", sheet)
+	if code != ExitFail || !strings.Contains(out, `failed: link.margin >= 0 dB in case "far"`) || strings.Contains(out, `in case "near"`) {
+		t.Fatalf("exit %d:\n%s", code, out)
+	}
+	if code, out, _ := run(t, "check", sheet, "--case", "nominal", "--case", "near"); code != ExitOK {
+		t.Fatalf("passing cases only: exit %d\n%s", code, out)
+	}
+	if code, _, stderr := run(t, "check", sheet, "--case", "fra"); code != ExitUsage || !strings.Contains(stderr, `did you mean "far"?`) {
+		t.Fatalf("unknown case: exit %d\n%s", code, stderr)
+	}
+	_, schema, _ := run(t, "schema", "--check-output")
+	code, js, _ := run(t, "check", sheet, "--format", "json")
+	for _, e := range schematest.Validate([]byte(schema), []byte(js)) {
+		t.Error(e)
+	}
+	var doc struct {
+		Pass   bool `json:"pass"`
+		Sheets []struct {
+			Verdict string `json:"verdict"`
+			Cases   []struct {
+				Name, Verdict string
+			} `json:"cases"`
+		} `json:"sheets"`
+	}
+	if err := json.Unmarshal([]byte(js), &doc); err != nil {
+		t.Fatal(err)
+	}
+	if code != ExitFail || doc.Pass || doc.Sheets[0].Verdict != "fail" || fmt.Sprint(doc.Sheets[0].Cases) != "[{nominal pass} {near pass} {far fail}]" {
+		t.Fatalf("json: exit %d, %+v", code, doc)
+	}
+	_, junit, _ := run(t, "check", sheet, "--format", "junit")
+	if !strings.Contains(junit, `name="require link.margin &gt;= 0 dB [case far]"`) || strings.Count(junit, "<failure") != 1 {
+		t.Errorf("junit:\n%s", junit)
+	}
+	_, gh, _ := run(t, "check", sheet, "--format", "github")
+	if !strings.Contains(gh, `case "far": requirement fails`) || strings.Count(gh, "::error") != 1 {
+		t.Errorf("github:\n%s", gh)
+	}
+}
+
+// TestExportOneOperatingPoint: a header describes one case; where the exported value differs
+// between cases, export asks for --case, and refuses two.
+func TestExportOneOperatingPoint(t *testing.T) {
+	sheet := caseSheet(t)
+	if code, _, stderr := run(t, "export", sheet, "--c-header"); code != ExitUsage || !strings.Contains(stderr, "choose it with --case NAME") {
+		t.Fatalf("ambiguous: exit %d\n%s", code, stderr)
+	}
+	if code, _, stderr := run(t, "export", sheet, "--c-header", "--case", "near", "--case", "far"); code != ExitUsage || !strings.Contains(stderr, "give one --case, not 2") {
+		t.Fatalf("two cases: exit %d\n%s", code, stderr)
+	}
+	_, near, _ := run(t, "export", sheet, "--c-header", "--case", "near")
+	_, far, _ := run(t, "export", sheet, "--c-header", "--case", "far")
+	_, set, _ := run(t, "export", sheet, "--c-header", "--case", "nominal", "--set", "path.distance=100 km")
+	if near == far || far != set {
+		t.Fatalf("near:\n%s\nfar:\n%s\nfar by --set:\n%s", near, far, set)
+	}
+}
+
+// TestBadCasesWriteNothing: a worksheet whose cases are wrong cannot be evaluated (exit 3)
+// and no page is written.
+func TestBadCasesWriteNothing(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "page.md")
+	code, _, stderr := run(t, "render", "../../testdata/invalid/case_errors.toml", "-o", out)
+	if code != ExitBadSheet || !strings.Contains(stderr, "case_errors.toml:13:10: path.distanse: no such quantity") {
+		t.Fatalf("exit %d\n%s", code, stderr)
+	}
+	if _, err := os.Stat(out); err == nil {
+		t.Fatal("a page was written")
+	}
+}
+
+// TestAllCasesAnalyses: the analyses run for the first case by default, for a case with
+// analyses = true, and for every case with --all-cases.
+func TestAllCasesAnalyses(t *testing.T) {
+	analysed := func(doc caseDoc) string {
+		var s []string
+		for _, c := range doc.Cases {
+			s = append(s, fmt.Sprint(c.Analyses))
+		}
+		return strings.Join(s, " ")
+	}
+	barn := "../../worksheets/barn-silo-backhaul.toml"
+	if got := analysed(renderJSON(t, barn)); got != "true false false false false true false" {
+		t.Errorf("default: %s", got)
+	}
+	if got := analysed(renderJSON(t, barn, "--all-cases")); got != "true true true true true true true" {
+		t.Errorf("--all-cases: %s", got)
+	}
+}
+
+// casePage renders the hill relay demo with n−1 cases of other distances and returns its page.
+func casePage(t *testing.T, n int) string {
+	t.Helper()
+	var cases []string
+	for i := 1; i < n; i++ {
+		cases = append(cases, fmt.Sprintf("name = \"hop %d\"\nset = { \"path.distance\" = \"%d km\" }", i, 2+i))
+	}
+	sheet := withCases(t, "../../worksheets/hill-relay-backhaul.toml", cases...)
+	page, _ := render(t, sheet, t.TempDir())
+	return string(page)
+}
+
+// TestCasePagesRead renders pages with 2, 5 and 10 cases: up to 8 side by side in the verdict
+// and the line items, beyond that a row per case and a section per case; every table block is a
+// GFM table.
+func TestCasePagesRead(t *testing.T) {
+	md := goldmark.New(goldmark.WithExtensions(extension.GFM))
+	for _, n := range []int{2, 5, 10} {
+		page := casePage(t, n)
+		var html bytes.Buffer
+		if err := md.Convert([]byte(page), &html); err != nil {
+			t.Fatal(err)
+		}
+		tables := 0
+		for _, line := range strings.Split(page, "\n") {
+			if strings.HasPrefix(line, "| --- |") || strings.HasPrefix(line, "| ---: |") {
+				tables++
+			}
+		}
+		if got := strings.Count(html.String(), "<table>"); got != tables {
+			t.Errorf("%d cases: %d table blocks, %d GFM tables", n, tables, got)
+		}
+		header := "| | nominal |"
+		for i := 1; i < n; i++ {
+			header += fmt.Sprintf(" hop %d |", i)
+		}
+		switch {
+		case n <= 8 && !strings.Contains(page, "\n"+header+"\n"):
+			t.Errorf("%d cases: no verdict column per case", n)
+		case n <= 8 && strings.Contains(page, "### Case "):
+			t.Errorf("%d cases: sections per case on a page whose cases fit side by side", n)
+		case n > 8 && (!strings.Contains(page, "| case | `link.margin_left` | verdict |") || strings.Count(page, "\n### Case ") != n):
+			t.Errorf("%d cases: want a row and a section per case", n)
+		}
+		if n <= 8 {
+			// distance differs between cases, radomes does not: a column per case only for the first
+			if !strings.Contains(page, "| radomes | 1.00 dB |"+strings.Repeat("  |", n-1)) {
+				t.Errorf("%d cases: radomes should show once", n)
+			}
+		}
+	}
+}
