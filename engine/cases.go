@@ -35,7 +35,7 @@ func (c *Case) FocusName(s *Sheet) string {
 	return s.Focus
 }
 
-var caseKeys = []string{"name", "note", "set", "focus", "analyses"}
+var caseKeys = keyNames(caseKeyDocs)
 
 // caseSite remembers where a case's set entries are written, for checking them once the
 // sheet is compiled and every input's type is known.

@@ -56,9 +56,7 @@ type ProductBlock struct {
 }
 
 var (
-	spurKeys    = []string{"name", "note", "lo", "if", "rf", "order", "reject"}
-	productKeys = []string{"name", "note", "tones", "protect", "order"}
-	rejectKey   = regexp.MustCompile(`^([0-9]{1,2})x([0-9]{1,2})$`)
+	rejectKey = regexp.MustCompile(`^([0-9]{1,2})x([0-9]{1,2})$`)
 )
 
 // freqPlan reads the top-level "spurs" or "products" key.
@@ -81,7 +79,7 @@ func (l *loader) spurBlock(f *sheetFile, p string, i int, m map[string]any) {
 	l.checkKeys(f, p, m, spurKeys, "a spurs block's")
 	sb := &SpurBlock{Name: fmt.Sprintf("spurs %d", i+1), Range: f.rangeOf(p)}
 	ok := l.planText(f, who, p, m, &sb.Name, &sb.Note)
-	if missing := missingKeys(m, "lo", "if", "rf"); len(missing) > 0 {
+	if missing := missingKeys(m, spurNeeds...); len(missing) > 0 {
 		l.errAt(sb.Range, who, "a spurs block needs lo, if and rf", "missing %s", strings.Join(missing, ", "))
 		return
 	}
@@ -109,7 +107,7 @@ func (l *loader) productBlock(f *sheetFile, p string, i int, m map[string]any) {
 	l.checkKeys(f, p, m, productKeys, "a products block's")
 	pb := &ProductBlock{Name: fmt.Sprintf("products %d", i+1), Range: f.rangeOf(p)}
 	ok := l.planText(f, who, p, m, &pb.Name, &pb.Note)
-	if missing := missingKeys(m, "tones", "protect"); len(missing) > 0 {
+	if missing := missingKeys(m, productNeeds...); len(missing) > 0 {
 		l.errAt(pb.Range, who, "a products block needs tones and protect", "missing %s", strings.Join(missing, ", "))
 		return
 	}

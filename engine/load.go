@@ -173,8 +173,6 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 	l.document(f, doc)
 }
 
-var topKeys = []string{"title", "summary", "focus", "use", "require", "sweep", "solve", "spurs", "products", "case"}
-
 func (l *loader) document(f *sheetFile, doc map[string]any) {
 	top := &Group{Name: f.prefix, Range: Range{File: f.name, Start: Pos{Line: 1, Col: 1}}}
 	l.sh.Groups = append(l.sh.Groups, top)
@@ -310,8 +308,6 @@ func (l *loader) member(f *sheetFile, g *Group, path, key string, v any) {
 
 // cIdent is what export = "NAME" may be: a C identifier.
 var cIdent = regexp.MustCompile(`^[A-Za-z][A-Za-z0-9_]*$`)
-
-var quantityKeys = []string{"is", "tol", "dist", "note", "show", "source", "export"}
 
 // longForm reports whether a table is a quantity's long form rather than a group: it has
 // "is", or it is an inline table with one of the long form's keys, or it has nothing but them.
@@ -474,8 +470,8 @@ func (l *loader) quantityFields(f *sheetFile, q *Quantity, path string, m map[st
 		}
 	}
 	if d, has := m["dist"].(string); has {
-		if !contains([]string{"normal", "uniform", "triangular"}, d) {
-			l.errAt(f.valueRange(join(path, "dist")), q.Name, didYouMean(d, []string{"normal", "uniform", "triangular"}, "dist is normal, uniform or triangular"), "unknown distribution %q", d)
+		if !contains(distNames, d) {
+			l.errAt(f.valueRange(join(path, "dist")), q.Name, didYouMean(d, distNames, "dist is normal, uniform or triangular"), "unknown distribution %q", d)
 			ok = false
 		} else if q.Tol == nil {
 			l.errAt(f.valueRange(join(path, "dist")), q.Name, "add tol = \"…\"", "dist without tol")
@@ -606,8 +602,6 @@ func unitHint(err error) string {
 	return ""
 }
 
-var stageAllKeys = append([]string{"stage", "note"}, stageKeys...)
-
 func (l *loader) chain(f *sheetFile, g *Group, path, key string, tables []map[string]any) {
 	full := join(g.Name, key)
 	r := f.rangeOf(path + "[0]")
@@ -731,7 +725,7 @@ func (l *loader) checkKeys(f *sheetFile, path string, m map[string]any, allowed 
 func (l *loader) requires(f *sheetFile, v any) {
 	for i, m := range tableList(l, f, "require", v) {
 		p := fmt.Sprintf("require[%d]", i)
-		l.checkKeys(f, p, m, []string{"that", "note"}, "a requirement's")
+		l.checkKeys(f, p, m, requireKeys, "a requirement's")
 		rq := &Require{Range: f.valueRange(join(p, "that"))}
 		rq.Note, _ = m["note"].(string)
 		that, ok := m["that"].(string)
@@ -768,9 +762,9 @@ func (l *loader) qty(f *sheetFile, path string, v any) (units.Q, bool) {
 func (l *loader) sweeps(f *sheetFile, v any) {
 	for i, m := range tableList(l, f, "sweep", v) {
 		p := fmt.Sprintf("sweep[%d]", i)
-		l.checkKeys(f, p, m, []string{"vary", "from", "to", "steps", "scale", "plot"}, "a sweep's")
+		l.checkKeys(f, p, m, sweepKeys, "a sweep's")
 		sw := &Sweep{Range: f.rangeOf(p), Steps: 20}
-		if missing := missingKeys(m, "vary", "from", "to"); len(missing) > 0 {
+		if missing := missingKeys(m, sweepNeeds...); len(missing) > 0 {
 			l.errAt(sw.Range, "sweep", "a sweep needs vary, from and to", "missing %s", strings.Join(missing, ", "))
 			continue
 		}
@@ -819,9 +813,9 @@ func (l *loader) sweeps(f *sheetFile, v any) {
 func (l *loader) solves(f *sheetFile, v any) {
 	for i, m := range tableList(l, f, "solve", v) {
 		p := fmt.Sprintf("solve[%d]", i)
-		l.checkKeys(f, p, m, []string{"name", "vary", "so_that", "equals", "within"}, "a solve's")
+		l.checkKeys(f, p, m, solveKeys, "a solve's")
 		so := &Solve{Range: f.rangeOf(p)}
-		if missing := missingKeys(m, "name", "vary", "so_that", "equals", "within"); len(missing) > 0 {
+		if missing := missingKeys(m, solveNeeds...); len(missing) > 0 {
 			l.errAt(so.Range, "solve", "a solve needs name, vary, so_that, equals and within", "missing %s", strings.Join(missing, ", "))
 			continue
 		}

@@ -156,9 +156,6 @@ type Stage struct {
 	Range  Range
 }
 
-// stageKeys are the value keys a stage may have, in their canonical order.
-var stageKeys = []string{"gain", "nf", "te", "loss", "iip3", "oip3", "ip1db", "op1db", "iip2", "oip2"}
-
 // ChainValue is what a function receives for a chain argument: the evaluated stages in signal order.
 type ChainValue struct {
 	Name   string

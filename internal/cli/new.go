@@ -6,7 +6,16 @@ import (
 	"fmt"
 	"io/fs"
 	"os"
+	"path/filepath"
 )
+
+// schemaFile is the worksheet schema's file name beside a sheet (rfledger schema > it).
+const schemaFile = "rfledger.schema.json"
+
+// schemaDirective heads every sheet new writes: TOML editors (taplo, and those built on it)
+// check the sheet against the schema the directive names, relative to the sheet.
+const schemaDirective = "#:schema ./" + schemaFile + "\n" +
+	"# The line above points editors at the worksheet schema; write it with: rfledger schema > " + schemaFile + "\n"
 
 //go:embed templates/*.toml
 var templates embed.FS
@@ -34,7 +43,7 @@ func cmdNew(e *Env, args []string) int {
 		fmt.Fprintf(e.Stderr, "rfledger new: %v\n", err)
 		return ExitUsage
 	}
-	_, err = f.Write(data)
+	_, err = f.Write(append([]byte(schemaDirective), data...))
 	if cerr := f.Close(); err == nil {
 		err = cerr
 	}
@@ -43,5 +52,13 @@ func cmdNew(e *Env, args []string) int {
 		return ExitUsage
 	}
 	fmt.Fprintf(e.Stdout, "wrote %s; render it with: rfledger render %s\n", pos[0], pos[0])
+	if schema := filepath.Join(filepath.Dir(pos[0]), schemaFile); !exists(schema) {
+		fmt.Fprintf(e.Stdout, "for key completion and checks in an editor: rfledger schema > %s\n", schema)
+	}
 	return ExitOK
+}
+
+func exists(path string) bool {
+	_, err := os.Stat(path)
+	return err == nil
 }

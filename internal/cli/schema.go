@@ -1,6 +1,8 @@
 package cli
 
 import (
+	"fmt"
+
 	"github.com/rfledger/rfledger/internal/report"
 )
 
@@ -12,13 +14,21 @@ func cmdSchema(e *Env, args []string) int {
 	if err != nil {
 		return flagErr(e, fs, err)
 	}
-	if len(pos) > 0 || *check == *render {
-		return usageErr(e, "schema", "want exactly one of --check-output and --render-output")
+	if len(pos) > 0 || (*check && *render) {
+		return usageErr(e, "schema", "want at most one of --check-output and --render-output")
 	}
-	if *check {
+	switch {
+	case *check:
 		_, _ = e.Stdout.Write(report.CheckSchema)
-	} else {
+	case *render:
 		_, _ = e.Stdout.Write(report.RenderSchema)
+	default:
+		b, err := worksheetSchema()
+		if err != nil {
+			fmt.Fprintf(e.Stderr, "rfledger schema: %v\n", err)
+			return ExitUsage
+		}
+		_, _ = e.Stdout.Write(b)
 	}
 	return ExitOK
 }
