@@ -46,6 +46,7 @@ func Load(path string, opt Options) (*Sheet, Diagnostics) {
 	l.compile(opt.Previous)
 	l.checkFocus()
 	l.checkStudies()
+	l.checkMistakes()
 	sh.diags = sortDiags(l.diags)
 	return sh, sh.diags
 }
