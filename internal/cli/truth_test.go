@@ -33,3 +33,15 @@ func TestTruncatedSaveKeepsThePage(t *testing.T) {
 		}
 	}
 }
+
+// TestDiffNamesAMissingRevision: a revision that does not exist is named as such, not
+// reported as a missing file.
+func TestDiffNamesAMissingRevision(t *testing.T) {
+	if _, err := os.Stat("../../.git"); err != nil {
+		t.Skip("not in a git work tree")
+	}
+	code, _, stderr := run(t, "diff", "../../worksheets/field-probe-uplink.toml", "--rev", "nosuch-revision")
+	if code != ExitBadSheet || !strings.Contains(stderr, "--rev nosuch-revision: no such revision") || strings.Contains(stderr, "no such file") {
+		t.Errorf("exit %d, stderr %q", code, stderr)
+	}
+}
