@@ -108,7 +108,7 @@ func (l *loader) checkSolveUnits() {
 				}
 			}
 		}
-		if vq, found := l.sh.Quantity(so.Vary); found {
+		if vq, found := l.sh.Quantity(so.Vary); found && l.sh.nodes[vq.node].ok {
 			in := l.sh.nodes[vq.node].input
 			for _, w := range so.Within {
 				if !sameKind(w, in) {
