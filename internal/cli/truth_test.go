@@ -1,10 +1,15 @@
 package cli
 
 import (
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/internal/rflib"
+	"github.com/rfledger/rfledger/units"
 )
 
 // TestTruncatedSaveKeepsThePage: an editor that saves an empty file first (or a save cut
@@ -43,5 +48,43 @@ func TestDiffNamesAMissingRevision(t *testing.T) {
 	code, _, stderr := run(t, "diff", "../../worksheets/field-probe-uplink.toml", "--rev", "nosuch-revision")
 	if code != ExitBadSheet || !strings.Contains(stderr, "--rev nosuch-revision: no such revision") || strings.Contains(stderr, "no such file") {
 		t.Errorf("exit %d, stderr %q", code, stderr)
+	}
+}
+
+// TestGroundStationGOverT computes the demo ground station's G/T by hand. A lossy feed ahead
+// of the LNA adds its own noise (L − 1)·T0 and divides what follows by its gain 1/L, so,
+// referred to the feed input, T_sys = T_ant + T_rain + (L − 1)·T0 + L·T_LNA, with
+// T_LNA = T0·(10^(NF/10) − 1) (Friis 1944; IEEE Std 100 noise-figure definition, T0 = 290 K),
+// and G/T = G − 10·log10(T_sys / 1 K). The demo once left (L − 1)·T0 out.
+func TestGroundStationGOverT(t *testing.T) {
+	sh, diags := engine.Load("../../worksheets/club-ground-station.toml", engine.Options{Library: rflib.Library()})
+	if diags.HasErrors() {
+		t.Fatal(diags)
+	}
+	r, _ := sh.Eval()
+	num := func(name, unit string) float64 {
+		q, ok := sh.Quantity(name)
+		if !ok {
+			t.Fatalf("no quantity %s", name)
+		}
+		v, _ := r.Value(q)
+		u, err := units.ParseUnit(unit)
+		if err != nil {
+			t.Fatal(err)
+		}
+		x, err := v.In(u)
+		if err != nil {
+			t.Fatalf("%s: %v", name, err)
+		}
+		return x
+	}
+	const t0 = 290.0
+	lossDB, nfDB := num("station.chain[1].loss", "dB"), num("station.chain[2].nf", "dB")
+	l := math.Pow(10, lossDB/10)
+	tLNA := t0 * (math.Pow(10, nfDB/10) - 1)
+	tSys := num("station.t_antenna", "K") + num("station.t_rain", "K") + (l-1)*t0 + l*tLNA
+	want := num("station.gain", "dBi") - 10*math.Log10(tSys)
+	if got := num("station.g_over_t", "dB/K"); math.Abs(got-want) > 0.005 {
+		t.Errorf("G/T = %.3f dB/K, by hand %.3f dB/K", got, want)
 	}
 }
