@@ -81,18 +81,46 @@ func parseFormula(lib *Library, text string) *parsed {
 	}
 	tree, err := parser.ParseWithConfig(src, lib.parserConfig())
 	if err != nil {
-		return &parsed{errs: []ferr{exprErr(err)}}
+		return &parsed{errs: []ferr{exprErr(err, text)}}
 	}
 	return &parsed{tree: tree, lits: lits}
 }
 
 // exprErr turns an expr parse error into a formula error at the same place.
-func exprErr(err error) ferr {
+func exprErr(err error, text string) ferr {
 	var fe *file.Error
 	if errors.As(err, &fe) {
+		if strings.HasPrefix(fe.Message, "unexpected token EOF") {
+			return endedEarly(fe, text)
+		}
 		return ferr{from: fe.From, to: fe.To, msg: fe.Message}
 	}
 	return ferr{from: 0, to: 1, msg: err.Error()}
+}
+
+// endedEarly explains a formula that ends before its expression does: most often an
+// opening parenthesis that is never closed.
+func endedEarly(fe *file.Error, text string) ferr {
+	open := strings.Count(text, "(") - strings.Count(text, ")")
+	if open > 0 {
+		at := strings.LastIndex(text, "(")
+		for depth, i := 0, len(text)-1; i >= 0; i-- {
+			switch text[i] {
+			case ')':
+				depth++
+			case '(':
+				if depth == 0 {
+					at = i
+					i = -1
+				} else {
+					depth--
+				}
+			}
+		}
+		from := utf8.RuneCountInString(text[:at])
+		return ferr{from: from, to: from + 1, msg: "this ( is never closed", hint: "add " + strings.Repeat(")", open) + " where the parenthesis should end"}
+	}
+	return ferr{from: fe.From, to: fe.To, msg: "the formula ends before its expression does", hint: "finish the expression after the last operator"}
 }
 
 // op is what a node of a lowered formula does.

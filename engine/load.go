@@ -46,6 +46,7 @@ type loader struct {
 	reqSites     []site
 	caseSites    []*caseSite
 	focusAt      Range
+	shows        []shownAt // where each `show` is written, checked against the type once known
 }
 
 // site is where a formula stands, to compile it once every name is known.
@@ -442,6 +443,8 @@ func (l *loader) quantityFields(f *sheetFile, q *Quantity, path string, m map[st
 				if err != nil {
 					l.errAt(f.valueRange(join(path, k)), q.Name, unitHint(err), "show: %s", unitMsg(err))
 					ok = false
+				} else {
+					l.shows = append(l.shows, shownAt{q, f.valueRange(join(path, k))})
 				}
 				q.Show = u
 			}
@@ -727,7 +730,7 @@ func (l *loader) requires(f *sheetFile, v any) {
 		p := fmt.Sprintf("require[%d]", i)
 		l.checkKeys(f, p, m, requireKeys, "a requirement's")
 		rq := &Require{Range: f.valueRange(join(p, "that"))}
-		rq.Note, _ = m["note"].(string)
+		rq.Note = l.noteText(f, join(p, "note"), m)
 		that, ok := m["that"].(string)
 		if !ok {
 			l.errAt(f.rangeOf(p), "", "write that = \"= link.margin >= 6 dB\"", "a requirement needs that = \"= formula\"")
@@ -772,7 +775,12 @@ func (l *loader) sweeps(f *sheetFile, v any) {
 		var ok1, ok2 bool
 		sw.From, ok1 = l.qty(f, join(p, "from"), m["from"])
 		sw.To, ok2 = l.qty(f, join(p, "to"), m["to"])
-		if n, ok := m["steps"].(int64); ok {
+		if v, has := m["steps"]; has {
+			n, isInt := v.(int64)
+			if !isInt || n < 2 || n > MaxSweepSteps {
+				l.errAt(f.valueRange(join(p, "steps")), "sweep", "write steps = 40 (a whole number, not in quotes)", "steps must be a whole number from 2 to %d, not %s", MaxSweepSteps, tomlText(v))
+				continue
+			}
 			sw.Steps = int(n)
 		}
 		if sw.Steps < 2 || sw.Steps > MaxSweepSteps {
@@ -786,16 +794,7 @@ func (l *loader) sweeps(f *sheetFile, v any) {
 		default:
 			l.errAt(f.valueRange(join(p, "scale")), "", "", "scale is \"lin\" or \"log\"")
 		}
-		switch pl := m["plot"].(type) {
-		case string:
-			sw.Plot = []string{pl}
-		case []any:
-			for _, e := range pl {
-				if s, ok := e.(string); ok {
-					sw.Plot = append(sw.Plot, s)
-				}
-			}
-		}
+		sw.Plot = l.plotNames(f, join(p, "plot"), m)
 		if sw.Vary == "" || !ok1 || !ok2 {
 			if sw.Vary == "" {
 				l.errAt(sw.Range, "", "", "a sweep needs vary, from and to")
@@ -824,6 +823,7 @@ func (l *loader) solves(f *sheetFile, v any) {
 		so.SoThat, _ = m["so_that"].(string)
 		eq, ok := l.qty(f, join(p, "equals"), m["equals"])
 		so.Equals = eq
+		so.equalsAt, so.withinAt = f.valueRange(join(p, "equals")), f.valueRange(join(p, "within"))
 		w, isList := m["within"].([]any)
 		if !isList || len(w) != 2 {
 			l.errAt(f.rangeOf(p), "", "write within = [\"10 m\", \"100 km\"]", "a solve needs within = [low, high]")

@@ -255,6 +255,8 @@ type Solve struct {
 	Equals units.Q
 	Within [2]units.Q
 	Range  Range
+
+	equalsAt, withinAt Range
 }
 
 // node is one vertex of the dependency graph: a quantity or a chain.

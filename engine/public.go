@@ -48,6 +48,7 @@ func Load(path string, opt Options) (*Sheet, Diagnostics) {
 	l.checkFocus()
 	l.checkStudies()
 	l.checkCases()
+	l.checkMistakes()
 	sh.diags = sortDiags(l.diags)
 	return sh, sh.diags
 }
@@ -197,7 +198,7 @@ func (l *loader) checkStudies() {
 				ok = false
 			}
 		}
-		if ok {
+		if ok && l.sh.nodes[l.sh.byName[sw.Vary]].ok { // an input with an error of its own has no kind to check
 			in := l.sh.nodes[l.sh.byName[sw.Vary]].input
 			if in.D != sw.From.D || in.D != sw.To.D || in.K != sw.From.K || in.K != sw.To.K {
 				l.errAt(sw.Range, "sweep", "write from and to in a unit like the input's", "from and to must be of the same kind as %s (%s)", sw.Vary, l.sh.nodes[l.sh.byName[sw.Vary]].q.Text)

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"strings"
 
 	"github.com/rfledger/rfledger/units"
 )
@@ -163,6 +164,12 @@ func (r *Result) applyAll(set []Override) Diagnostics {
 	return diags
 }
 
+// setHint keeps a unit error's hint for --set, without the worksheet's "= formula", which
+// --set does not take.
+func setHint(h string) string {
+	return strings.TrimSuffix(strings.TrimSuffix(h, ` or "= formula"`), ", or \"= formula\"")
+}
+
 // override checks one override given on the command line and returns the input's node and
 // the value in its type.
 func (s *Sheet) override(o Override) (int, units.Q, *Diagnostic) {
@@ -186,13 +193,16 @@ func (s *Sheet) checkOverride(o Override, keyAt, valAt Range) (int, units.Q, *Di
 	if n.q.Formula != "" {
 		return bad("only inputs can be set; it is \"= "+n.q.Formula+"\"", "derived from a formula")
 	}
+	if rest, isFormula := strings.CutPrefix(strings.TrimSpace(o.Value), "="); isFormula {
+		return bad(fmt.Sprintf("write --set '%s=%s'", o.Name, strings.TrimSpace(rest)), "--set takes a value, not a formula")
+	}
 	if !n.ok {
 		return bad("", "cannot be set: it has an error of its own")
 	}
 	r = valAt
 	v, _, err := units.Parse(o.Value)
 	if err != nil {
-		return bad(unitHint(err), "%s", unitMsg(err))
+		return bad(setHint(unitHint(err)), "%s", unitMsg(err))
 	}
 	if v.D != n.ty.D || (v.K == units.Rate) != (n.ty.K == units.Rate) {
 		return bad("", "is %s; %s is not of the same kind", n.q.Text, o.Value)

@@ -355,7 +355,11 @@ func Compare(a, b Q) (int, error) {
 	case a.IsNumber() && b.IsRatio() || a.IsRatio() && b.IsNumber():
 		return 0, errf(ErrLogLinear, hintBareDB, "cannot compare a plain number with %s", pick(a, b).UnitName())
 	default:
-		return 0, errf(ErrDimension, "", "cannot compare %s with %s", a.UnitName(), b.UnitName())
+		hint := ""
+		if a.IsNumber() || b.IsNumber() {
+			hint = "write the number with its unit, e.g. 0 " + pick(a, b).UnitName()
+		}
+		return 0, errf(ErrDimension, hint, "cannot compare %s with %s", nameOrNumber(a), nameOrNumber(b))
 	}
 	if math.IsNaN(x) || math.IsNaN(y) {
 		return 0, errf(ErrDomain, "", "cannot compare a value that is not a number")

@@ -92,6 +92,13 @@ func gitFS(sheet, rev string) (fs.FS, string, error) {
 	if err != nil {
 		return nil, "", fmt.Errorf("%s is not in a git work tree", sheet)
 	}
+	if strings.HasPrefix(rev, "-") || exec.Command("git", "-C", dir, "rev-parse", "--verify", "--quiet", rev+"^{commit}").Run() != nil {
+		return nil, "", fmt.Errorf("--rev %s: no such revision in the git history of %s; git log --oneline lists the revisions", rev, sheet)
+	}
+	path := strings.TrimSpace(string(prefix)) + filepath.Base(sheet)
+	if exec.Command("git", "-C", dir, "cat-file", "-e", rev+":"+path).Run() != nil {
+		return nil, "", fmt.Errorf("--rev %s: %s was not committed at that revision", rev, sheet)
+	}
 	return &revFS{dir: dir, rev: rev, prefix: strings.TrimSpace(string(prefix))}, filepath.Base(sheet), nil
 }
 

@@ -73,7 +73,7 @@ plot = ["g.margin"]
 name = ` + q(payload) + `
 vary = "g.d"
 so_that = "g.margin"
-equals = "0 dB"
+equals = "0 dBm"
 within = ["10 m", "1000 km"]
 `
 }

@@ -4,6 +4,9 @@ import (
 	"math"
 	"strings"
 	"testing"
+
+	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/internal/sheettest"
 )
 
 func TestConversionAndMathReferences(t *testing.T) {
@@ -66,6 +69,32 @@ func TestConversionErrors(t *testing.T) {
 	for _, c := range cases {
 		if got := evalErr(t, c.formula); !strings.Contains(got, c.want) {
 			t.Errorf("%s: error %q, want %q", c.formula, got, c.want)
+		}
+	}
+}
+
+// TestToShowsTheTargetUnit checks that a conversion within one family of decibel units is
+// shown in the unit asked for: to(6 dBi, 'dBd') once showed "6.00 dBi".
+func TestToShowsTheTargetUnit(t *testing.T) {
+	cases := []struct{ formula, unit, display string }{
+		// dBd = dBi − 2.15 dB: half-wave dipole gain over isotropic (IEEE Std 145, from memory).
+		{"to(6 dBi, 'dBd')", "dBd", "3.85 dBd"},
+		// 0 dBmV is 1 mV by the definition of the unit.
+		{"to(1 mV, 'dBmV')", "dBmV", "0.00 dBmV"},
+		// 0 dBV = 1 V = 120 dBuV by definition.
+		{"to(1 V, 'dBuV')", "dBuV", "120.00 dBuV"},
+	}
+	for _, c := range cases {
+		r, diags := sheettest.Eval("[x]\ny = \"= " + c.formula + "\"\n")
+		if diags.HasErrors() {
+			t.Fatalf("%s: %v", c.formula, diags)
+		}
+		q, _ := r.Sheet().Quantity("x.y")
+		if got := engine.UnitName(q); got != c.unit {
+			t.Errorf("%s: unit %q, want %q", c.formula, got, c.unit)
+		}
+		if got := r.Display(q); got != c.display {
+			t.Errorf("%s: shows %q, want %q", c.formula, got, c.display)
 		}
 	}
 }

@@ -11,7 +11,7 @@ import (
 var noise = []*engine.Func{
 	{
 		Name: "thermal", Args: []engine.Arg{either("b", units.Frequency), optional(either("t", units.Temperature))}, Result: "dBm",
-		Doc:    "Thermal noise power k·T·B in dBm over bandwidth b at temperature t (default T0 = 290 K): −174 dBm/Hz + 10·log10(b/1 Hz) at T0.",
+		Doc:    "Thermal noise power k·T·B in dBm over bandwidth b at temperature t (default T0 = 290 K), with the exact k of the 2019 SI: at T0 that is −173.98 dBm/Hz + 10·log10(b/1 Hz) (often rounded to −174).",
 		Source: "IEEE Std 100 / IRE 1959 noise-figure definition (T0 = 290 K); k from the 2019 SI",
 		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
 			t := rfmath.T0
@@ -45,7 +45,7 @@ var noise = []*engine.Func{
 	},
 	{
 		Name: "sensitivity", Args: []engine.Arg{ratio("nf"), either("b", units.Frequency), ratio("snr")}, Result: "dBm",
-		Doc:    "Receiver sensitivity: the input level that gives the required SNR, −174 dBm/Hz + 10·log10(B/1 Hz) + NF + SNR (k·T0·B with T0 = 290 K).",
+		Doc:    "Receiver sensitivity: the input level that gives the required SNR, k·T0·B + NF + SNR with T0 = 290 K and the exact k: −173.98 dBm/Hz + 10·log10(B/1 Hz) + NF + SNR.",
 		Source: "IEEE Std 100 / IRE 1959 noise-figure definition (T0 = 290 K); k from the 2019 SI",
 		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
 			return result(rfmath.Sensitivity(q(a, 0), q(a, 1), q(a, 2)), uDBm, "sensitivity")

@@ -202,7 +202,7 @@ func TestPropagationErrors(t *testing.T) {
 func TestLogdistImpossible(t *testing.T) {
 	for _, c := range []struct{ formula, want string }{
 		{"logdist(1 km, 1 GHz, 0 m, 3)", "logdist: the reference distance d0 = 0 m must be positive"},
-		{"logdist(1 km, 1 GHz, -1 m, 3)", "logdist: the reference distance d0 = -1 m must be positive"},
+		{"logdist(1 km, 1 GHz, -1 m, 3)", "logdist: d0: a distance cannot be negative (got -1 m)"},
 		{"logdist(1 km, 1 GHz, 1 m, -2)", "logdist: the path-loss exponent n = -2 is negative"},
 	} {
 		if got := evalErr(t, c.formula); !strings.Contains(got, c.want) {

@@ -36,7 +36,46 @@ func Library() *engine.Library {
 		fs = append(fs, family...)
 	}
 	fs = append(fs, extra...)
+	for i, f := range fs {
+		fs[i] = refuseNegative(f)
+	}
 	return engine.NewLibrary(fs...)
+}
+
+// magnitudes names the arguments that are a distance, a frequency (or a rate) or an absolute
+// temperature, none of which can be negative; heights are left out (a clearance may be).
+var magnitudes = map[string]string{
+	"d": "distance", "d0": "distance", "d1": "distance", "d2": "distance",
+	"f": "frequency", "fs": "sample rate", "b": "bandwidth", "gross": "rate", "rate": "rate",
+	"t": "temperature", "te": "noise temperature", "tm": "temperature",
+}
+
+// refuseNegative returns f with a Call that refuses a negative distance, frequency, rate or
+// temperature by name ("d: a distance cannot be negative (got -2 km)"), before the model sees
+// it and reports a number that is not finite, or a warning that does not fit.
+func refuseNegative(f *engine.Func) *engine.Func {
+	var idx []int
+	for i, a := range f.Args {
+		if _, ok := magnitudes[a.Name]; ok && a.Kind == engine.ArgQuantity && (a.Form == engine.LinearOnly || a.Form == engine.AsLinear) &&
+			(a.Dim == units.Length || a.Dim == units.Frequency || a.Dim == units.Temperature) {
+			idx = append(idx, i)
+		}
+	}
+	if len(idx) == 0 || f.Call == nil {
+		return f
+	}
+	g := *f
+	call := f.Call
+	g.Call = func(c *engine.Call, a []engine.Value) (units.Q, error) {
+		for _, i := range idx {
+			if i < len(a) && (i < len(f.Args) && !f.Args[i].Optional || has(a, i)) && a[i].Q.V < 0 {
+				name := f.Args[i].Name
+				return units.Q{}, fmt.Errorf("%s: a %s cannot be negative (got %s)", name, magnitudes[name], a[i].Q)
+			}
+		}
+		return call(c, a)
+	}
+	return &g
 }
 
 // extra collects families registered from other files of this package.
@@ -103,7 +142,7 @@ func in(v float64, u *units.Unit) units.Q { return u.Of(v) }
 // result checks a computed number: NaN or infinity means the inputs were outside the model.
 func result(v float64, u *units.Unit, what string) (units.Q, error) {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return units.Q{}, fmt.Errorf("%s is not a finite number for these inputs", what)
+		return units.Q{}, fmt.Errorf("%s has no finite value for these inputs (a zero or an argument outside the model's range)", what)
 	}
 	return u.Of(v), nil
 }

@@ -43,7 +43,7 @@ func TeToNF(te float64) float64 {
 //
 //	S = 10 log10(k T0 B / 1 mW) + NF + SNR
 //
-// (−174 dBm/Hz + 10 log10 B + NF + SNR). Source: IEEE noise-figure definition
+// (−173.98 dBm/Hz with the exact k, often rounded to −174, + 10 log10 B + NF + SNR). Source: IEEE noise-figure definition
 // with T0 = 290 K. It returns NaN unless b > 0.
 func Sensitivity(nfDB, b, snrDB float64) float64 {
 	if !positive(b) {

@@ -11,7 +11,7 @@ var kDB = 10 * math.Log10(KB)
 //
 //	C/N0 = EIRP − L + G/T − 10 log10(k)
 //
-// (10 log10 k ≈ −228.6 dBW/(K·Hz)). Source: standard satellite link equation
+// (10 log10 k = −228.60 dBW/(K·Hz) with the exact k of the 2019 SI). Source: standard satellite link equation
 // (Maral & Bousquet, Satellite Communications Systems).
 func CN0(eirpDBW, lossDB, gtDBK float64) float64 {
 	return eirpDBW - lossDB + gtDBK - kDB
