@@ -39,8 +39,10 @@ var (
 	blue          = color.RGBA{0x00, 0x72, 0xb2, 0xff}
 	vermillion    = color.RGBA{0xd5, 0x5e, 0x00, 0xff}
 	reddishPurple = color.RGBA{0xcc, 0x79, 0xa7, 0xff}
-	gridGrey      = color.RGBA{0xc8, 0xc8, 0xc8, 0xff}
-	darkGrey      = color.RGBA{0x66, 0x66, 0x66, 0xff}
+	// Mid grey, the one grey that reads on a white and on a near-black page
+	// alike; the grid is the same grey, faint.
+	darkGrey = color.RGBA{0x80, 0x80, 0x80, 0xff}
+	gridGrey = color.NRGBA{0x80, 0x80, 0x80, 0x66}
 )
 
 // seriesColors is the order data series take colours in.
@@ -82,6 +84,7 @@ var sans = font.Font{Typeface: "Liberation", Variant: "Sans"}
 // newPlot returns a plot with the common title, label and grid settings.
 func newPlot(title, xlabel, ylabel string) *plot.Plot {
 	p := plot.New()
+	p.BackgroundColor = nil // transparent: the chart takes the page's light or dark background
 	p.Title.Text = title
 	p.Title.TextStyle.Font = font.Font{Typeface: sans.Typeface, Variant: sans.Variant, Weight: xfont.WeightBold, Size: vg.Points(12)}
 	p.Title.Padding = vg.Points(6)
@@ -166,8 +169,40 @@ func render(w io.Writer, p *plot.Plot, width, height vg.Length) (err error) {
 	out := bytes.ReplaceAll(buf.Bytes(),
 		[]byte("font-family:Liberation Sans;"),
 		[]byte("font-family:Liberation Sans,sans-serif;"))
+	out = adaptive(out)
 	_, err = w.Write(out)
 	return err
+}
+
+// schemeStyle makes a chart read on light and dark pages: text, axes and the
+// black marker lines take the SVG's own colour, which is near-black and turns
+// near-white when the viewer prefers a dark scheme. The background is left
+// transparent, so the chart sits on whatever the page behind it is.
+const schemeStyle = "<style>svg{color:#1b1b1b}text{fill:currentColor}" +
+	"@media (prefers-color-scheme:dark){svg{color:#e4e4e4}}</style>\n"
+
+// adaptive rewrites the drawing's black into currentColor and puts
+// schemeStyle right after the opening svg tag. The black of the palette is
+// only ever used for the foreground (axes, ticks, zero and threshold lines).
+func adaptive(svg []byte) []byte {
+	svg = bytes.ReplaceAll(svg, []byte("stroke:#000000"), []byte("stroke:currentColor"))
+	svg = bytes.ReplaceAll(svg, []byte("fill:#000000"), []byte("fill:currentColor"))
+	i := bytes.Index(svg, []byte("<svg"))
+	if i < 0 {
+		return svg
+	}
+	j := bytes.IndexByte(svg[i:], '>')
+	if j < 0 {
+		return svg
+	}
+	at := i + j + 1
+	if at < len(svg) && svg[at] == '\n' {
+		at++
+	}
+	out := make([]byte, 0, len(svg)+len(schemeStyle))
+	out = append(out, svg[:at]...)
+	out = append(out, schemeStyle...)
+	return append(out, svg[at:]...)
 }
 
 // legendEntry is one line of a legend box.
@@ -176,7 +211,7 @@ type legendEntry struct {
 	thumbs []plot.Thumbnailer
 }
 
-// legendBox is a plotter, added last, that draws a legend on a white box in
+// legendBox is a plotter, added last, that draws a legend on a faintly tinted box in
 // whichever corner of the data area covers the least data. obstacles are the
 // drawn polylines in data coordinates.
 type legendBox struct {
@@ -255,7 +290,7 @@ func (l *legendBox) Plot(c draw.Canvas, p *plot.Plot) {
 	}
 	m := corners[best]
 	box := vg.Rectangle{Min: m, Max: vg.Point{X: m.X + w, Y: m.Y + h}}
-	c.FillPolygon(color.NRGBA{0xff, 0xff, 0xff, 0xe0}, rectLine(box)[:4])
+	c.FillPolygon(color.NRGBA{0x80, 0x80, 0x80, 0x1a}, rectLine(box)[:4])
 	c.StrokeLines(draw.LineStyle{Color: color.Gray{0x99}, Width: vg.Points(0.5)}, rectLine(box))
 
 	for _, e := range l.entries {

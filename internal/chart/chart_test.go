@@ -187,6 +187,16 @@ func TestChartsRender(t *testing.T) {
 			if !strings.Contains(s, "font-family:Liberation Sans,sans-serif;") {
 				t.Errorf("SVG text has no generic font fallback")
 			}
+			// Light and dark pages: no opaque white or black paint, and the
+			// foreground colour follows prefers-color-scheme.
+			for _, bad := range []string{"fill:#FFFFFF", "fill:#000000", "stroke:#000000", "stroke:#FFFFFF"} {
+				if strings.Contains(s, bad) {
+					t.Errorf("SVG paints %q, which vanishes on a light or a dark page", bad)
+				}
+			}
+			if !strings.Contains(s, "@media (prefers-color-scheme:dark)") || !strings.Contains(s, "text{fill:currentColor}") {
+				t.Errorf("SVG does not follow the viewer's colour scheme")
+			}
 			if dir != "" {
 				if err := os.WriteFile(filepath.Join(dir, c.name+".svg"), a.Bytes(), 0o644); err != nil {
 					t.Fatal(err)
