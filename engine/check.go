@@ -316,8 +316,9 @@ func cmpHolds(o op) func(p, q float64) bool {
 func toLinearFn(f evalFn, t units.Q) evalFn {
 	return func(r *Result) (float64, error) {
 		v, err := f(r)
-		t.V = v
-		return t.Linear().V, err
+		q := t // the closure is shared by every evaluation: never write to t
+		q.V = v
+		return q.Linear().V, err
 	}
 }
 
