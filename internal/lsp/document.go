@@ -8,6 +8,7 @@ import (
 
 	"go.lsp.dev/protocol"
 
+	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/engine"
 )
 
@@ -93,7 +94,7 @@ type evaluation struct {
 	byLine map[int][]*engine.Quantity // the file's quantities by 1-based line (built on first use)
 	lines  []int                      // byLine's keys in order
 
-	analysis *engine.Analysis // the analyses (sensitivity), on first use
+	analysis *analysis.Analysis // the analyses (sensitivity), on first use
 	analyzed bool
 }
 
@@ -170,12 +171,12 @@ func (ev *evaluation) quantitiesAt(file string, line int) []*engine.Quantity {
 
 // analyze runs the analyses once per evaluation, with one Monte Carlo trial: the language
 // server wants the sensitivities, not the tolerance spread.
-func (ev *evaluation) analyze() *engine.Analysis {
+func (ev *evaluation) analyze() *analysis.Analysis {
 	if !ev.analyzed && ev.sheet != nil && ev.sheet.Focus != "" {
 		ev.analyzed = true
 		func() {
 			defer func() { _ = recover() }()
-			ev.analysis, _ = engine.Analyze(ev.result, engine.AnalysisOptions{Trials: 1, Workers: 1})
+			ev.analysis, _ = analysis.Analyze(ev.result, analysis.Options{Trials: 1, Workers: 1})
 		}()
 	}
 	return ev.analysis
