@@ -63,7 +63,7 @@ func (t text) position(off int) protocol.Position {
 	i := lineOf(t.lines, off)
 	l, start := t.line(i)
 	col := min(off-start, len(l))
-	for col > 0 && !utf8.RuneStart(l[col]) {
+	for col > 0 && col < len(l) && !utf8.RuneStart(l[col]) {
 		col--
 	}
 	return protocol.Position{Line: uint32(i), Character: uint32(utf16Count(l[:col]))}
