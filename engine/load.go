@@ -282,7 +282,7 @@ func (l *loader) member(f *sheetFile, g *Group, path, key string, v any) {
 // cIdent is what export = "NAME" may be: a C identifier.
 var cIdent = regexp.MustCompile(`^[A-Za-z][A-Za-z0-9_]*$`)
 
-var quantityKeys = []string{"is", "tol", "dist", "note", "show", "source", "export"}
+var quantityKeys = []string{"is", "tol", "dist", "note", "show", "source", "export", "sigma"}
 
 // longForm reports whether a table is a quantity's long form rather than a group: it has
 // "is", or it is an inline table with one of the long form's keys, or it has nothing but them.
@@ -359,7 +359,7 @@ func (l *loader) quantityFields(f *sheetFile, q *Quantity, path string, m map[st
 	ok = true
 	for _, k := range l.ordered(f, path, m) {
 		if !contains(quantityKeys, k) {
-			l.errAt(f.rangeOf(keyJoin(path, k)), q.Name, didYouMean(k, quantityKeys, "a quantity's keys are is, tol, dist, note, show, source, export"), "unknown key %q", k)
+			l.errAt(f.rangeOf(keyJoin(path, k)), q.Name, didYouMean(k, quantityKeys, "a quantity's keys are is, tol, sigma, dist, note, show, source, export"), "unknown key %q", k)
 			ok = false
 		}
 	}
@@ -441,28 +441,30 @@ func (l *loader) quantityFields(f *sheetFile, q *Quantity, path string, m map[st
 			q.Tol = t
 		}
 	}
+	if v, has := m["sigma"]; has {
+		ok = l.sigma(f, q, path, v, m) && ok
+	}
 	if d, has := m["dist"].(string); has {
 		if !contains([]string{"normal", "uniform", "triangular"}, d) {
 			l.errAt(f.valueRange(join(path, "dist")), q.Name, didYouMean(d, []string{"normal", "uniform", "triangular"}, "dist is normal, uniform or triangular"), "unknown distribution %q", d)
 			ok = false
 		} else if q.Tol == nil {
-			l.errAt(f.valueRange(join(path, "dist")), q.Name, "add tol = \"…\"", "dist without tol")
+			if m["sigma"] == nil {
+				l.errAt(f.valueRange(join(path, "dist")), q.Name, "add tol = \"…\"", "dist without tol")
+			}
 		} else {
 			q.Tol.Dist = d
 		}
 	}
 	if q.Tol != nil && q.Formula != "" {
-		l.errAt(f.valueRange(join(path, "tol")), q.Name, "put the tolerance on the inputs the formula uses", "a derived quantity cannot have a tolerance")
+		l.errAt(f.valueRange(join(path, q.Tol.keyName())), q.Name, "put the tolerance on the inputs the formula uses", "a derived quantity cannot have a tolerance")
 		ok = false
 	}
 	if q.Tol != nil && q.Tol.Dist == "" {
 		q.Tol.Dist = "normal"
 	}
 	if ok && q.Tol != nil && q.Formula == "" {
-		if _, _, err := q.Tol.Limits(value); err != nil {
-			l.errAt(f.valueRange(join(path, "tol")), q.Name, unitHint(err), "tol %s does not fit %s: %s", q.Tol.Text, q.Text, unitMsg(err))
-			ok = false
-		}
+		ok = l.checkTolerance(f, q, path, value)
 	}
 	return value, ok
 }
@@ -472,6 +474,9 @@ func parseTol(v any) (*Tol, error) {
 	case string:
 		q, u, err := units.Parse(v)
 		if err != nil {
+			return nil, err
+		}
+		if err := absoluteLevelTol(u); err != nil {
 			return nil, err
 		}
 		if q.V < 0 {
@@ -501,6 +506,9 @@ func parseTol(v any) (*Tol, error) {
 			}
 			if u.HasOffset() {
 				return nil, &units.Error{Msg: fmt.Sprintf("a tolerance in %s would be read from its zero point", u.Sym), Hint: "write a temperature tolerance in K (2 K is 2 °C of difference)"}
+			}
+			if err := absoluteLevelTol(u); err != nil {
+				return nil, err
 			}
 			qs[i], us[i] = q, u
 		}
