@@ -118,6 +118,7 @@ var topKeyDocs = []Key{
 var quantityKeyDocs = []Key{
 	{Name: "is", Required: true, Doc: `The value: a number, a number with its unit in quotes ("14 dBm"), or a formula ("= power - cable").`},
 	{Name: "tol", Doc: `An input's tolerance: "1 dB" (plus or minus), "10 %" (relative) or ["-0.5 dB", "+1.5 dB"] (low and high). A formula takes no tolerance; put it on the inputs.`},
+	{Name: "sigma", Doc: `An input's standard deviation given directly, e.g. sigma = "8 dB" for shadowing (instead of tol, whose normal limit is 3σ).`},
 	{Name: "dist", Doc: "How the tolerance is spread in the Monte Carlo run: normal (the default; tol is the 3-sigma limit), uniform or triangular. Needs tol."},
 	{Name: "note", Doc: "A remark shown beside the value on the page."},
 	{Name: "show", Doc: `The unit the value is shown in ("km", "dBm"), instead of the unit it was written in or that its formula gives.`},

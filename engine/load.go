@@ -385,7 +385,7 @@ func (l *loader) quantityFields(f *sheetFile, q *Quantity, path string, m map[st
 	ok = true
 	for _, k := range l.ordered(f, path, m) {
 		if !contains(quantityKeys, k) {
-			l.errAt(f.rangeOf(keyJoin(path, k)), q.Name, didYouMean(k, quantityKeys, "a quantity's keys are is, tol, dist, note, show, source, export"), "unknown key %q", k)
+			l.errAt(f.rangeOf(keyJoin(path, k)), q.Name, didYouMean(k, quantityKeys, "a quantity's keys are is, tol, sigma, dist, note, show, source, export"), "unknown key %q", k)
 			ok = false
 		}
 	}
@@ -472,28 +472,30 @@ func (l *loader) quantityFields(f *sheetFile, q *Quantity, path string, m map[st
 			q.Tol = t
 		}
 	}
+	if v, has := m["sigma"]; has {
+		ok = l.sigma(f, q, path, v, m) && ok
+	}
 	if d, has := m["dist"].(string); has {
 		if !contains(distNames, d) {
 			l.errAt(f.valueRange(join(path, "dist")), q.Name, didYouMean(d, distNames, "dist is normal, uniform or triangular"), "unknown distribution %q", d)
 			ok = false
 		} else if q.Tol == nil {
-			l.errAt(f.valueRange(join(path, "dist")), q.Name, "add tol = \"…\"", "dist without tol")
+			if m["sigma"] == nil {
+				l.errAt(f.valueRange(join(path, "dist")), q.Name, "add tol = \"…\"", "dist without tol")
+			}
 		} else {
 			q.Tol.Dist = d
 		}
 	}
 	if q.Tol != nil && q.Formula != "" {
-		l.errAt(f.valueRange(join(path, "tol")), q.Name, "put the tolerance on the inputs the formula uses", "a derived quantity cannot have a tolerance")
+		l.errAt(f.valueRange(join(path, q.Tol.keyName())), q.Name, "put the tolerance on the inputs the formula uses", "a derived quantity cannot have a tolerance")
 		ok = false
 	}
 	if q.Tol != nil && q.Tol.Dist == "" {
 		q.Tol.Dist = "normal"
 	}
 	if ok && q.Tol != nil && q.Formula == "" {
-		if _, _, err := q.Tol.Limits(value); err != nil {
-			l.errAt(f.valueRange(join(path, "tol")), q.Name, unitHint(err), "tol %s does not fit %s: %s", q.Tol.Text, q.Text, unitMsg(err))
-			ok = false
-		}
+		ok = l.checkTolerance(f, q, path, value)
 	}
 	return value, ok
 }
@@ -503,6 +505,9 @@ func parseTol(v any) (*Tol, error) {
 	case string:
 		q, u, err := units.Parse(v)
 		if err != nil {
+			return nil, err
+		}
+		if err := absoluteLevelTol(u); err != nil {
 			return nil, err
 		}
 		if q.V < 0 {
@@ -532,6 +537,9 @@ func parseTol(v any) (*Tol, error) {
 			}
 			if u.HasOffset() {
 				return nil, &units.Error{Msg: fmt.Sprintf("a tolerance in %s would be read from its zero point", u.Sym), Hint: "write a temperature tolerance in K (2 K is 2 °C of difference)"}
+			}
+			if err := absoluteLevelTol(u); err != nil {
+				return nil, err
 			}
 			qs[i], us[i] = q, u
 		}

@@ -105,18 +105,26 @@ func (q *Quantity) DisplayUnit() *units.Unit {
 }
 
 // Tol is a tolerance: ±Plus/−Minus in the quantity's unit, or relative (fractions of the
-// linear value) when Relative. Dist is "normal" (limits are 3σ), "uniform" or "triangular".
+// linear value) when Relative, or in dB of a linear value when Decibel. Dist is "normal"
+// (limits are 3σ), "uniform" or "triangular". Sigma says it was written as a standard
+// deviation (sigma = "8 dB"): the limits are then ±3σ.
 type Tol struct {
 	Text        string
 	Minus, Plus units.Q
 	Relative    bool
 	RelMinus    float64
 	RelPlus     float64
+	Decibel     bool
+	Sigma       bool
 	Dist        string
+	key         string // the key it was written under: "tol" or "sigma"
 }
 
 // Limits returns the low and high values of a quantity with nominal value nom.
 func (t *Tol) Limits(nom units.Q) (lo, hi units.Q, err error) {
+	if t.Decibel && nom.K == units.Linear {
+		return t.decibelLimits(nom)
+	}
 	if t.Relative {
 		lin := nom.Linear()
 		lo, hi = lin, lin

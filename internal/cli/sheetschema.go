@@ -68,9 +68,10 @@ func valueSchemas(ks engine.KeySet) map[string]map[string]obj {
 			"spurs": listOf(ref("spurs")), "products": listOf(ref("products")), "case": listOf(ref("case")),
 		},
 		"quantity": {
-			"is":   {"type": []any{"string", "number"}, "pattern": quantityPattern},
-			"tol":  {"type": []any{"string", "array"}, "pattern": valuePattern, "items": freq, "minItems": 2, "maxItems": 2},
-			"dist": {"enum": stringsAny(ks.Dists)}, "note": text(), "show": text(), "source": text(),
+			"is":    {"type": []any{"string", "number"}, "pattern": quantityPattern},
+			"tol":   {"type": []any{"string", "array"}, "pattern": valuePattern, "items": freq, "minItems": 2, "maxItems": 2},
+			"sigma": {"type": "string", "pattern": valuePattern},
+			"dist":  {"enum": stringsAny(ks.Dists)}, "note": text(), "show": text(), "source": text(),
 			"export": {"type": []any{"boolean", "string"}, "pattern": ks.MacroPattern},
 		},
 		"stage":   stage,

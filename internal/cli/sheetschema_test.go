@@ -33,6 +33,7 @@ var allKeysSheet = []struct{ tables, line string }{
 	{"top case", `case = [{ name = "far", note = "the farthest node", set = { "path.distance" = "5 km" }, focus = "link.margin", analyses = true }]`},
 	{"", `[tx]`},
 	{"quantity", `power = { is = "14 dBm", tol = "1 dB", dist = "uniform", note = "at full setting", show = "dBm", source = "radio datasheet", export = "TX_POWER_DBM" }`},
+	{"quantity", `shadow = { is = "0 dB", sigma = "8 dB" }`},
 	{"", `[path]`},
 	{"", `distance = "2 km"`},
 	{"", `frequency = "868 MHz"`},

@@ -176,7 +176,7 @@ func tolText(t *engine.Tol) string {
 		return ""
 	}
 	s := t.Text
-	if !strings.Contains(s, "/") {
+	if !strings.Contains(s, "/") && !t.Sigma {
 		s = "±" + s
 	}
 	return s + " (" + t.Dist + ")"
