@@ -23,15 +23,7 @@ func evalSrc(t testing.TB, src string, set ...engine.Override) *engine.Result {
 
 func evalFile(t testing.TB, path string, set ...engine.Override) *engine.Result {
 	t.Helper()
-	sh, diags := engine.Load(path, engine.Options{Library: lib})
-	if err := diags.Err(); err != nil {
-		t.Fatal(err)
-	}
-	r, diags := sh.Eval(set...)
-	if err := diags.Err(); err != nil {
-		t.Fatal(err)
-	}
-	return r
+	return sheettest.EvalFile(t, path, set...)
 }
 
 // loadValid loads and evaluates a sheet of testdata/valid.
@@ -48,9 +40,7 @@ func value(t testing.TB, r *engine.Result, name, unit string) float64 {
 
 func near(t testing.TB, what string, got, want, tol float64) {
 	t.Helper()
-	if math.IsNaN(got) || math.Abs(got-want) > tol {
-		t.Errorf("%s = %.12g, want %.12g (±%g)", what, got, want, tol)
-	}
+	sheettest.Near(t, what, got, want, tol)
 }
 
 // fsplDB is free-space basic transmission loss, ITU-R P.525-4 eq. (4):

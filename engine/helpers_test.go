@@ -37,9 +37,7 @@ func value(t testing.TB, sh *engine.Result, name, unit string) float64 {
 
 func near(t testing.TB, what string, got, want, tol float64) {
 	t.Helper()
-	if math.IsNaN(got) || math.Abs(got-want) > tol {
-		t.Errorf("%s = %.12g, want %.12g (±%g)", what, got, want, tol)
-	}
+	sheettest.Near(t, what, got, want, tol)
 }
 
 // fsplDB is free-space basic transmission loss, ITU-R P.525-4 eq. (4):
@@ -70,13 +68,5 @@ func sheetFromFiles(files map[string]string, prev *engine.Sheet) (*engine.Sheet,
 // evalFile loads and evaluates a worksheet file and fails the test on any error.
 func evalFile(t testing.TB, path string, set ...engine.Override) *engine.Result {
 	t.Helper()
-	sh, diags := engine.Load(path, engine.Options{Library: lib})
-	if err := diags.Err(); err != nil {
-		t.Fatal(err)
-	}
-	r, diags := sh.Eval(set...)
-	if err := diags.Err(); err != nil {
-		t.Fatal(err)
-	}
-	return r
+	return sheettest.EvalFile(t, path, set...)
 }

@@ -3,6 +3,7 @@
 package sheettest
 
 import (
+	"math"
 	"testing"
 	"testing/fstest"
 
@@ -58,4 +59,27 @@ func Value(t testing.TB, r *engine.Result, name, unit string) float64 {
 		t.Fatalf("%s = %s in %s: %v", name, v, unit, err)
 	}
 	return x
+}
+
+// EvalFile loads and evaluates a worksheet file with the overrides, failing the test on any
+// error.
+func EvalFile(t testing.TB, path string, set ...engine.Override) *engine.Result {
+	t.Helper()
+	sh, diags := engine.Load(path, engine.Options{Library: Lib})
+	if err := diags.Err(); err != nil {
+		t.Fatal(err)
+	}
+	r, diags := sh.Eval(set...)
+	if err := diags.Err(); err != nil {
+		t.Fatal(err)
+	}
+	return r
+}
+
+// Near fails the test when got is not within tol of want (or is NaN).
+func Near(t testing.TB, what string, got, want, tol float64) {
+	t.Helper()
+	if math.IsNaN(got) || math.Abs(got-want) > tol {
+		t.Errorf("%s = %.12g, want %.12g (±%g)", what, got, want, tol)
+	}
 }
