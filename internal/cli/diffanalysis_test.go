@@ -202,7 +202,9 @@ func TestDiffEditedBound(t *testing.T) {
 		t.Errorf("a loosened bound: exit %d\n%s", code, stderr)
 	}
 	_, out, _ = run(t, "diff", "--format", "json", a, b)
-	var doc struct{ Requirements []struct{ That, Was, Old, New string } }
+	var doc struct {
+		Requirements []struct{ That, Was, Old, New string }
+	}
 	if err := json.Unmarshal([]byte(out), &doc); err != nil {
 		t.Fatal(err)
 	}
