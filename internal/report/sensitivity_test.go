@@ -7,6 +7,7 @@ import (
 
 	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/internal/schematest"
+	"github.com/rfledger/rfledger/units"
 )
 
 // sensSheet is a sum of decibel terms (each moves m by its coefficient per dB, exactly) and
@@ -101,5 +102,30 @@ func TestWorstCaseCornersOnThePage(t *testing.T) {
 	// d at its low limit, 1.8 km, is 1800 m in SI.
 	if far["input"] != "d" || far["limit"] != "low" || far["si"] != 1800.0 || far["si_unit"] != "m" {
 		t.Errorf("worst high corner[1] = %v", far)
+	}
+}
+
+// TestSensitivityLinearFocusZero: a linear focus prints with 4 significant digits (FormatNum),
+// so a change below half its last digit is named among the inputs with no visible effect,
+// and one above it keeps its row. r = d + x·1 m: +10 % of d (2 km) adds 200 m, +10 % of x (2)
+// adds 0.2 m to r ≈ 2002 m, whose last printed digit is 1 m (exact arithmetic).
+func TestSensitivityLinearFocusZero(t *testing.T) {
+	page, _ := Markdown(analysed(t, "focus = \"r\"\nd = \"2 km\"\nx = 2\nr = \"= d + x * 1 m\"\n"))
+	s := string(page)
+	sec := s[strings.Index(s, "## Sensitivity"):strings.Index(s, "## Tolerance")]
+	if !strings.Contains(sec, "| `d` | +") || !strings.Contains(sec, "No visible effect (too small to change the focus in its 4 significant digits): `x`.") {
+		t.Errorf("sensitivity of a linear focus:\n%s", sec)
+	}
+	// The rule agrees with the formatter on either side of half a last digit.
+	for _, c := range []struct {
+		f0, v float64
+		zero  bool
+	}{{2002, 0.2, true}, {2002, 0.7, false}, {0.02345, 0.000004, true}, {0.02345, 0.000006, false}} {
+		if got := printsAsZero(c.v, "m", c.f0); got != c.zero {
+			t.Errorf("printsAsZero(%g, f0 %g) = %v", c.v, c.f0, got)
+		}
+		if same := units.FormatNum(c.f0+c.v) == units.FormatNum(c.f0); same != c.zero {
+			t.Errorf("FormatNum(%g + %g) == FormatNum(%g) is %v, want %v", c.f0, c.v, c.f0, same, c.zero)
+		}
 	}
 }
