@@ -12,6 +12,23 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 )
 
+// gitRepo makes an empty folder for a git repository and returns it with a function that runs
+// git there (skipping the test when git is not installed).
+func gitRepo(t *testing.T) (string, func(args ...string)) {
+	t.Helper()
+	if _, err := exec.LookPath("git"); err != nil {
+		t.Skip("git not installed")
+	}
+	dir := t.TempDir()
+	return dir, func(args ...string) {
+		t.Helper()
+		cmd := exec.Command("git", append([]string{"-C", dir, "-c", "user.name=t", "-c", "user.email=t@example.invalid"}, args...)...)
+		if out, err := cmd.CombinedOutput(); err != nil {
+			t.Fatalf("git %v: %v\n%s", args, err, out)
+		}
+	}
+}
+
 func writeSheet(t *testing.T, dir, name, src string) string {
 	t.Helper()
 	f := filepath.Join(dir, name)
@@ -144,17 +161,7 @@ func TestDiffSolvesAndMonteCarlo(t *testing.T) {
 // sheet with the working one (real git) and exits 1 when a requirement that held fails now,
 // 0 when every requirement that held still holds.
 func TestDiffRevExitCode(t *testing.T) {
-	if _, err := exec.LookPath("git"); err != nil {
-		t.Skip("git not installed")
-	}
-	dir := t.TempDir()
-	git := func(args ...string) {
-		t.Helper()
-		cmd := exec.Command("git", append([]string{"-C", dir, "-c", "user.name=t", "-c", "user.email=t@example.invalid"}, args...)...)
-		if out, err := cmd.CombinedOutput(); err != nil {
-			t.Fatalf("git %v: %v\n%s", args, err, out)
-		}
-	}
+	dir, git := gitRepo(t)
 	src := func(p string) string {
 		return "focus = \"m\"\np = \"" + p + "\"\nm = \"= p - 3 dB\"\n[[require]]\nthat = \"= m >= 5 dBm\"\n[[require]]\nthat = \"= p <= 20 dBm\"\n"
 	}
