@@ -299,6 +299,8 @@ func toleranceMarkdown(d *diffTolerance) string {
 		}))
 		row("trials, seed", mc(func(_ *diffSpread, m *diffMC) string { return fmt.Sprintf("%d, %d", m.Trials, m.Seed) }))
 		b.WriteString("\nThe ± is the binomial standard error of the chance, √(p(1−p)/n).\n")
+	} else {
+		b.WriteString("\nMonte Carlo: not run (`--trials 0`).\n")
 	}
 	return b.String()
 }

@@ -149,7 +149,7 @@ func TestDiffSolvesAndMonteCarlo(t *testing.T) {
 	}
 	// --trials 0 compares the worst cases and the solves, and says the trials were not run.
 	_, out, _ = run(t, "diff", "--trials", "0", a, b)
-	if !strings.Contains(out, "| worst case low | 7.00 dB | 6.00 dB |") || strings.Contains(out, "Monte Carlo median") {
+	if !strings.Contains(out, "| worst case low | 7.00 dB | 6.00 dB |") || strings.Contains(out, "Monte Carlo median") || !strings.Contains(out, "Monte Carlo: not run (`--trials 0`).") {
 		t.Errorf("--trials 0:\n%s", out)
 	}
 	if code, _, _ := run(t, "diff", "--trials", "-1", a, b); code != ExitUsage {
