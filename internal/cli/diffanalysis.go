@@ -46,8 +46,10 @@ func focusMarkdown(ra, rb *engine.Result) string {
 	switch {
 	case renamed:
 		s := fmt.Sprintf("**The focus changed.** Old: %s. New: %s.", focusText(a), focusText(b))
-		if q, ok := a.Quantity(b.Focus); ok {
+		if q, ok := a.Quantity(b.Focus); ok && b.Focus != "" {
 			s += fmt.Sprintf(" The old sheet's `%s` was %s; that is what `--exit-code` compares.", q.Name, ra.Display(q))
+		} else if b.Focus == "" {
+			s += " The new sheet has no focus, so `--exit-code` judges only the requirements."
 		} else {
 			s += " The old sheet has no `" + b.Focus + "`, so `--exit-code` judges only the requirements."
 		}

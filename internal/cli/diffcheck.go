@@ -72,8 +72,9 @@ func regressions(ra, rb *engine.Result, tol units.Q) (regression, error) {
 type reqPair struct{ old, new *engine.Require }
 
 // pairRequires matches the requirements of two sheets: by their text, then an unmatched one
-// with an unmatched one that bounds the same quantity (an edited bound, "m >= 5 dBm" become
-// "m >= 8 dBm", from the same side), in order. The new sheet's come first in its order, then the removed ones.
+// with an unmatched one that bounds the same quantity from the same side (an edited bound:
+// "m >= 5 dBm" become "m >= 8 dBm"), in order. The new sheet's come first, in its order, then
+// the removed ones.
 func pairRequires(a, b *engine.Sheet) []reqPair {
 	byText := map[string]*engine.Require{}
 	for _, rq := range a.Requires {
@@ -193,19 +194,20 @@ type diffSide struct {
 }
 
 type diffFocus struct {
-	Name string `json:"name"`
+	Name   string     `json:"name"`
+	Old    *diffValue `json:"old"`
+	New    *diffValue `json:"new"`
+	Change string     `json:"change"` // new − old, "" when they cannot be compared
+	Worse  bool       `json:"worse"`  // moved the wrong way by more than --tolerance
+	Lower  bool       `json:"lower_is_worse"`
+
 	// The focus's definition, old and new: another quantity (renamed), or the same one
-	// obtained by another formula.
-	OldName        string     `json:"old_name"`
-	Formula        string     `json:"formula"` // "" for an input
-	OldFormula     string     `json:"old_formula"`
-	Renamed        bool       `json:"renamed"`
-	FormulaChanged bool       `json:"formula_changed"`
-	Old            *diffValue `json:"old"`
-	New            *diffValue `json:"new"`
-	Change         string     `json:"change"` // new − old, "" when they cannot be compared
-	Worse          bool       `json:"worse"`  // moved the wrong way by more than --tolerance
-	Lower          bool       `json:"lower_is_worse"`
+	// obtained by another formula ("" for an input).
+	OldName        string `json:"old_name"`
+	Formula        string `json:"formula"`
+	OldFormula     string `json:"old_formula"`
+	Renamed        bool   `json:"renamed"`
+	FormulaChanged bool   `json:"formula_changed"`
 }
 
 type diffValue struct {
@@ -218,9 +220,10 @@ type diffValue struct {
 
 type diffReq struct {
 	That string `json:"that"`
-	Was  string `json:"was,omitempty"` // the old text of a bound that was edited
-	Old  string `json:"old"`           // pass, fail, unknown (cannot be evaluated) or absent
+	Old  string `json:"old"` // pass, fail, unknown (cannot be evaluated) or absent
 	New  string `json:"new"`
+
+	Was string `json:"was,omitempty"` // the old text of a bound that was edited
 }
 
 type diffQ struct {
