@@ -52,18 +52,23 @@ func sensitivityGroups(ss []analysis.Sensitivity, unit string, f0 float64) (grou
 	})
 	for _, g := range groups {
 		sort.Slice(g.rows, func(i, j int) bool {
-			a, b := g.rows[i], g.rows[j]
-			if na, nb := math.IsNaN(a.Change), math.IsNaN(b.Change); na != nb {
-				return nb
-			}
-			if x, y := printedSize(a.Change, unit), printedSize(b.Change, unit); x != y {
-				return x > y
-			}
-			return a.Input < b.Input
+			return largerPrinted(g.rows[i].Change, g.rows[j].Change, g.rows[i].Input, g.rows[j].Input, unit)
 		})
 	}
 	sort.Strings(zero)
 	return groups, zero
+}
+
+// largerPrinted orders changes by their size as printed, largest first, those that could not
+// be evaluated (NaN) last, ties by name.
+func largerPrinted(a, b float64, nameA, nameB, unit string) bool {
+	if na, nb := math.IsNaN(a), math.IsNaN(b); na != nb {
+		return nb
+	}
+	if x, y := printedSize(a, unit), printedSize(b, unit); x != y && !math.IsNaN(x) {
+		return x > y
+	}
+	return nameA < nameB
 }
 
 // printedSize is the size of a change as the page prints it (signedIn), for ordering: two
@@ -142,7 +147,8 @@ func (p *page) sensitivity() {
 	}
 }
 
-// worstCorners writes where each toleranced input sits in the two worst cases.
+// worstCorners writes where each toleranced input sits in the two worst cases, ordered by
+// the change in the worst case low as printed, ties by name, as the sensitivity table is.
 func (p *page) worstCorners() {
 	a := p.in.Analysis
 	t := a.Tolerance
@@ -150,8 +156,13 @@ func (p *page) worstCorners() {
 	for _, c := range t.HighCorner {
 		high[c.Input] = c
 	}
+	low := append([]analysis.Corner(nil), t.LowCorner...)
+	unit := a.ChangeUnit
+	sort.Slice(low, func(i, j int) bool {
+		return largerPrinted(low[i].Effect, low[j].Effect, low[i].Input, low[j].Input, unit)
+	})
 	var rows, still []string
-	for _, lo := range t.LowCorner {
+	for _, lo := range low {
 		if lo.Limit == "nominal" && !math.IsNaN(lo.Effect) {
 			still = append(still, p.inputName(lo.Input))
 			continue

@@ -12,14 +12,16 @@ import (
 
 // sensSheet is a sum of decibel terms (each moves m by its coefficient per dB, exactly) and
 // a free-space loss (20·log10(1.1) ≈ 0.83 dB per +10 % of distance, ITU-R P.525-4 eq. (4));
-// tiny moves m by 0.001 dB per dB, which prints as 0.00 dB.
+// beta moves it by 0.99999 dB per dB, which prints as 1.00 dB like zeta and alpha, so the
+// three are ordered by name; tiny moves m by 0.001 dB per dB, which prints as 0.00 dB.
 const sensSheet = `focus = "m"
 zeta = { is = "10 dBm", tol = "1 dB" }
 alpha = { is = "3 dB", tol = ["-0.5 dB", "+1.5 dB"] }
 mid = "2 dB"
+beta = { is = "1 dB", tol = "1 dB" }
 tiny = "5 dB"
 d = { is = "2 km", tol = "10 %" }
-m = "= zeta - alpha + 2 * mid + 0.001 * tiny - fspl(d, 868 MHz) + fspl(1 km, 868 MHz)"
+m = "= zeta - alpha + 2 * mid + 0.99999 * beta + 0.001 * tiny - fspl(d, 868 MHz) + fspl(1 km, 868 MHz)"
 `
 
 func analysed(t *testing.T, src string) Input {
@@ -42,6 +44,7 @@ func TestSensitivityTableGrouped(t *testing.T) {
 		"Per +1 dB of a decibel input:",
 		"| `mid` | +2.00 dB |",
 		"| `alpha` | -1.00 dB |",
+		"| `beta` | +1.00 dB |",
 		"| `zeta` | +1.00 dB |",
 		"Per +10 % of a linear input:",
 		"| `d` | -0.83 dB |",
@@ -68,15 +71,20 @@ func TestWorstCaseCornersOnThePage(t *testing.T) {
 	in := analysed(t, sensSheet)
 	page, _ := Markdown(in)
 	s := string(page)
+	last := 0
 	for _, w := range []string{
 		"| input | worst case low | worst case high |",
 		"| `alpha` | high limit, 4.50 dB (-1.50 dB) | low limit, 2.50 dB (+0.50 dB) |",
+		"| `beta` | low limit, 0.00 dB (-1.00 dB) | high limit, 2.00 dB (+1.00 dB) |",
 		"| `zeta` | low limit, 9.00 dBm (-1.00 dB) | high limit, 11.00 dBm (+1.00 dB) |",
 		"| `d` | high limit, 2.2 km (-0.83 dB) | low limit, 1.8 km (+0.92 dB) |",
 	} {
-		if !strings.Contains(s, w) {
-			t.Errorf("page lacks %q:\n%s", w, s[strings.Index(s, "## Tolerance"):])
+		// In this order: by the change in the worst case low as printed, ties by name.
+		i := strings.Index(s, w)
+		if i < 0 || i < last {
+			t.Errorf("page lacks %q after the row before it:\n%s", w, s[strings.Index(s, "## Tolerance"):])
 		}
+		last = i
 	}
 	doc := JSON(in)
 	for _, e := range schematest.Validate(RenderSchema, doc) {
@@ -91,17 +99,17 @@ func TestWorstCaseCornersOnThePage(t *testing.T) {
 	if err := json.Unmarshal(doc, &got); err != nil {
 		t.Fatal(err)
 	}
-	if len(got.Tolerance.Low) != 3 || len(got.Tolerance.High) != 3 {
+	if len(got.Tolerance.Low) != 4 || len(got.Tolerance.High) != 4 {
 		t.Fatalf("corners %+v", got.Tolerance)
 	}
 	first := got.Tolerance.Low[0]
 	if first["input"] != "alpha" || first["limit"] != "high" || first["value"] != 4.5 || first["unit"] != "dB" || first["effect"] != -1.5 {
 		t.Errorf("worst low corner[0] = %v", first)
 	}
-	far := got.Tolerance.High[1] // zeta (+1.00 dB), d (+0.92 dB), alpha (+0.50 dB)
+	far := got.Tolerance.High[2] // zeta (+1 dB), beta (+0.99999 dB), d (+0.92 dB), alpha (+0.50 dB)
 	// d at its low limit, 1.8 km, is 1800 m in SI.
 	if far["input"] != "d" || far["limit"] != "low" || far["si"] != 1800.0 || far["si_unit"] != "m" {
-		t.Errorf("worst high corner[1] = %v", far)
+		t.Errorf("worst high corner[2] = %v", far)
 	}
 }
 
