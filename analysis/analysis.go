@@ -78,6 +78,18 @@ type Tolerance struct {
 	Failed    int       // trials that could not be evaluated (counted as failing)
 	Shares    []Share   // each input's share of the variance, largest first
 	Samples   []float64 // the focus in each trial that evaluated, sorted
+	// LowCorner and HighCorner say where each toleranced input sits in the worst case low
+	// and high: the input with the larger effect first, ties by name.
+	LowCorner, HighCorner []Corner
+}
+
+// Corner is where one toleranced input sits in a worst case.
+type Corner struct {
+	Input  string
+	Limit  string  // "low" or "high" (its tolerance limit), or "nominal" when it does not move the focus
+	Value  float64 // the input's value there, in Unit
+	Unit   string  // the input's report unit
+	Effect float64 // the change of the focus (in Analysis.ChangeUnit) with this input alone moved there; NaN when a limit could not be evaluated
 }
 
 // Share is one input's share of the focus's variance.
@@ -237,8 +249,20 @@ func (fa *focusAt) sensitivity() []Sensitivity {
 		}
 		out = append(out, Sensitivity{Input: q.Name, Per: per, Change: change})
 	}
-	sort.SliceStable(out, func(i, j int) bool { return math.Abs(out[i].Change) > math.Abs(out[j].Change) })
+	sort.Slice(out, func(i, j int) bool { return largerEffect(out[i].Change, out[j].Change, out[i].Input, out[j].Input) })
 	return out
+}
+
+// largerEffect orders effects largest first, those that could not be evaluated (NaN) last,
+// ties by name, so the order never depends on the order the inputs were found in.
+func largerEffect(a, b float64, nameA, nameB string) bool {
+	if na, nb := math.IsNaN(a), math.IsNaN(b); na != nb {
+		return nb
+	}
+	if x, y := math.Abs(a), math.Abs(b); x != y && !math.IsNaN(x) {
+		return x > y
+	}
+	return nameA < nameB
 }
 
 // tolerance computes worst cases, RSS and the Monte Carlo spread of the focus.
@@ -284,11 +308,15 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 		fl, okl := fa.at(qs[i:i+1], []units.Q{in.lo}, cone)
 		fh, okh := fa.at(qs[i:i+1], []units.Q{in.hi}, cone)
 		lowCorner[i], highCorner[i] = in.nom, in.nom
+		low, high := corner(in.q, "nominal", in.nom, math.NaN()), corner(in.q, "nominal", in.nom, math.NaN())
 		if okl && okh {
+			low.Effect, high.Effect = 0, 0
 			if fl < fh {
 				lowCorner[i], highCorner[i] = in.lo, in.hi
+				low, high = corner(in.q, "low", in.lo, fl-t.Nominal), corner(in.q, "high", in.hi, fh-t.Nominal)
 			} else if fh < fl {
 				lowCorner[i], highCorner[i] = in.hi, in.lo
+				low, high = corner(in.q, "high", in.hi, fh-t.Nominal), corner(in.q, "low", in.lo, fl-t.Nominal)
 			}
 			if span := in.hi.V - in.lo.V; span > 0 {
 				slope := (fh - fl) / span
@@ -296,7 +324,10 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 				rss += sd * sd
 			}
 		}
+		t.LowCorner, t.HighCorner = append(t.LowCorner, low), append(t.HighCorner, high)
 	}
+	sortCorners(t.LowCorner)
+	sortCorners(t.HighCorner)
 	union := s.Cone(qs...)
 	t.WorstLow, _ = fa.at(qs, lowCorner, union)
 	t.WorstHigh, _ = fa.at(qs, highCorner, union)
@@ -361,6 +392,14 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 	}
 	t.Shares = varianceShares(focusVals, draws, len(ins), func(i int) string { return ins[i].q.Name })
 	return t
+}
+
+func corner(q *engine.Quantity, limit string, v units.Q, effect float64) Corner {
+	return Corner{Input: q.Name, Limit: limit, Value: engine.Number(q, v), Unit: engine.UnitName(q), Effect: effect}
+}
+
+func sortCorners(cs []Corner) {
+	sort.Slice(cs, func(i, j int) bool { return largerEffect(cs[i].Effect, cs[j].Effect, cs[i].Input, cs[j].Input) })
 }
 
 // varianceShares estimates each input's share of the focus variance as its squared

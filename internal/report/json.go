@@ -118,6 +118,31 @@ type jsonTol struct {
 	RSSSigma   float64 `json:"rss_sigma"`
 	Unit       string  `json:"unit"`
 	MonteCarlo jsonMC  `json:"monte_carlo"`
+	// Where each toleranced input sits in the worst case low and high, largest effect first.
+	WorstLowCorner  []jsonCorner `json:"worst_low_corner"`
+	WorstHighCorner []jsonCorner `json:"worst_high_corner"`
+}
+
+// jsonCorner is one input at a worst case: which limit, its value there, and the change of
+// the focus (in the tolerance's change unit: dB for a decibel focus) with it alone moved there.
+type jsonCorner struct {
+	Input  string   `json:"input"`
+	Limit  string   `json:"limit"` // low, high or nominal
+	Value  *float64 `json:"value"`
+	Unit   string   `json:"unit"`
+	SI     *float64 `json:"si"`
+	SIUnit string   `json:"si_unit"`
+	Effect *float64 `json:"effect"`
+}
+
+func cornersJSON(cs []analysis.Corner) []jsonCorner {
+	out := []jsonCorner{}
+	for _, c := range cs {
+		jc := jsonCorner{Input: c.Input, Limit: c.Limit, Value: num(c.Value), Unit: c.Unit, Effect: num(c.Effect)}
+		jc.SI, jc.SIUnit = siOfNumber(c.Value, c.Unit)
+		out = append(out, jc)
+	}
+	return out
 }
 
 type jsonSweep struct {
@@ -265,6 +290,7 @@ func analysisJSON(doc *jsonDoc, a *analysis.Analysis, sh *engine.Sheet) {
 		for _, s := range t.Shares {
 			jt.MonteCarlo.Shares = append(jt.MonteCarlo.Shares, jShare{Input: s.Input, Share: s.Share})
 		}
+		jt.WorstLowCorner, jt.WorstHighCorner = cornersJSON(t.LowCorner), cornersJSON(t.HighCorner)
 		doc.Tolerance = jt
 	}
 	for _, sw := range a.Sweeps {

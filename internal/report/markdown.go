@@ -373,21 +373,6 @@ func (p *page) chainShares() {
 	}
 }
 
-func (p *page) sensitivity() {
-	a := p.in.Analysis
-	p.f("## Sensitivity\n\n")
-	if len(a.Sensitivity) == 0 {
-		p.f("%s depends on no input.\n\n", code(a.Focus.Name))
-		return
-	}
-	p.f("Change of %s when one input rises by 1 dB (decibel inputs) or 10 %% (linear inputs), every other input at its nominal value; largest first:\n\n", code(a.Focus.Name))
-	p.f("| input | step | change of %s |\n| --- | ---: | ---: |\n", text(a.Focus.Name))
-	for _, s := range a.Sensitivity {
-		p.f("| %s | +%s | %s |\n", p.inputName(s.Input), s.Per, signedIn(s.Change, a.ChangeUnit))
-	}
-	p.f("\n")
-}
-
 func (p *page) tolerance() {
 	a := p.in.Analysis
 	t := a.Tolerance
@@ -405,6 +390,7 @@ func (p *page) tolerance() {
 	p.f("| root-sum-square σ | %s |\n", fmtNum(t.RSSSigma, a.ChangeUnit))
 	if t.Trials == 0 {
 		p.f("\nMonte Carlo: being computed; the page is completed when the trials are done.\n\n")
+		p.worstCorners()
 		return
 	}
 	p.f("| Monte Carlo 1 %% point | %s |\n", fmtNum(t.P01, u))
@@ -429,6 +415,7 @@ func (p *page) tolerance() {
 		}
 		p.f("\n")
 	}
+	p.worstCorners()
 	p.histChart()
 }
 
