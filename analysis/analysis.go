@@ -57,16 +57,18 @@ type Sensitivity struct {
 	Change float64 // in Analysis.ChangeUnit; NaN when the focus could not be evaluated
 }
 
-// Contribution is one signed line item of a focus that is a sum of decibel terms.
+// Contribution is one signed line item of a focus that is a sum of decibel terms. The items
+// with a reference (dBm, dBHz) come first as the formula writes them, then the gains and
+// losses in dB, largest first.
 type Contribution struct {
 	Item      string  // label: a quantity's name, or "quantity: term" for a term inside a formula
 	Quantity  string  // the quantity the term belongs to
 	Value     float64 // signed, in the term's own decibel unit
 	Unit      string
-	Total     float64 // the running total of the items so far (largest first), in TotalUnit
+	Sign      int     // how the term enters the sum: +1 or −1
+	Total     float64 // the running total of the items so far, in TotalUnit
 	TotalUnit string
 	ref       units.Q // the term's value, before its sign
-	sign      int
 }
 
 // Tolerance is the spread of the focus from the inputs' tolerances.

@@ -21,12 +21,14 @@ const (
 // FlowRow is one row of a budget in signal order. Level is the running value after the row
 // in Unit: a level (dBm) on the signal path, a ratio (dB) after the comparison.
 type FlowRow struct {
-	Item         string   // a quantity's name, or "quantity: term" for a term inside a formula
-	Quantity     string   // the quantity the row belongs to
-	Kind         FlowKind //
-	Change       float64  // the row's change of the running value in dB; NaN on a row that states a level
-	Compared     float64  // on a compare row, the level compared with, in ComparedUnit
+	Item         string // a quantity's name, or "quantity: term" for a term inside a formula
+	Quantity     string // the quantity the row belongs to
+	Kind         FlowKind
+	Change       float64 // the row's change of the running value in dB; NaN on a row that states a level
+	ChangeUnit   string  // the unit the change is written in (dB, dBi, dBc)
+	Compared     float64 // on a compare row, the level compared with, in ComparedUnit
 	ComparedUnit string
+	Terms        int // on the total of a group of gains and losses: how many term rows above it it sums
 	Level        float64
 	Unit         string
 }
@@ -95,71 +97,110 @@ func (f *flower) flow(q *engine.Quantity, depth int) *SignalFlow {
 	if start < 0 {
 		return nil
 	}
-	sf := &SignalFlow{}
 	cur := ev[start].v
-	sf.Rows = append(sf.Rows, FlowRow{Item: ev[start].item, Quantity: ev[start].owner, Kind: FlowStart, Change: math.NaN(), Level: number(cur), Unit: cur.UnitName()})
-	// For each quantity whose terms are being written: whether they are all gains and losses
-	// so far (its total is then a change), or it holds the start or a comparison (its total
-	// is the value the path reaches).
-	var stack []bool
+	run := &flowRun{f: f, sf: &SignalFlow{}, cur: cur, depth: depth}
+	run.sf.Rows = append(run.sf.Rows, FlowRow{Item: ev[start].item, Quantity: ev[start].owner, Kind: FlowStart, Change: math.NaN(), Level: number(cur), Unit: cur.UnitName()})
 	for i, e := range ev {
-		if i == start {
-			if len(stack) > 0 {
-				stack[len(stack)-1] = false
-			}
-			continue
-		}
+		ok := true
 		switch {
+		case i == start:
+			run.spoil()
 		case e.leave:
-			p := len(stack) > 0 && stack[len(stack)-1]
-			if len(stack) > 0 {
-				stack = stack[:len(stack)-1]
+			if e.q != q {
+				run.leave(e)
 			}
-			if !p && len(stack) > 0 {
-				stack[len(stack)-1] = false
-			}
-			if e.q == q {
-				continue
-			}
-			r := FlowRow{Item: e.q.Name, Quantity: e.q.Name, Kind: FlowTotal, Change: math.NaN(), Level: number(cur), Unit: cur.UnitName()}
-			if p {
-				r.Change = float64(e.sign) * e.v.V
-			} else if math.Abs(cur.V-e.v.V) > 1e-9*math.Max(1, math.Abs(e.v.V)) || cur.D != e.v.D {
-				r.Item = "after " + e.q.Name // the path started outside it
-			}
-			sf.Rows = append(sf.Rows, r)
 		case e.item == "":
-			stack = append(stack, true) // enter
+			run.open = append(run.open, openQ{pure: true, first: len(run.sf.Rows)})
 		case isAbsLevel(e.v) && e.sign < 0:
-			next, err := units.Sub(cur, e.v)
-			if err != nil || !isAbsLevel(cur) {
-				return nil
-			}
-			r := FlowRow{Item: e.item, Quantity: e.owner, Kind: FlowCompare, Change: math.NaN(), Compared: number(e.v), ComparedUnit: e.v.UnitName(), Level: number(next), Unit: next.UnitName()}
-			sf.Rows = append(sf.Rows, r)
-			cur = next
-			if len(stack) > 0 {
-				stack[len(stack)-1] = false
-			}
-			if e.q != nil {
-				if sub := f.flow(e.q, depth+1); sub != nil {
-					sf.Blocks = append(sf.Blocks, FlowBlock{Quantity: e.q.Name, Rows: sub.Rows})
-					sf.Blocks = append(sf.Blocks, sub.Blocks...)
-				}
-			}
+			ok = run.compare(e)
 		case e.v.K == units.Level && e.v.D.IsNone():
 			d := float64(e.sign) * e.v.V
-			cur.V += d
-			sf.Rows = append(sf.Rows, FlowRow{Item: e.item, Quantity: e.owner, Kind: FlowTerm, Change: d, Level: number(cur), Unit: cur.UnitName()})
+			run.cur.V += d
+			run.add(FlowRow{Item: e.item, Quantity: e.owner, Kind: FlowTerm, Change: d, ChangeUnit: e.v.UnitName()})
 		default:
-			return nil // a term with another reference: not a level in signal order
+			ok = false // a term with another reference: not a level in signal order
+		}
+		if !ok {
+			return nil
 		}
 	}
+	sf, cur := run.sf, run.cur
 	if math.Abs(cur.V-fv.V) > 1e-9*math.Max(1, math.Abs(fv.V)) || cur.D != fv.D {
 		return nil
 	}
 	sf.Rows = append(sf.Rows, FlowRow{Item: q.Name, Quantity: q.Name, Kind: FlowTotal, Change: math.NaN(), Level: engine.Number(q, fv), Unit: engine.UnitName(q)})
 	return sf
+}
+
+// openQ is a quantity whose terms are being written: whether they are all gains and losses
+// so far (its total is then a change), or it holds the start or a comparison (its total is
+// the value the path reaches); and where its rows begin.
+type openQ struct {
+	pure  bool
+	first int
+}
+
+// flowRun builds the rows of one signal flow from its flattened events.
+type flowRun struct {
+	f     *flower
+	sf    *SignalFlow
+	cur   units.Q // the running value
+	open  []openQ
+	depth int
+}
+
+// spoil marks the innermost open quantity as holding more than gains and losses.
+func (r *flowRun) spoil() {
+	if len(r.open) > 0 {
+		r.open[len(r.open)-1].pure = false
+	}
+}
+
+// add appends a row at the running value.
+func (r *flowRun) add(row FlowRow) {
+	row.Level, row.Unit = number(r.cur), r.cur.UnitName()
+	r.sf.Rows = append(r.sf.Rows, row)
+}
+
+// leave writes the total of a quantity whose terms were all written.
+func (r *flowRun) leave(e flowEvent) {
+	var o openQ
+	if n := len(r.open); n > 0 {
+		o, r.open = r.open[n-1], r.open[:n-1]
+	}
+	row := FlowRow{Item: e.q.Name, Quantity: e.q.Name, Kind: FlowTotal, Change: math.NaN()}
+	if o.pure {
+		row.Change, row.ChangeUnit = float64(e.sign)*e.v.V, e.v.UnitName()
+		for _, x := range r.sf.Rows[o.first:] {
+			if x.Kind == FlowTerm {
+				row.Terms++
+			}
+		}
+	} else {
+		r.spoil()
+		if math.Abs(r.cur.V-e.v.V) > 1e-9*math.Max(1, math.Abs(e.v.V)) || r.cur.D != e.v.D {
+			row.Item = "after " + e.q.Name // the path started outside it
+		}
+	}
+	r.add(row)
+}
+
+// compare subtracts a level from the running level; the level's own terms become a block.
+func (r *flowRun) compare(e flowEvent) bool {
+	next, err := units.Sub(r.cur, e.v)
+	if err != nil || !isAbsLevel(r.cur) {
+		return false
+	}
+	r.cur = next
+	r.add(FlowRow{Item: e.item, Quantity: e.owner, Kind: FlowCompare, Change: math.NaN(), Compared: number(e.v), ComparedUnit: e.v.UnitName()})
+	r.spoil()
+	if e.q != nil {
+		if sub := r.f.flow(e.q, r.depth+1); sub != nil {
+			r.sf.Blocks = append(r.sf.Blocks, FlowBlock{Quantity: e.q.Name, Rows: sub.Rows})
+			r.sf.Blocks = append(r.sf.Blocks, sub.Blocks...)
+		}
+	}
+	return true
 }
 
 // flatten writes q's terms with the given sign in the order its formula writes them,
