@@ -67,24 +67,17 @@ func Waterfall(w io.Writer, s WaterfallSpec) error {
 	// Room on the right for the annotations.
 	span := hi - lo
 	lo, hi = lo-0.04*span, hi+0.3*span
-	n := len(steps)
 	axis := s.Axis
 	if axis == "" {
 		axis = "level (" + s.Unit + ")"
 	}
-	p := newPlot(s.Title, axis, "")
-	ticks := make([]plot.Tick, n)
+	labels := make([]string, len(steps))
 	for i, st := range steps {
-		ticks[i] = plot.Tick{Value: float64(n - 1 - i), Label: st.Label}
+		labels[i] = st.Label
 	}
-	p.Y.Tick.Marker = plot.ConstantTicks(ticks)
-	p.Y.Tick.Length = 0
-	p.Y.Width = 0
-	p.Y.Min, p.Y.Max = -0.6, float64(n)-0.4
-	p.X.Min, p.X.Max = lo, hi
-	p.Add(grid(true, false))
+	p := rowPlot(s.Title, axis, labels, lo, hi)
 	p.Add(&waterfall{steps: steps, text: smallText(p, 9)})
-	return render(w, p, Width, max(Height, 2.2*vg.Centimeter+vg.Length(n)*0.5*vg.Centimeter))
+	return render(w, p, Width, rowHeight(len(steps)))
 }
 
 // waterfall draws step i at y = n−1−i.
