@@ -8,6 +8,7 @@ import (
 
 	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/internal/chart"
+	"github.com/rfledger/rfledger/units"
 )
 
 // signalFlow writes the budget in signal order: the path from the first level to the level
@@ -74,12 +75,8 @@ func span(n, k int) string {
 // level, and the margin as the gap between the two.
 func (p *page) flowChart() {
 	a := p.in.Analysis
-	spec := chart.WaterfallSpec{Title: a.Focus.Name + " in signal order", Unit: "dBm", Steps: flowSteps(a.Flow, p.focusUp())}
-	for _, r := range a.Flow.Rows {
-		if r.Kind == analysis.FlowStart {
-			spec.Unit = r.Unit
-		}
-	}
+	steps, unit := flowSteps(a.Flow, p.focusUp())
+	spec := chart.WaterfallSpec{Title: a.Focus.Name + " in signal order", Unit: unit, Steps: steps}
 	p.addChart("budget", a.Focus.Name+" in signal order", func(b *bytes.Buffer) error { return chart.Waterfall(b, spec) })
 }
 
@@ -94,57 +91,91 @@ func (p *page) focusUp() float64 {
 	return 1
 }
 
-// flowSteps lays the rows of a budget in signal order out on one level axis; up is +1 when a
-// rise of the path's level is good, −1 when it is bad.
-func flowSteps(fl *analysis.SignalFlow, up float64) []chart.Step {
-	var steps []chart.Step
-	prev := math.NaN()
-	path := func(r analysis.FlowRow) {
-		label := shorten(r.Item, 34)
-		switch {
-		case r.Kind == analysis.FlowTerm:
-			steps = append(steps, chart.Step{Label: label, Kind: chart.StepChange, From: prev, To: r.Level, Text: signedIn(r.Change, r.ChangeUnit), Good: up*r.Change > 0})
-		case r.Kind == analysis.FlowStart || r.Kind == analysis.FlowTotal && math.IsNaN(r.Change):
-			steps = append(steps, chart.Step{Label: label, Kind: chart.StepLevel, To: r.Level, Text: fmtNum(r.Level, r.Unit)})
-		default:
-			return // a group of gains and losses: its bars are drawn already
-		}
-		prev = r.Level
+// waterfall lays rows of a budget in signal order out on one level axis, in the unit of the
+// level the path starts from (a dBm compared level on a dBW path is moved by 30 dB).
+type waterfall struct {
+	steps []chart.Step
+	unit  string  // of the level axis
+	up    float64 // +1 when a rise of the path's level is good, −1 when it is bad
+	prev  float64 // the level the last row reached, on the axis
+}
+
+// at is a level in unit on the axis; NaN when it cannot be put there.
+func (w *waterfall) at(v float64, unit string) float64 {
+	if unit == w.unit {
+		return v
 	}
+	from, err1 := units.ParseUnit(unit)
+	to, err2 := units.ParseUnit(w.unit)
+	if err1 != nil || err2 != nil {
+		return math.NaN()
+	}
+	x, err := from.Of(v).In(to)
+	if err != nil {
+		return math.NaN()
+	}
+	return x
+}
+
+// path adds a row of the path or of a block: a gain or loss is a bar from the level before
+// it, a level a mark; a group's total adds nothing (its bars are drawn already).
+func (w *waterfall) path(r analysis.FlowRow) {
+	lv := w.at(r.Level, r.Unit)
+	switch {
+	case r.Kind == analysis.FlowTerm:
+		w.steps = append(w.steps, chart.Step{Label: shorten(r.Item, 34), Kind: chart.StepChange, From: w.prev, To: lv, Text: signedIn(r.Change, r.ChangeUnit), Good: w.up*r.Change > 0})
+	case r.Kind == analysis.FlowStart || r.Kind == analysis.FlowTotal && math.IsNaN(r.Change):
+		w.steps = append(w.steps, chart.Step{Label: shorten(r.Item, 34), Kind: chart.StepLevel, To: lv, Text: fmtNum(r.Level, r.Unit)})
+	default:
+		return
+	}
+	w.prev = lv
+}
+
+// flowSteps lays the rows of a budget in signal order out on one level axis, and returns
+// the axis's unit; up is +1 when a rise of the path's level is good, −1 when it is bad.
+func flowSteps(fl *analysis.SignalFlow, up float64) ([]chart.Step, string) {
+	if len(fl.Rows) == 0 {
+		return nil, ""
+	}
+	w := &waterfall{unit: fl.Rows[0].Unit, up: up, prev: math.NaN()}
 	compared := false
 	received, ref := math.NaN(), math.NaN()
 	for i, r := range fl.Rows {
 		switch {
 		case !compared && r.Kind != analysis.FlowCompare:
-			path(r)
+			w.path(r)
 		case r.Kind == analysis.FlowCompare:
 			if compared {
-				return steps // a second comparison has no place on one level axis
+				return w.steps, w.unit // a second comparison has no place on one level axis
 			}
-			compared, received, ref = true, prev, r.Compared
-			up = -up // a rise of the level compared with lowers the margin
-			formed := false
-			for _, b := range fl.Blocks {
-				if b.Quantity == r.Item && !formed {
-					formed = true
-					for _, br := range b.Rows {
-						path(br)
-					}
-				}
-			}
-			if !formed {
-				path(analysis.FlowRow{Item: r.Item, Kind: analysis.FlowStart, Level: r.Compared, Unit: r.ComparedUnit})
-			}
+			compared, received, ref = true, w.prev, w.at(r.Compared, r.ComparedUnit)
+			w.up = -w.up // a rise of the level compared with lowers the margin
+			w.formed(fl, r)
 		case r.Kind == analysis.FlowTerm:
 			// After the comparison a gain raises the margin: on the level axis it lowers the
 			// level compared with.
-			steps = append(steps, chart.Step{Label: shorten(r.Item, 34), Kind: chart.StepChange, From: ref, To: ref - r.Change, Text: signedIn(-r.Change, r.ChangeUnit), Good: r.Change > 0})
+			w.steps = append(w.steps, chart.Step{Label: shorten(r.Item, 34), Kind: chart.StepChange, From: ref, To: ref - r.Change, Text: signedIn(-r.Change, r.ChangeUnit), Good: r.Change > 0})
 			ref -= r.Change
 		case i == len(fl.Rows)-1:
-			steps = append(steps, chart.Step{Label: shorten(r.Item, 34), Kind: chart.StepGap, From: ref, To: received, Text: fmtNum(r.Level, r.Unit), Good: r.Level >= 0})
+			w.steps = append(w.steps, chart.Step{Label: shorten(r.Item, 34), Kind: chart.StepGap, From: ref, To: received, Text: fmtNum(r.Level, r.Unit), Good: r.Level >= 0})
 		}
 	}
-	return steps
+	return w.steps, w.unit
+}
+
+// formed adds the rows of the block that forms a compared level, or a mark at the level when
+// it has no terms of its own.
+func (w *waterfall) formed(fl *analysis.SignalFlow, r analysis.FlowRow) {
+	for _, b := range fl.Blocks {
+		if b.Quantity == r.Item {
+			for _, br := range b.Rows {
+				w.path(br)
+			}
+			return
+		}
+	}
+	w.path(analysis.FlowRow{Item: r.Item, Kind: analysis.FlowStart, Level: r.Compared, Unit: r.ComparedUnit})
 }
 
 // jsonFlowRow is one row of "signal_flow": the rows of the path and comparison first, then

@@ -25,7 +25,10 @@ func TestWaterfallHasNoNoiseFloorBar(t *testing.T) {
 	if a.Flow == nil {
 		t.Fatal("no signal flow for the field probe's margin")
 	}
-	steps := flowSteps(a.Flow, 1)
+	steps, unit := flowSteps(a.Flow, 1)
+	if unit != "dBm" {
+		t.Errorf("axis in %q, want dBm", unit)
+	}
 	found := false
 	prev := math.NaN()
 	for _, st := range steps {
@@ -92,5 +95,38 @@ func TestSignalFlowJSON(t *testing.T) {
 	}
 	if !blocks["rx.floor"] {
 		t.Errorf("no block for the noise floor the level is compared with: %+v", rows)
+	}
+}
+
+// TestWaterfallOneAxis: a path in dBW compared with a sensitivity in dBm draws both on the
+// dBW axis (−100 dBm is −130 dBW by the definitions of the two units), and the margin's
+// bracket spans the margin.
+func TestWaterfallOneAxis(t *testing.T) {
+	r, diags := sheettest.Eval(`focus = "margin"
+ptx    = "1 dBW"
+g      = "10 dBi"
+loss   = "100 dB"
+sens   = "-100 dBm"
+prx    = "= g + ptx - loss"
+margin = "= prx - 2 dB - sens"
+`)
+	if diags.HasErrors() {
+		t.Fatal(diags)
+	}
+	a, _ := analysis.Analyze(r, analysis.Options{Trials: 10})
+	if a.Flow == nil {
+		t.Fatal("no signal flow")
+	}
+	steps, unit := flowSteps(a.Flow, 1)
+	if unit != "dBW" || len(steps) < 2 {
+		t.Fatalf("axis %q, steps %+v", unit, steps)
+	}
+	sens, gap := steps[len(steps)-2], steps[len(steps)-1]
+	if sens.Label != "sens" || math.Abs(sens.To-(-130)) > 1e-9 {
+		t.Errorf("sensitivity step %+v, want a mark at -130 dBW", sens)
+	}
+	// 1 dBW + 10 dB − 100 dB − 2 dB = −91 dBW; −91 dBW − (−130 dBW) = 39 dB.
+	if gap.Kind != chart.StepGap || math.Abs(gap.To-gap.From-39) > 1e-9 {
+		t.Errorf("margin step %+v, want a 39 dB bracket", gap)
 	}
 }
