@@ -73,11 +73,14 @@ func signalFlow(sc *engine.Scenario, focus *engine.Quantity) *SignalFlow {
 	return f.flow(focus, 0)
 }
 
+// flower puts quantities of one scenario in signal order.
 type flower struct {
 	sh *engine.Sheet
 	sc *engine.Scenario
 }
 
+// flow puts q in signal order: its formula flattened, the first level (added) as the start,
+// then every event in turn; depth counts the compared levels followed into blocks.
 func (f *flower) flow(q *engine.Quantity, depth int) *SignalFlow {
 	fv, ok := f.sc.Value(q)
 	if !ok || fv.K != units.Level || depth > 8 {
