@@ -44,6 +44,7 @@ type Analysis struct {
 	ChangeUnit  string // the unit of changes of the focus ("dB" for a decibel focus)
 	Sensitivity []Sensitivity
 	Budget      []Contribution // where the budget goes; nil when the focus is not a sum of decibel terms
+	Flow        *SignalFlow    // the budget in signal order; nil when the focus is not a level in signal order
 	Tolerance   *Tolerance     // nil when no input the focus depends on has a tolerance
 	Sweeps      []SweepResult
 	Solves      []SolveResult
@@ -56,12 +57,18 @@ type Sensitivity struct {
 	Change float64 // in Analysis.ChangeUnit; NaN when the focus could not be evaluated
 }
 
-// Contribution is one signed line item of a focus that is a sum of decibel terms.
+// Contribution is one signed line item of a focus that is a sum of decibel terms. The items
+// with a reference (dBm, dBHz) come first as the formula writes them, then the gains and
+// losses in dB, largest first.
 type Contribution struct {
-	Item     string  // label: a quantity's name, or "quantity: term" for a term inside a formula
-	Quantity string  // the quantity the term belongs to
-	Value    float64 // signed, in the term's own decibel unit
-	Unit     string
+	Item      string  // label: a quantity's name, or "quantity: term" for a term inside a formula
+	Quantity  string  // the quantity the term belongs to
+	Value     float64 // signed, in the term's own decibel unit
+	Unit      string
+	Sign      int     // how the term enters the sum: +1 or −1
+	Total     float64 // the running total of the items so far, in TotalUnit
+	TotalUnit string
+	ref       units.Q // the term's value, before its sign
 }
 
 // Tolerance is the spread of the focus from the inputs' tolerances.
@@ -158,6 +165,7 @@ func Analyze(r *engine.Result, opt Options) (*Analysis, engine.Diagnostics) {
 		fa := newFocusAt(r, f)
 		a.Sensitivity = fa.sensitivity()
 		a.Budget = budget(fa.sc, f)
+		a.Flow = signalFlow(fa.sc, f)
 		if opt.Trials > MaxTrials {
 			diags = append(diags, engine.Diagnostic{Severity: engine.Error, Quantity: "trials", Summary: fmt.Sprintf("at most %d Monte Carlo trials", MaxTrials), Range: engine.Range{File: s.File}})
 		} else {

@@ -26,7 +26,8 @@ type jsonDoc struct {
 	Chains       map[string]jsonChain `json:"chains"`
 	Sensitivity  []jsonSens           `json:"sensitivity"`
 	Budget       []jsonContribution   `json:"budget"`
-	Tolerance    any                  `json:"tolerance"` // *jsonTol, or an empty object
+	SignalFlow   []jsonFlowRow        `json:"signal_flow"` // the budget in signal order (flow.go); empty when the focus is not a level in signal order
+	Tolerance    any                  `json:"tolerance"`   // *jsonTol, or an empty object
 	Sweeps       []jsonSweep          `json:"sweeps"`
 	Solves       []jsonSolve          `json:"solves"`
 	Warnings     []string             `json:"warnings"`
@@ -193,7 +194,7 @@ func JSON(in Input) []byte {
 	sh, r := in.Sheet, in.Result
 	doc := jsonDoc{Format: 2, Tolerance: struct{}{}, Title: sh.Title, Summary: sh.Summary, Focus: sh.Focus, Hash: sh.Hash, Pass: true,
 		Quantities: map[string]jsonQ{}, Chains: map[string]jsonChain{},
-		Requirements: []jsonReq{}, Sensitivity: []jsonSens{}, Sweeps: []jsonSweep{}, Solves: []jsonSolve{}, Warnings: []string{}, Budget: []jsonContribution{}}
+		Requirements: []jsonReq{}, Sensitivity: []jsonSens{}, Sweeps: []jsonSweep{}, Solves: []jsonSolve{}, Warnings: []string{}, Budget: []jsonContribution{}, SignalFlow: []jsonFlowRow{}}
 	doc.Quantities = quantitiesJSON(sh, r)
 	for _, rq := range sh.Requires {
 		pass := passes(r, rq)
@@ -284,6 +285,7 @@ func analysisJSON(doc *jsonDoc, a *analysis.Analysis, sh *engine.Sheet) {
 	for _, c := range a.Budget {
 		doc.Budget = append(doc.Budget, jsonContribution{Item: c.Item, Value: c.Value, Unit: c.Unit})
 	}
+	doc.SignalFlow = flowJSON(a.Flow)
 	if t := a.Tolerance; t != nil {
 		jt := &jsonTol{Nominal: t.Nominal, WorstLow: t.WorstLow, WorstHigh: t.WorstHigh, RSSSigma: t.RSSSigma, Unit: a.Unit,
 			MonteCarlo: jsonMC{Trials: t.Trials, Seed: t.Seed, PPass: t.PPass, P01: t.P01, P50: t.P50, P99: t.P99, Failed: t.Failed, Shares: []jShare{}}}

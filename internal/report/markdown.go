@@ -344,16 +344,19 @@ func (p *page) budget() {
 		p.chainShares()
 		return
 	}
+	if a.Flow != nil {
+		p.signalFlow()
+		p.chainShares()
+		return
+	}
 	abs := 0.0
 	for _, c := range a.Budget {
 		abs += math.Abs(c.Value)
 	}
-	p.f("%s = %s is the sum of these terms, largest first (followed through the quantities its formula names):\n\n", code(a.Focus.Name), p.r.Display(a.Focus))
+	p.f("%s = %s is not one level carried along a signal path by gains and losses in dB, so its terms are listed as a sum (followed through the quantities its formula names): those with a reference (dBW, dBHz, dB/K) as the formula writes them, then the gains and losses in dB, largest first:\n\n", code(a.Focus.Name), p.r.Display(a.Focus))
 	p.f("| # | item | contribution | running total | share of the total swing |\n| ---: | --- | ---: | ---: | ---: |\n")
-	run := 0.0
 	for i, c := range a.Budget {
-		run += c.Value
-		p.f("| %d | %s | %s %s | %s | %s |\n", i+1, code(c.Item), signed(c.Value), c.Unit, db2(run), pct(math.Abs(c.Value)/abs))
+		p.f("| %d | %s | %s | %s | %s |\n", i+1, code(c.Item), contribution(c), fmtNum(c.Total, c.TotalUnit), pct(math.Abs(c.Value)/abs))
 	}
 	p.f("| | **total** | | **%s %s** | |\n\n", db2(engine.Number(a.Focus, a.FocusValue)), a.Unit)
 	p.budgetChart()
