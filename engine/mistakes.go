@@ -23,6 +23,7 @@ func (l *loader) checkMistakes() {
 	l.checkShows()
 	l.convertedDisplay()
 	l.checkSolveUnits()
+	l.checkStageKinds()
 }
 
 // checkEmpty refuses a worksheet with no quantity at all (an empty file, a file of comments,

@@ -152,6 +152,7 @@ type Chain struct {
 	Stages []*Stage
 	Range  Range
 	node   int
+	broken bool // a stage's keys contradict each other or are of the wrong kind (reported at load)
 }
 
 // Stage is one stage of a chain. Values holds its keys (gain, nf, te, loss, iip3, oip3, ip1db,
