@@ -24,6 +24,7 @@ func (l *loader) checkMistakes() {
 	l.convertedDisplay()
 	l.checkSolveUnits()
 	l.checkStageKinds()
+	l.chainGroupKeys()
 }
 
 // checkEmpty refuses a worksheet with no quantity at all (an empty file, a file of comments,

@@ -3,6 +3,7 @@ package engine
 import (
 	"fmt"
 	"slices"
+	"strings"
 
 	"github.com/rfledger/rfledger/units"
 )
@@ -124,3 +125,68 @@ func stageProblems(st *Stage, sv *StageValue) []stageProblem {
 
 // stageProblem is one impossible stage value.
 type stageProblem struct{ key, msg, hint string }
+
+// DefaultBackoffDB is the back-off from each stage's output 1 dB compression point that a
+// chain's input level must keep when its group gives no chain_backoff (common practice, no
+// source: 10 dB keeps a stage well inside its linear range).
+const DefaultBackoffDB = 10
+
+// chainGroupKinds is the kind each chain group key must be of.
+var chainGroupKinds = map[string]struct {
+	want string
+	ok   func(units.Q) bool
+}{
+	"chain_input":     {"a power (\"-90 dBm\")", isPower},
+	"chain_bandwidth": {"a frequency (\"125 kHz\")", func(q units.Q) bool { return q.D == units.Frequency && q.K == units.Linear }},
+	"chain_backoff":   {"a ratio in dB (\"10 dB\")", units.Q.IsRatio},
+}
+
+// chainGroupKeys gives every chain its group's chain_input, chain_bandwidth and
+// chain_backoff, once their types are known. One of them in a group without a chain, or of
+// the wrong kind, is an error; so is a near miss of one in a group with a chain
+// (chain_inputs), which would otherwise be an unused quantity and leave the levels out.
+func (l *loader) chainGroupKeys() {
+	for _, g := range l.sh.Groups {
+		for _, q := range g.Quantities {
+			key := q.Name
+			if g.Name != "" {
+				key = strings.TrimPrefix(q.Name, g.Name+".")
+			}
+			kind, isKey := chainGroupKinds[key]
+			if !isKey {
+				if len(g.Chains) > 0 && strings.HasPrefix(key, "chain_") {
+					if near := units.Nearest(key, chainKeys); near != "" {
+						l.errAt(q.Range, q.Name, fmt.Sprintf("did you mean %q?", near), "unknown chain key %q", key)
+					}
+				}
+				continue
+			}
+			if len(g.Chains) == 0 {
+				l.errAt(q.Range, q.Name, "put it in the group that holds the chain's [[…]] stages", "%s is read by the chains of its group, and %s holds none", key, groupTitle(g))
+				continue
+			}
+			if n := l.sh.nodes[q.node]; n.typed && !kind.ok(n.ty) {
+				l.errAt(q.Range, q.Name, "write "+key+" as "+kind.want, "%s is %s, want %s", key, describeType(n.ty), kind.want)
+				continue
+			}
+			for _, ch := range g.Chains {
+				switch key {
+				case "chain_input":
+					ch.Input = q
+				case "chain_bandwidth":
+					ch.Bandwidth = q
+				case "chain_backoff":
+					ch.Backoff = q
+				}
+			}
+		}
+	}
+}
+
+// groupTitle names a group as its table is written ("[rx]", "the top level").
+func groupTitle(g *Group) string {
+	if g.Name == "" {
+		return "the top level"
+	}
+	return "[" + g.Name + "]"
+}

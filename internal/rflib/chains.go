@@ -36,6 +36,13 @@ var chains = []*engine.Func{
 			}
 			return result(c.IP1dB, uDBm, "IP1dB")
 		}),
+	cascadeFunc("cascade_op1db", "dBm", "Output 1 dB compression point of a chain: the cascaded input P1dB plus the total gain less 1 dB (the gain is 1 dB compressed there).", "1 dB compression point definition (Razavi, RF Microelectronics, §2.2.2); cascade: common practice, no source",
+		func(c rfmath.Cascade) (units.Q, error) {
+			if !c.HasIP1dB {
+				return units.Q{}, fmt.Errorf("no stage has ip1db or op1db")
+			}
+			return result(c.OP1dB, uDBm, "OP1dB")
+		}),
 }
 
 func cascadeFunc(name, res, doc, src string, pick func(rfmath.Cascade) (units.Q, error)) *engine.Func {
