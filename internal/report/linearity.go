@@ -67,3 +67,24 @@ func given(v float64, ok bool) string {
 	}
 	return db2(v) + " dBm"
 }
+
+// stageLinearityJSON adds a stage's output intercept and compression points, and its
+// headroom at the chain input level, to its JSON.
+func stageLinearityJSON(js *jsonStage, ci analysis.Cascade, i int) {
+	st, r := ci.Stages[i], ci.Result.Stages[i]
+	if st.HasIIP3 {
+		js.OIP3DBm = num(st.OIP3())
+	}
+	if r.HasIIP3 {
+		js.CumOIP3DBm = num(r.CumOIP3)
+	}
+	if st.HasIP1dB {
+		js.IP1dBDBm, js.OP1dBDBm = num(st.IP1dB), num(st.OP1dB())
+	}
+	if r.HasIP1dB {
+		js.CumIP1dB, js.CumOP1dB = num(r.CumIP1dB), num(r.CumOP1dB)
+	}
+	if i < len(ci.Headroom) && ci.Headroom[i].Has {
+		js.BelowOP1dB = num(ci.Headroom[i].DB)
+	}
+}
