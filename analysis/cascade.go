@@ -94,6 +94,8 @@ func (cc *Cascade) compression() {
 		}
 	}
 	switch {
+	case len(missing) == len(cc.Stages) && !cc.Result.HasIIP3:
+		// no linearity at all: the page says so in one line
 	case len(missing) == len(cc.Stages):
 		cc.Notes = append(cc.Notes, "no stage gives ip1db or op1db: compression is not checked")
 	case len(missing) > 0:
