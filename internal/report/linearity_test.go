@@ -40,8 +40,8 @@ ip1db = "-15 dBm"
 	var doc struct {
 		Chains map[string]struct {
 			Stages []map[string]any `json:"stages"`
-			InDBm  float64              `json:"input_dbm"`
-			OP1dB  float64              `json:"op1db_dbm"`
+			InDBm  float64          `json:"input_dbm"`
+			OP1dB  float64          `json:"op1db_dbm"`
 		} `json:"chains"`
 	}
 	out := JSON(Input{Result: r})
