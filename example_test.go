@@ -183,4 +183,3 @@ func ExampleWriteCHeader() {
 	// Output:
 	// #define PROBE_RX_SENSITIVITY_DBM (-118.81929288263248)
 }
-
