@@ -117,8 +117,8 @@ func WriteJSON(w io.Writer, rep Report) error {
 // `rfledger export --c-header` does: one #define per quantity, its unit in the macro's name,
 // whole counts and frequencies as integer literals, and PREFIX_SHEET_HASH holding the
 // worksheet's content hash so firmware can tell a stale header. It fails, writing nothing,
-// on a prefix that cannot start a C macro name, an unknown type, or an exported quantity that
-// could not be evaluated.
+// when no quantity is marked export, on a prefix that cannot start a C macro name, on an
+// unknown type, and on an exported quantity that could not be evaluated.
 func WriteCHeader(w io.Writer, r *engine.Result, opt HeaderOptions) error {
 	if r == nil {
 		return errNoResult
