@@ -69,7 +69,7 @@ type Tolerance struct {
 	Nominal   float64   // the focus at the nominal inputs, in Analysis.Unit like all values below
 	WorstLow  float64   // the focus with every input at the end of its tolerance that lowers it
 	WorstHigh float64   // the focus with every input at the end that raises it
-	RSSSigma  float64   // one standard deviation of the focus, root-sum-square of the inputs' own
+	RSSSigma  float64   // one standard deviation of the focus: root-sum-square of each input's slope × σ
 	Trials    int       // Monte Carlo trials run (0 with Options.SkipMonteCarlo)
 	Seed      uint64    // the seed they ran with
 	PPass     float64   // chance that every requirement holds (1 when there are none and all trials evaluate)
