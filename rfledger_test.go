@@ -2,6 +2,7 @@ package rfledger_test
 
 import (
 	"bytes"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -27,8 +28,9 @@ func command(t *testing.T, args ...string) (int, []byte) {
 // TestWritersMatchTheCommand: for every demo worksheet without cases, the writers give the
 // bytes `rfledger render`, `render --json` and `export --c-header` give, charts included, when
 // called as the package documentation shows (load, evaluate, analyse with the command's
-// default trials and seed, every diagnostic passed as warnings).
+// trials and seed, every diagnostic passed as warnings).
 func TestWritersMatchTheCommand(t *testing.T) {
+	const trials = 2000 // fewer than the default 10,000, for time; the same on both sides
 	sheets, _ := filepath.Glob("worksheets/*.toml")
 	tested := 0
 	for _, path := range sheets {
@@ -41,14 +43,14 @@ func TestWritersMatchTheCommand(t *testing.T) {
 		}
 		tested++
 		r, ediags := sh.Eval()
-		a, adiags := analysis.Analyze(r, analysis.Options{Trials: analysis.DefaultTrials, Seed: 1})
+		a, adiags := analysis.Analyze(r, analysis.Options{Trials: trials, Seed: 1})
 		rep := rfledger.Report{Result: r, Analysis: a, Warnings: engine.SortDiagnostics(append(append(diags, ediags...), adiags...))}
 
 		var js bytes.Buffer
 		if err := rfledger.WriteJSON(&js, rep); err != nil {
 			t.Fatal(err)
 		}
-		if code, want := command(t, "render", "--json", path); code != 0 || !bytes.Equal(js.Bytes(), want) {
+		if code, want := command(t, "render", "--json", "--trials", fmt.Sprint(trials), path); code != 0 || !bytes.Equal(js.Bytes(), want) {
 			t.Errorf("%s: WriteJSON differs from render --json (exit %d)", path, code)
 		}
 
@@ -59,7 +61,7 @@ func TestWritersMatchTheCommand(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if code, _ := command(t, "render", path, "-o", filepath.Join(dir, name+".md")); code != 0 {
+		if code, _ := command(t, "render", "--trials", fmt.Sprint(trials), path, "-o", filepath.Join(dir, name+".md")); code != 0 {
 			t.Fatalf("%s: render exit %d", path, code)
 		}
 		if want, _ := os.ReadFile(filepath.Join(dir, name+".md")); !bytes.Equal(page.Bytes(), want) {
