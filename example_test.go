@@ -17,8 +17,9 @@ import (
 //   - link.margin (12.50 dB) and rx.sensitivity (-118.82 dBm): engine's
 //     TestDemoMatchesHandWritten, which computes every quantity of the demo by hand;
 //   - a 10 % longer path costs 10·n·log10(1.1) = 31·0.04139 = 1.28 dB of margin with the
-//     demo's log-distance exponent n = 3.1 (log-distance model, Rappaport, "Wireless
-//     Communications", 2nd ed., eq. 4.68);
+//     demo's log-distance exponent n = 3.1 (log-distance model PL(d) = PL(d0) + 10·n·log10(d/d0),
+//     Rappaport, "Wireless Communications", 2nd ed., section 4.9.1; section number recalled
+//     from memory);
 //   - the range where the margin reaches 0 dB is 2.4 km · 10^(12.505 / 31) = 6.08 km, by the
 //     same model (only the distance term changes with the distance).
 
