@@ -1,6 +1,7 @@
 package rfledger_test
 
 import (
+	"errors"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -43,12 +44,13 @@ func main() {
 }
 `
 
-// TestOutsideModule builds a program in a module of its own that imports rfledger by its
+// TestOutsideModule builds programs in a module of their own that import rfledger by its
 // path (a replace directive points the path at this checkout, as a not yet published
-// version would be used) and runs it on a demo worksheet. It proves that what a host
-// program needs is reachable from outside the module: nothing it calls lives in internal/.
+// version would be used) and runs them on a demo worksheet: the README's example, word for
+// word, and outsideMain. It proves that what a host program needs is reachable from outside
+// the module (nothing it calls lives in internal/), and that the README's example runs.
 //
-// The margin it prints is the demo's 12.50 dB (checked by hand in engine's
+// The margin they print is the demo's 12.50 dB (checked by hand in engine's
 // TestDemoMatchesHandWritten) less the 3 dB the override takes off the transmit power, which
 // enters the margin as a plain decibel term.
 func TestOutsideModule(t *testing.T) {
@@ -60,36 +62,80 @@ func TestOutsideModule(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	dir := t.TempDir()
-	goMod := "module example.com/testrig\n\ngo 1.26\n\nrequire github.com/rfledger/rfledger v0.0.0\n\nreplace github.com/rfledger/rfledger => " + root + "\n"
+	readme, err := readmeExample(filepath.Join(root, "README.md"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	demo, err := os.ReadFile(filepath.Join(root, "worksheets", "field-probe-uplink.toml"))
+	if err != nil {
+		t.Fatal(err)
+	}
 	sum, err := os.ReadFile(filepath.Join(root, "go.sum"))
 	if err != nil {
 		t.Fatal(err)
 	}
-	for name, data := range map[string][]byte{"go.mod": []byte(goMod), "go.sum": sum, "main.go": []byte(outsideMain)} {
-		if err := os.WriteFile(filepath.Join(dir, name), data, 0o644); err != nil {
-			t.Fatal(err)
-		}
-	}
-	cmd := exec.Command(goTool, "run", ".", filepath.Join(root, "worksheets", "field-probe-uplink.toml"))
-	cmd.Dir = dir
-	// -mod=mod lets go fill in the requirements rfledger brings from its own go.mod; the
-	// modules themselves come from the copied go.sum and the module cache this test runs with.
-	cmd.Env = append(os.Environ(), "GOFLAGS=-mod=mod", "GOWORK=off")
-	out, err := cmd.CombinedOutput()
-	if err != nil {
-		t.Fatalf("go run in an outside module: %v\n%s", err, out)
-	}
-	for _, want := range []string{
-		"link.margin = 9.50 dB\n",
-		"link.margin >= 10 dB: false\n",
-		"tx.eirp <= 25 mW: true\n",
-		"solves: 1\n",
-		"#define RIG_SHEET_HASH \"",
-		"#define RIG_RX_SENSITIVITY_DBM (",
+	goMod := "module example.com/testrig\n\ngo 1.26\n\nrequire github.com/rfledger/rfledger v0.0.0\n\nreplace github.com/rfledger/rfledger => " + root + "\n"
+	for _, tc := range []struct {
+		name, main string
+		want       []string
+	}{
+		{"README", "package main\n\n" + readme, []string{
+			"link.margin = 9.50 dB\n",
+			"link.margin >= 10 dB false\n",
+			"tx.eirp <= 25 mW true\n",
+		}},
+		{"writers", outsideMain, []string{
+			"link.margin = 9.50 dB\n",
+			"link.margin >= 10 dB: false\n",
+			"tx.eirp <= 25 mW: true\n",
+			"solves: 1\n",
+			"#define RIG_SHEET_HASH \"",
+			"#define RIG_RX_SENSITIVITY_DBM (",
+		}},
 	} {
-		if !strings.Contains(string(out), want) {
-			t.Errorf("the outside program's output lacks %q:\n%s", want, out)
+		dir := t.TempDir()
+		files := map[string][]byte{"go.mod": []byte(goMod), "go.sum": sum, "main.go": []byte(tc.main), "worksheets/field-probe-uplink.toml": demo}
+		for name, data := range files {
+			if err := os.MkdirAll(filepath.Dir(filepath.Join(dir, name)), 0o755); err != nil {
+				t.Fatal(err)
+			}
+			if err := os.WriteFile(filepath.Join(dir, name), data, 0o644); err != nil {
+				t.Fatal(err)
+			}
+		}
+		cmd := exec.Command(goTool, "run", ".", "worksheets/field-probe-uplink.toml")
+		cmd.Dir = dir
+		// -mod=mod lets go fill in the requirements rfledger brings from its own go.mod; the
+		// modules themselves come from the copied go.sum and the module cache this test runs with.
+		cmd.Env = append(os.Environ(), "GOFLAGS=-mod=mod", "GOWORK=off")
+		out, err := cmd.CombinedOutput()
+		if err != nil {
+			t.Errorf("%s: go run in an outside module: %v\n%s", tc.name, err, out)
+			continue
+		}
+		for _, want := range tc.want {
+			if !strings.Contains(string(out), want) {
+				t.Errorf("%s: the outside program's output lacks %q:\n%s", tc.name, want, out)
+			}
 		}
 	}
+}
+
+// readmeExample returns the Go code block of the README's "Using rfledger from Go" section.
+func readmeExample(path string) (string, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return "", err
+	}
+	_, section, ok := strings.Cut(string(data), "\n## Using rfledger from Go\n")
+	if ok {
+		_, section, ok = strings.Cut(section, "\n```go\n")
+	}
+	if ok {
+		section, _, ok = strings.Cut(section, "\n```\n")
+	}
+	if !ok {
+		return "", errors.New(path + ": no Go code block under \"## Using rfledger from Go\"")
+	}
+	return section + "\n", nil
 }
