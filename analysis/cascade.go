@@ -18,13 +18,13 @@ import (
 // 1 dB compression point follow.
 type Cascade struct {
 	Chain  *engine.Chain
-	Stages []rfmath.Stage
-	Result rfmath.Cascade
-	Notes  []string // what was assumed (a stage without a noise figure, say)
-	Err    error    // why the cascade could not be worked out
+	Stages []rfmath.Stage // each stage's gain, noise figure and intercepts, in signal order
+	Result rfmath.Cascade // the whole chain's figures, and each stage's cumulative ones and shares
+	Notes  []string       // what was assumed (a stage without a noise figure, say)
+	Err    error          // why the cascade could not be worked out
 
 	Input     *engine.Quantity // the level entering the chain (nil when the group has none)
-	InputDBm  float64
+	InputDBm  float64          // Input's value in dBm
 	Bandwidth *engine.Quantity // the noise bandwidth (nil when the group has none)
 	NoiseDBm  float64          // thermal noise k·T0·B at the chain input, dBm
 	BackoffDB float64          // the back-off from each stage's output P1dB the input must keep

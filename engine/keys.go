@@ -10,7 +10,7 @@ import (
 
 // Key is one key of the worksheet format.
 type Key struct {
-	Name     string
+	Name     string // the key as written in the worksheet
 	Doc      string // what the key holds, in a sentence or two
 	Required bool   // whether its table must have it
 }
