@@ -166,7 +166,7 @@ var sweepKeyDocs = []Key{
 	{Name: "vary", Required: true, Doc: `The full name of the input to vary ("path.distance").`},
 	{Name: "from", Required: true, Doc: `The first value, with its unit ("200 m").`},
 	{Name: "to", Required: true, Doc: `The last value, with its unit ("10 km").`},
-	{Name: "steps", Doc: "How many points, from 2 to 10000 (default 20)."},
+	{Name: "steps", Doc: "How many intervals the range is cut into, from 2 to 10000 (default 20): a sweep evaluates steps + 1 points, both ends included."},
 	{Name: "scale", Doc: `How the points are spaced: "lin" (the default) or "log" (needs positive linear from and to).`},
 	{Name: "plot", Doc: `The quantities to tabulate and chart against the swept input: a full name or a list of them.`},
 }
