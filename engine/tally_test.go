@@ -84,9 +84,9 @@ func TestMergeTallies(t *testing.T) {
 	}
 }
 
-// TestTallyNoAllocs: a counted point that raises no warning, and one that raises a warning
-// already counted, allocate nothing in the engine (the Monte Carlo run's budget is zero
-// allocations per trial).
+// TestTallyNoAllocs: a counted point that raises no warning allocates nothing (the Monte
+// Carlo run's budget is zero allocations per trial), and counting a warning already seen adds
+// no allocation.
 func TestTallyNoAllocs(t *testing.T) {
 	r := evalSrc(t, tallySheet)
 	sh := r.Sheet()
@@ -102,5 +102,24 @@ func TestTallyNoAllocs(t *testing.T) {
 	})
 	if clean != 0 {
 		t.Errorf("%v allocations per clean point, want 0", clean)
+	}
+	// A point below d0 raises the warning again: counting it costs nothing beyond what the
+	// function's own call allocates for its message's arguments, the same as an uncounted run.
+	warned := testing.AllocsPerRun(200, func() {
+		i++
+		sc.Point(i)
+		sc.Set(d, units.Lin(50, units.Length))
+		sc.Run(cone)
+	})
+	quiet := r.Scenario()
+	uncounted := testing.AllocsPerRun(200, func() {
+		quiet.Set(d, units.Lin(50, units.Length))
+		quiet.Run(cone)
+	})
+	if warned != uncounted {
+		t.Errorf("a counted warned point allocates %v times, an uncounted one %v", warned, uncounted)
+	}
+	if ts := sc.Tallies(); len(ts) != 1 || ts[0].Points < 200 {
+		t.Errorf("tallies %+v, want the warning counted at every warned point", ts)
 	}
 }

@@ -145,6 +145,26 @@ func TestPageAtRisk(t *testing.T) {
 	if !strings.Contains(verdict, " % ± 0.4 % |") {
 		t.Errorf("chance without its standard error (sqrt(5/36/10000) = 0.37 %%):\n%s", verdict)
 	}
+	_, schema, _ := run(t, "schema", "--render-output")
+	_, js, _ := run(t, "render", "--json", sheet)
+	for _, e := range schematest.Validate([]byte(schema), []byte(js)) {
+		t.Error(e)
+	}
+	var doc struct {
+		AtRisk       bool `json:"at_risk"`
+		Requirements []struct {
+			Worst     float64
+			WorstPass bool    `json:"worst_pass"`
+			Chance    float64 `json:"chance"`
+			ChanceSE  float64 `json:"chance_se"`
+		}
+	}
+	if err := json.Unmarshal([]byte(js), &doc); err != nil {
+		t.Fatal(err)
+	}
+	if rq := doc.Requirements[0]; !doc.AtRisk || math.Abs(rq.Worst-4) > 1e-9 || rq.WorstPass || math.Abs(rq.ChanceSE-math.Sqrt(rq.Chance*(1-rq.Chance)/10000)) > 1e-12 {
+		t.Errorf("render --json: at_risk %v, requirement %+v", doc.AtRisk, rq)
+	}
 	free := writeSheet(t, "free.toml", "focus = \"m\"\np = { is = \"10 dBm\", tol = \"3 dB\" }\nm = \"= p - 3 dB\"\n")
 	_, page, _ = run(t, "render", free)
 	if strings.Contains(page, "every requirement holds") {
