@@ -224,3 +224,38 @@ within  = ["20 m", "2 km"]
 		t.Errorf("the solve does not say its answer is outside logdist's range:\n%s", page)
 	}
 }
+
+// TestCasesAtRisk: with [[case]] entries the analyses run for the nominal case; the page's
+// verdict says that case is at risk, in its headline, its line and its verdict cell, and
+// check's JSON marks it (and the sheet) at risk while the other case, not analysed, is not.
+func TestCasesAtRisk(t *testing.T) {
+	sheet := writeSheet(t, "cases.toml", riskSheet+"\n[[case]]\nname = \"strong\"\nset = { p = \"14 dBm\" }\n")
+	_, page, _ := run(t, "render", sheet)
+	for _, want := range []string{
+		"**PASS at nominal in all 2 cases, but AT RISK in “nominal”:**",
+		"- “nominal”: every requirement holds together in 83.",
+		": **at risk** (below 90 %).",
+		"| verdict | PASS at nominal, **AT RISK** | PASS |",
+	} {
+		if !strings.Contains(page, want) {
+			t.Errorf("page lacks %q", want)
+		}
+	}
+	code, js, _ := run(t, "check", "--format", "json", sheet)
+	var doc struct {
+		Sheets []struct {
+			AtRisk bool `json:"at_risk"`
+			Cases  []struct {
+				Name   string
+				AtRisk bool `json:"at_risk"`
+			}
+		}
+	}
+	if err := json.Unmarshal([]byte(js), &doc); err != nil {
+		t.Fatal(err)
+	}
+	s := doc.Sheets[0]
+	if code != ExitOK || !s.AtRisk || len(s.Cases) != 2 || !s.Cases[0].AtRisk || s.Cases[1].AtRisk {
+		t.Errorf("exit %d, sheet at risk %v, cases %+v", code, s.AtRisk, s.Cases)
+	}
+}

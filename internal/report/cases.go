@@ -97,12 +97,16 @@ func caseVerdictCell(c Case) string {
 func (p *page) caseSpreads() {
 	var lines []string
 	for _, c := range p.in.Cases {
-		if t := c.Analysis; spreadLine(c.Result, t) != "" {
-			lines = append(lines, fmt.Sprintf("- “%s”: every requirement holds together in %s of %s Monte Carlo trials.", text(c.Case.Name), chanceText(t.Tolerance.PPass, t.Tolerance.PPassSE, t.Tolerance.Trials), analysis.Count(t.Tolerance.Trials)))
+		a := c.Analysis
+		if a == nil || a.Tolerance == nil || a.Tolerance.Trials == 0 || len(c.Result.Sheet().Requires) == 0 {
+			continue
 		}
-		if line := atRiskLine(c.Result, c.Analysis); line != "" {
-			lines = append(lines, "- “"+text(c.Case.Name)+"”: "+line)
+		t := a.Tolerance
+		line := fmt.Sprintf("- “%s”: every requirement holds together in %s of %s Monte Carlo trials", text(c.Case.Name), chanceText(t.PPass, t.PPassSE, t.Trials), analysis.Count(t.Trials))
+		if analysis.AtRisk(c.Result, a) {
+			line += fmt.Sprintf(": **at risk** (below %.0f %%)", 100*analysis.AtRiskBelow)
 		}
+		lines = append(lines, line+".")
 	}
 	if len(lines) > 0 {
 		p.f("%s\n\n", strings.Join(lines, "\n"))
