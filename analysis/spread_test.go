@@ -1,7 +1,6 @@
 package analysis_test
 
 import (
-	"fmt"
 	"math"
 	"strings"
 	"testing"
@@ -10,6 +9,7 @@ import (
 
 	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/internal/sheettest"
 )
 
 // spreadSheet has one uniform input x on [0 dB, 6 dB] (3 dB ± 3 dB) and three bounds on it:
@@ -91,49 +91,21 @@ func TestAtRisk(t *testing.T) {
 	}
 }
 
-// warnSheet uses logdist, which warns when the distance is below the reference distance d0
-// (the model is anchored at d0: Rappaport's log-distance model): the distance is uniform on
-// 88–132 m, so P(d < 100 m) = 12/44.
-var warnSheet = fmt.Sprintf(`
-focus = "loss"
-f     = "868 MHz"
-d     = { is = "110 m", tol = "20 %%", dist = "uniform" }
-d0    = "100 m"
-n     = 3.0
-loss  = "= logdist(d, f, d0, n)"
-
-[[sweep]]
-vary  = "d"
-from  = "50 m"
-to    = "150 m"
-steps = 10
-plot  = ["loss"]
-
-[[solve]]
-name   = "near"
-vary   = "d"
-so_that = "loss"
-equals = "%.9f dB"
-within = ["20 m", "2 km"]
-
-[[solve]]
-name   = "far"
-vary   = "d"
-so_that = "loss"
-equals = "%.9f dB"
-within = ["20 m", "2 km"]
-`, logDist(80), logDist(500))
-
 // logDist is the log-distance path loss at 868 MHz with d0 = 100 m and n = 3: free space
 // (ITU-R P.525-4) out to d0, then 10·n·log10(d/d0) (Rappaport, log-distance path loss).
 func logDist(d float64) float64 { return fsplDB(100, 868e6) + 30*math.Log10(d/100) }
 
-// TestWarningsAtEveryPoint: the nominal (110 m) raises no warning, but the Monte Carlo
-// trials below 100 m, the sweep points below 100 m (50, 60, 70, 80, 90 m: the first five of
-// eleven) and the solve whose answer is 80 m do; each comes back counted, as a diagnostic
-// at the quantity.
+// distanceFor inverts logDist: the distance at which the loss is l dB.
+func distanceFor(l float64) float64 { return 100 * math.Pow(10, (l-fsplDB(100, 868e6))/30) }
+
+// TestWarningsAtEveryPoint: in testdata/valid/below_reference.toml logdist warns below its
+// reference distance d0 = 100 m (the model is anchored there). The nominal (110 m) raises no
+// warning, but the Monte Carlo trials below 100 m (d uniform on 88–132 m, so a share of
+// 12/44), the sweep points below 100 m (50, 60, 70, 80, 90 m: the first five of eleven) and
+// the solve whose answer is below 100 m do; each comes back counted, as a diagnostic at the
+// quantity.
 func TestWarningsAtEveryPoint(t *testing.T) {
-	r := evalSrc(t, warnSheet)
+	r := loadValid(t, "below_reference.toml")
 	const trials = 20_000
 	a, diags := analysis.Analyze(r, analysis.Options{Trials: trials, Seed: 5})
 	if diags.HasErrors() {
@@ -151,8 +123,11 @@ func TestWarningsAtEveryPoint(t *testing.T) {
 	if len(sw) != 1 || sw[0].Points != 5 || sw[0].First != 0 || sw[0].Last != 4 {
 		t.Errorf("sweep warnings = %+v, want 5 points, the first five", sw)
 	}
-	if near, far := a.Solves[0], a.Solves[1]; len(near.Warnings) != 1 || !strings.Contains(near.Warnings[0], "shorter than the reference distance") || len(far.Warnings) != 0 {
-		t.Errorf("solve warnings: near (80 m) %q, far (500 m) %q; want one at the near answer only", near.Warnings, far.Warnings)
+	near, far := a.Solves[0], a.Solves[1]
+	sheettest.Near(t, "near answer (m)", near.Value, distanceFor(70), 1e-6)
+	sheettest.Near(t, "far answer (m)", far.Value, distanceFor(90), 1e-6)
+	if len(near.Warnings) != 1 || !strings.Contains(near.Warnings[0], "shorter than the reference distance") || len(far.Warnings) != 0 {
+		t.Errorf("solve warnings: near (%.4g m) %q, far (%.4g m) %q; want one at the near answer only", near.Value, near.Warnings, far.Value, far.Warnings)
 	}
 	var msgs []string
 	for _, d := range diags {
@@ -163,7 +138,7 @@ func TestWarningsAtEveryPoint(t *testing.T) {
 	wantIn := []string{
 		" of 20,000 Monte Carlo trials (figures from trial ",
 		"at 5 of 11 points of the sweep of d, from d = 50 m to 90 m",
-		"at the answer of solve near (d = 80 m)",
+		"at the answer of solve near (d = 91.07 m)",
 	}
 	if len(msgs) != len(wantIn) {
 		t.Fatalf("warnings on loss: %q, want %d", msgs, len(wantIn))
@@ -178,7 +153,7 @@ func TestWarningsAtEveryPoint(t *testing.T) {
 // TestTrialWarningsDoNotDependOnWorkers: the counts and the message (the first trial's)
 // are the same with one worker and with four.
 func TestTrialWarningsDoNotDependOnWorkers(t *testing.T) {
-	r := evalSrc(t, warnSheet)
+	r := loadValid(t, "below_reference.toml")
 	var got []engine.Tally
 	for _, w := range []int{1, 4} {
 		a, _ := analysis.Analyze(r, analysis.Options{Trials: 3000, Seed: 9, Workers: w})

@@ -177,30 +177,10 @@ func TestPageAtRisk(t *testing.T) {
 
 // TestPageWarningsAtPoints: warnings raised only at sweep points, Monte Carlo trials and a
 // solve's answer reach the page, after the verdict and before the line items, and the solve
-// says so beside its answer. logdist warns below its reference distance d0 (the model is
-// anchored there: Rappaport, log-distance path loss); the nominal 110 m is above it.
+// says so beside its answer. logdist warns below its reference distance d0 = 100 m (the model
+// is anchored there: Rappaport, log-distance path loss); the nominal 110 m is above it.
 func TestPageWarningsAtPoints(t *testing.T) {
-	sheet := writeSheet(t, "near.toml", `focus = "loss"
-f    = "868 MHz"
-d    = { is = "110 m", tol = "20 %", dist = "uniform" }
-d0   = "100 m"
-n    = 3.0
-loss = "= logdist(d, f, d0, n)"
-
-[[sweep]]
-vary  = "d"
-from  = "50 m"
-to    = "150 m"
-steps = 10
-plot  = ["loss"]
-
-[[solve]]
-name    = "near"
-vary    = "d"
-so_that = "loss"
-equals  = "70 dB"
-within  = ["20 m", "2 km"]
-`)
+	sheet := "../../testdata/valid/below_reference.toml"
 	code, page, stderr := run(t, "render", sheet)
 	if code != ExitOK {
 		t.Fatal(stderr)
