@@ -157,6 +157,7 @@ func Analyze(r *engine.Result, opt Options) (*Analysis, engine.Diagnostics) {
 		} else {
 			a.Tolerance = fa.tolerance(opt)
 			if a.Tolerance != nil {
+				diags = append(diags, cornerDiags(a.Tolerance)...)
 				diags = append(diags, trialsDiags(a.Tolerance)...)
 			}
 		}

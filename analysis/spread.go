@@ -28,6 +28,8 @@ type RequireSpread struct {
 	Holds      int     // Monte Carlo trials in which the requirement holds
 	Chance     float64 // Holds / Trials; NaN when the trials were not run
 	ChanceSE   float64 // its binomial standard error, StdErr(Chance, Trials)
+	// Warnings are the validity warnings raised at the worst case's corner (point 0).
+	Warnings []engine.Tally
 }
 
 // StdErr is the standard error of a proportion p estimated from n independent trials,
@@ -99,12 +101,30 @@ func (fa *focusAt) requireWorst(qs []*engine.Quantity, lo, hi []units.Q, cone *e
 				}
 			}
 		}
-		w, ok := sub.at(qs, corner, cone)
-		if !ok {
-			continue
+		// The corner in a scenario of its own, counting the warnings its models raise there.
+		csc := fa.nom.Scenario()
+		csc.Point(0)
+		for j, in := range qs {
+			csc.Set(in, corner[j])
 		}
-		out[i].Worst, out[i].Unit = w, engine.UnitName(q)
-		out[i].WorstHolds = meets(rq.Op, w, numberIn(sub.fu, rq.Bound))
+		csc.Run(cone)
+		out[i].Warnings = csc.Tallies()
+		v, ok := csc.Value(q)
+		if w := numberIn(sub.fu, v); ok && !math.IsNaN(w) {
+			out[i].Worst, out[i].Unit = w, engine.UnitName(q)
+			out[i].WorstHolds = meets(rq.Op, w, numberIn(sub.fu, rq.Bound))
+		}
+	}
+	return out
+}
+
+// cornerDiags says that a requirement's worst case lies where a model is not valid.
+func cornerDiags(t *Tolerance) engine.Diagnostics {
+	var out engine.Diagnostics
+	for _, rs := range t.Requires {
+		out = append(out, talliesDiags(rs.Warnings, func(engine.Tally) string {
+			return fmt.Sprintf("at the worst case of the requirement %s (%s = %s)", rs.Require.That, rs.Require.Subject, fmtX(rs.Worst, rs.Unit))
+		})...)
 	}
 	return out
 }

@@ -101,9 +101,9 @@ func distanceFor(l float64) float64 { return 100 * math.Pow(10, (l-fsplDB(100, 8
 // TestWarningsAtEveryPoint: in testdata/valid/below_reference.toml logdist warns below its
 // reference distance d0 = 100 m (the model is anchored there). The nominal (110 m) raises no
 // warning, but the Monte Carlo trials below 100 m (d uniform on 88–132 m, so a share of
-// 12/44), the sweep points below 100 m (50, 60, 70, 80, 90 m: the first five of eleven) and
-// the solve whose answer is below 100 m do; each comes back counted, as a diagnostic at the
-// quantity.
+// 12/44), the sweep points below 100 m (50, 60, 70, 80, 90 m: the first five of eleven), the
+// solve whose answer is below 100 m and the requirement's worst case do; each comes back
+// counted, as a diagnostic at the quantity.
 func TestWarningsAtEveryPoint(t *testing.T) {
 	r := loadValid(t, "below_reference.toml")
 	const trials = 20_000
@@ -135,7 +135,15 @@ func TestWarningsAtEveryPoint(t *testing.T) {
 			msgs = append(msgs, d.Summary)
 		}
 	}
+	// The requirement loss >= 70 dB has its worst case at 88 m, below d0; it holds where
+	// d >= 91.07 m, a share of (132 − 91.07)/44 of the uniform distance.
+	rs := a.Tolerance.Requires[0]
+	sheettest.Near(t, "worst case of loss >= 70 dB", rs.Worst, logDist(88), 1e-9)
+	if p, se := (132-distanceFor(70))/44, rs.ChanceSE; math.Abs(rs.Chance-p) > 4*se || len(rs.Warnings) != 1 {
+		t.Errorf("loss >= 70 dB: chance %.4f, want %.4f ± %.4f; warnings at its worst case %+v, want one", rs.Chance, p, 4*se, rs.Warnings)
+	}
 	wantIn := []string{
+		"at the worst case of the requirement loss >= 70 dB (loss = 69.55 dB)",
 		" of 20,000 Monte Carlo trials (figures from trial ",
 		"at 5 of 11 points of the sweep of d, from d = 50 m to 90 m",
 		"at the answer of solve near (d = 91.07 m)",

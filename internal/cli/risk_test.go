@@ -194,12 +194,16 @@ func TestPageWarningsAtPoints(t *testing.T) {
 		"Monte Carlo trials (figures from trial",
 		"at 5 of 11 points of the sweep of d, from d = 50 m to 90 m",
 		"at the answer of solve near",
+		"at the worst case of the requirement loss \\>= 70 dB",
 	} {
 		if !strings.Contains(warn, want) {
 			t.Errorf("warnings lack %q:\n%s", want, warn)
 		}
 	}
 	// 70 dB is reached below 100 m: free space to 100 m at 868 MHz is 71.2 dB (ITU-R P.525-4).
+	if !strings.Contains(page, "| 69.55 dB (**fails**; a model is outside its range there) |") {
+		t.Errorf("the worst case does not say it lies outside logdist's range:\n%s", page)
+	}
 	if !strings.Contains(page, "; a model is outside its range there: logdist\\: distance") {
 		t.Errorf("the solve does not say its answer is outside logdist's range:\n%s", page)
 	}

@@ -52,10 +52,14 @@ func worstText(sh *engine.Sheet, rs analysis.RequireSpread) string {
 		return ""
 	}
 	s := worstValue(sh, rs)
-	if rs.WorstHolds {
-		return s + " (holds)"
+	outside := ""
+	if len(rs.Warnings) > 0 {
+		outside = "; a model is outside its range there"
 	}
-	return s + " (**fails**)"
+	if rs.WorstHolds {
+		return s + " (holds" + outside + ")"
+	}
+	return s + " (**fails**" + outside + ")"
 }
 
 // worstValue writes a requirement's worst case in its quantity's display unit (as
