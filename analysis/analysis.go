@@ -44,6 +44,7 @@ type Analysis struct {
 	ChangeUnit  string // the unit of changes of the focus ("dB" for a decibel focus)
 	Sensitivity []Sensitivity
 	Budget      []Contribution // where the budget goes; nil when the focus is not a sum of decibel terms
+	Flow        *SignalFlow    // the budget in signal order; nil when the focus is not a level in signal order
 	Tolerance   *Tolerance     // nil when no input the focus depends on has a tolerance
 	Sweeps      []SweepResult
 	Solves      []SolveResult
@@ -56,12 +57,18 @@ type Sensitivity struct {
 	Change float64 // in Analysis.ChangeUnit; NaN when the focus could not be evaluated
 }
 
-// Contribution is one signed line item of a focus that is a sum of decibel terms.
+// Contribution is one signed line item of a focus that is a sum of decibel terms. The items
+// with a reference (dBm, dBHz) come first as the formula writes them, then the gains and
+// losses in dB, largest first.
 type Contribution struct {
-	Item     string  // label: a quantity's name, or "quantity: term" for a term inside a formula
-	Quantity string  // the quantity the term belongs to
-	Value    float64 // signed, in the term's own decibel unit
-	Unit     string
+	Item      string  // label: a quantity's name, or "quantity: term" for a term inside a formula
+	Quantity  string  // the quantity the term belongs to
+	Value     float64 // signed, in the term's own decibel unit
+	Unit      string
+	Sign      int     // how the term enters the sum: +1 or −1
+	Total     float64 // the running total of the items so far, in TotalUnit
+	TotalUnit string
+	ref       units.Q // the term's value, before its sign
 }
 
 // Tolerance is the spread of the focus from the inputs' tolerances.
@@ -81,6 +88,18 @@ type Tolerance struct {
 	Samples   []float64       // the focus in each trial that evaluated, sorted
 	Requires  []RequireSpread // every requirement's worst case and chance, in the sheet's order
 	Warnings  []engine.Tally  // validity warnings raised in the trials (points are trial numbers from 0)
+	// LowCorner and HighCorner say where each toleranced input sits in the worst case low
+	// and high: the input with the larger effect first, ties by name.
+	LowCorner, HighCorner []Corner
+}
+
+// Corner is where one toleranced input sits in a worst case.
+type Corner struct {
+	Input  string
+	Limit  string  // "low" or "high" (its tolerance limit), or "nominal" when it does not move the focus
+	Value  float64 // the input's value there, in Unit
+	Unit   string  // the input's report unit
+	Effect float64 // the change of the focus (in Analysis.ChangeUnit) with this input alone moved there; NaN when a limit could not be evaluated
 }
 
 // Share is one input's share of the focus's variance.
@@ -152,6 +171,7 @@ func Analyze(r *engine.Result, opt Options) (*Analysis, engine.Diagnostics) {
 		fa := newFocusAt(r, f)
 		a.Sensitivity = fa.sensitivity()
 		a.Budget = budget(fa.sc, f)
+		a.Flow = signalFlow(fa.sc, f)
 		if opt.Trials > MaxTrials {
 			diags = append(diags, engine.Diagnostic{Severity: engine.Error, Quantity: "trials", Summary: fmt.Sprintf("at most %d Monte Carlo trials", MaxTrials), Range: engine.Range{File: s.File}})
 		} else {
@@ -250,8 +270,20 @@ func (fa *focusAt) sensitivity() []Sensitivity {
 		}
 		out = append(out, Sensitivity{Input: q.Name, Per: per, Change: change})
 	}
-	sort.SliceStable(out, func(i, j int) bool { return math.Abs(out[i].Change) > math.Abs(out[j].Change) })
+	sort.Slice(out, func(i, j int) bool { return largerEffect(out[i].Change, out[j].Change, out[i].Input, out[j].Input) })
 	return out
+}
+
+// largerEffect orders effects largest first, those that could not be evaluated (NaN) last,
+// ties by name, so the order never depends on the order the inputs were found in.
+func largerEffect(a, b float64, nameA, nameB string) bool {
+	if na, nb := math.IsNaN(a), math.IsNaN(b); na != nb {
+		return nb
+	}
+	if x, y := math.Abs(a), math.Abs(b); x != y && !math.IsNaN(x) {
+		return x > y
+	}
+	return nameA < nameB
 }
 
 // tolerance computes worst cases, RSS and the Monte Carlo spread of the focus.
@@ -297,11 +329,15 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 		fl, okl := fa.at(qs[i:i+1], []units.Q{in.lo}, cone)
 		fh, okh := fa.at(qs[i:i+1], []units.Q{in.hi}, cone)
 		lowCorner[i], highCorner[i] = in.nom, in.nom
+		low, high := corner(in.q, "nominal", in.nom, math.NaN()), corner(in.q, "nominal", in.nom, math.NaN())
 		if okl && okh {
+			low.Effect, high.Effect = 0, 0
 			if fl < fh {
 				lowCorner[i], highCorner[i] = in.lo, in.hi
+				low, high = corner(in.q, "low", in.lo, fl-t.Nominal), corner(in.q, "high", in.hi, fh-t.Nominal)
 			} else if fh < fl {
 				lowCorner[i], highCorner[i] = in.hi, in.lo
+				low, high = corner(in.q, "high", in.hi, fh-t.Nominal), corner(in.q, "low", in.lo, fl-t.Nominal)
 			}
 			if span := in.hi.V - in.lo.V; span > 0 {
 				slope := (fh - fl) / span
@@ -309,7 +345,10 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 				rss += sd * sd
 			}
 		}
+		t.LowCorner, t.HighCorner = append(t.LowCorner, low), append(t.HighCorner, high)
 	}
+	sortCorners(t.LowCorner)
+	sortCorners(t.HighCorner)
 	union := s.Cone(qs...)
 	t.WorstLow, _ = fa.at(qs, lowCorner, union)
 	t.WorstHigh, _ = fa.at(qs, highCorner, union)
@@ -401,6 +440,14 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 	}
 	t.Shares = varianceShares(focusVals, draws, len(ins), func(i int) string { return ins[i].q.Name })
 	return t
+}
+
+func corner(q *engine.Quantity, limit string, v units.Q, effect float64) Corner {
+	return Corner{Input: q.Name, Limit: limit, Value: engine.Number(q, v), Unit: engine.UnitName(q), Effect: effect}
+}
+
+func sortCorners(cs []Corner) {
+	sort.Slice(cs, func(i, j int) bool { return largerEffect(cs[i].Effect, cs[j].Effect, cs[i].Input, cs[j].Input) })
 }
 
 // varianceShares estimates each input's share of the focus variance as its squared

@@ -4,8 +4,6 @@ import (
 	"encoding/json"
 	"encoding/xml"
 	"math"
-	"os"
-	"path/filepath"
 	"strings"
 	"testing"
 
@@ -24,19 +22,10 @@ m = "= p - 3 dB"
 that = "= m >= 5 dBm"
 `
 
-func writeSheet(t *testing.T, name, src string) string {
-	t.Helper()
-	p := filepath.Join(t.TempDir(), name)
-	if err := os.WriteFile(p, []byte(src), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	return p
-}
-
 // TestCheckAtRisk: check says a sheet that passes at nominal but holds in fewer than 90 % of
 // the trials is at risk, in every format, and still exits 0.
 func TestCheckAtRisk(t *testing.T) {
-	sheet := writeSheet(t, "risk.toml", riskSheet)
+	sheet := writeSheet(t, t.TempDir(), "risk.toml", riskSheet)
 	code, out, _ := run(t, "check", sheet)
 	if code != ExitOK {
 		t.Errorf("exit %d, want %d: a nominal pass", code, ExitOK)
@@ -129,7 +118,7 @@ func TestCheckAtRisk(t *testing.T) {
 // the nominal value, the worst case and the chance with its standard error; a sheet without
 // requirements has no row for the chance that every requirement holds.
 func TestPageAtRisk(t *testing.T) {
-	sheet := writeSheet(t, "risk.toml", riskSheet)
+	sheet := writeSheet(t, t.TempDir(), "risk.toml", riskSheet)
 	_, page, _ := run(t, "render", sheet)
 	verdict := page[strings.Index(page, "## Verdict"):]
 	verdict = verdict[:strings.Index(verdict[3:], "\n## ")+3]
@@ -165,7 +154,7 @@ func TestPageAtRisk(t *testing.T) {
 	if rq := doc.Requirements[0]; !doc.AtRisk || math.Abs(rq.Worst-4) > 1e-9 || rq.WorstPass || math.Abs(rq.ChanceSE-math.Sqrt(rq.Chance*(1-rq.Chance)/10000)) > 1e-12 {
 		t.Errorf("render --json: at_risk %v, requirement %+v", doc.AtRisk, rq)
 	}
-	free := writeSheet(t, "free.toml", "focus = \"m\"\np = { is = \"10 dBm\", tol = \"3 dB\" }\nm = \"= p - 3 dB\"\n")
+	free := writeSheet(t, t.TempDir(), "free.toml", "focus = \"m\"\np = { is = \"10 dBm\", tol = \"3 dB\" }\nm = \"= p - 3 dB\"\n")
 	_, page, _ = run(t, "render", free)
 	if strings.Contains(page, "every requirement holds") {
 		t.Errorf("a sheet without requirements speaks of every requirement holding:\n%s", page)
@@ -213,7 +202,7 @@ func TestPageWarningsAtPoints(t *testing.T) {
 // verdict says that case is at risk, in its headline, its line and its verdict cell, and
 // check's JSON marks it (and the sheet) at risk while the other case, not analysed, is not.
 func TestCasesAtRisk(t *testing.T) {
-	sheet := writeSheet(t, "cases.toml", riskSheet+"\n[[case]]\nname = \"strong\"\nset = { p = \"14 dBm\" }\n")
+	sheet := writeSheet(t, t.TempDir(), "cases.toml", riskSheet+"\n[[case]]\nname = \"strong\"\nset = { p = \"14 dBm\" }\n")
 	_, page, _ := run(t, "render", sheet)
 	for _, want := range []string{
 		"**PASS at nominal in all 2 cases, but AT RISK in “nominal”:**",

@@ -27,7 +27,8 @@ type jsonDoc struct {
 	Chains       map[string]jsonChain `json:"chains"`
 	Sensitivity  []jsonSens           `json:"sensitivity"`
 	Budget       []jsonContribution   `json:"budget"`
-	Tolerance    any                  `json:"tolerance"` // *jsonTol, or an empty object
+	SignalFlow   []jsonFlowRow        `json:"signal_flow"` // the budget in signal order (flow.go); empty when the focus is not a level in signal order
+	Tolerance    any                  `json:"tolerance"`   // *jsonTol, or an empty object
 	Sweeps       []jsonSweep          `json:"sweeps"`
 	Solves       []jsonSolve          `json:"solves"`
 	Warnings     []string             `json:"warnings"`
@@ -125,6 +126,31 @@ type jsonTol struct {
 	RSSSigma   float64 `json:"rss_sigma"`
 	Unit       string  `json:"unit"`
 	MonteCarlo jsonMC  `json:"monte_carlo"`
+	// Where each toleranced input sits in the worst case low and high, largest effect first.
+	WorstLowCorner  []jsonCorner `json:"worst_low_corner"`
+	WorstHighCorner []jsonCorner `json:"worst_high_corner"`
+}
+
+// jsonCorner is one input at a worst case: which limit, its value there, and the change of
+// the focus (in the tolerance's change unit: dB for a decibel focus) with it alone moved there.
+type jsonCorner struct {
+	Input  string   `json:"input"`
+	Limit  string   `json:"limit"` // low, high or nominal
+	Value  *float64 `json:"value"`
+	Unit   string   `json:"unit"`
+	SI     *float64 `json:"si"`
+	SIUnit string   `json:"si_unit"`
+	Effect *float64 `json:"effect"`
+}
+
+func cornersJSON(cs []analysis.Corner) []jsonCorner {
+	out := []jsonCorner{}
+	for _, c := range cs {
+		jc := jsonCorner{Input: c.Input, Limit: c.Limit, Value: num(c.Value), Unit: c.Unit, Effect: num(c.Effect)}
+		jc.SI, jc.SIUnit = siOfNumber(c.Value, c.Unit)
+		out = append(out, jc)
+	}
+	return out
 }
 
 type jsonSweep struct {
@@ -177,7 +203,7 @@ func JSON(in Input) []byte {
 	sh, r := in.Sheet, in.Result
 	doc := jsonDoc{Format: 2, Tolerance: struct{}{}, Title: sh.Title, Summary: sh.Summary, Focus: sh.Focus, Hash: sh.Hash, Pass: true,
 		Quantities: map[string]jsonQ{}, Chains: map[string]jsonChain{},
-		Requirements: []jsonReq{}, Sensitivity: []jsonSens{}, Sweeps: []jsonSweep{}, Solves: []jsonSolve{}, Warnings: []string{}, Budget: []jsonContribution{}}
+		Requirements: []jsonReq{}, Sensitivity: []jsonSens{}, Sweeps: []jsonSweep{}, Solves: []jsonSolve{}, Warnings: []string{}, Budget: []jsonContribution{}, SignalFlow: []jsonFlowRow{}}
 	doc.Quantities = quantitiesJSON(sh, r)
 	for _, rq := range sh.Requires {
 		pass := passes(r, rq)
@@ -278,12 +304,14 @@ func analysisJSON(doc *jsonDoc, a *analysis.Analysis, sh *engine.Sheet) {
 	for _, c := range a.Budget {
 		doc.Budget = append(doc.Budget, jsonContribution{Item: c.Item, Value: c.Value, Unit: c.Unit})
 	}
+	doc.SignalFlow = flowJSON(a.Flow)
 	if t := a.Tolerance; t != nil {
 		jt := &jsonTol{Nominal: t.Nominal, WorstLow: t.WorstLow, WorstHigh: t.WorstHigh, RSSSigma: t.RSSSigma, Unit: a.Unit,
 			MonteCarlo: jsonMC{Trials: t.Trials, Seed: t.Seed, PPass: t.PPass, PPassSE: t.PPassSE, P01: t.P01, P50: t.P50, P99: t.P99, Failed: t.Failed, Shares: []jShare{}}}
 		for _, s := range t.Shares {
 			jt.MonteCarlo.Shares = append(jt.MonteCarlo.Shares, jShare{Input: s.Input, Share: s.Share})
 		}
+		jt.WorstLowCorner, jt.WorstHighCorner = cornersJSON(t.LowCorner), cornersJSON(t.HighCorner)
 		doc.Tolerance = jt
 	}
 	for _, sw := range a.Sweeps {
