@@ -156,6 +156,9 @@ func Analyze(r *engine.Result, opt Options) (*Analysis, engine.Diagnostics) {
 	}
 	a := &Analysis{}
 	var diags engine.Diagnostics
+	for _, cc := range Cascades(r) {
+		diags = append(diags, cc.Warnings...) // stages near compression at the chain's input level
+	}
 	focus := s.Focus
 	if opt.Focus != "" {
 		focus = opt.Focus

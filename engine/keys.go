@@ -24,6 +24,7 @@ type KeySet struct {
 	Quantity   []Key // a quantity's long form, { is = "14 dBm", tol = "1 dB" }
 	StageText  []Key // a chain stage's texts
 	StageValue []Key // a chain stage's values: each a quantity, short or long form
+	ChainGroup []Key // quantities of a group that holds a chain, which its cascade table reads
 	Require    []Key // a [[require]] table
 	Sweep      []Key // a [[sweep]] table
 	Solve      []Key // a [[solve]] table
@@ -50,6 +51,7 @@ func WorksheetKeys() KeySet {
 		Quantity:      slices.Clone(quantityKeyDocs),
 		StageText:     slices.Clone(stageTextDocs),
 		StageValue:    slices.Clone(stageValueDocs),
+		ChainGroup:    slices.Clone(chainGroupKeyDocs),
 		Require:       slices.Clone(requireKeyDocs),
 		Sweep:         slices.Clone(sweepKeyDocs),
 		Solve:         slices.Clone(solveKeyDocs),
@@ -70,6 +72,7 @@ var (
 	quantityKeys = keyNames(quantityKeyDocs) // "is" first: longForm looks at the others
 	stageKeys    = keyNames(stageValueDocs)  // in the order StageValue stores them
 	stageAllKeys = append(keyNames(stageTextDocs), stageKeys...)
+	chainKeys    = keyNames(chainGroupKeyDocs)
 	requireKeys  = keyNames(requireKeyDocs)
 	sweepKeys    = keyNames(sweepKeyDocs)
 	solveKeys    = keyNames(solveKeyDocs)
@@ -143,6 +146,15 @@ var stageValueDocs = []Key{
 	{Name: "op1db", Doc: "The stage's output 1 dB compression point, in place of ip1db."},
 	{Name: "iip2", Doc: "The stage's input second-order intercept point."},
 	{Name: "oip2", Doc: "The stage's output second-order intercept point, in place of iip2."},
+}
+
+// The keys of a group that holds a chain ([rx] above [[rx.chain]]). Each is a quantity like
+// any other of the group (a value, a formula, the long form), which every chain of the group
+// reads; without them the cascade table shows no levels.
+var chainGroupKeyDocs = []Key{
+	{Name: "chain_input", Doc: `The signal level entering the group's chains, a power ("-90 dBm", or "= level" to use a quantity of the group): the cascade table then shows the level after each stage and checks it against each stage's 1 dB compression point. Default: none, and no levels are shown.`},
+	{Name: "chain_bandwidth", Doc: `The noise bandwidth of the group's chains, a frequency ("125 kHz", or "= bandwidth"): the cascade table then shows the thermal noise (k·T0·B) after each stage. Default: none, and no noise levels are shown.`},
+	{Name: "chain_backoff", Doc: `How far under each stage's output 1 dB compression point the level from chain_input must stay before the page warns, in dB. Default: 10 dB.`},
 }
 
 var requireKeyDocs = []Key{

@@ -146,12 +146,18 @@ func (t *Tol) Limits(nom units.Q) (lo, hi units.Q, err error) {
 	return lo, hi, err
 }
 
-// Chain is a cascade of stages in signal order ([[rx.chain]]).
+// Chain is a cascade of stages in signal order ([[rx.chain]]). Input, Bandwidth and Backoff
+// are its group's chain_input, chain_bandwidth and chain_backoff (nil when the group has
+// none; the back-off is then DefaultBackoffDB).
 type Chain struct {
-	Name   string
-	Stages []*Stage
-	Range  Range
-	node   int
+	Name      string
+	Stages    []*Stage
+	Range     Range
+	Input     *Quantity // the level entering the chain, a power
+	Bandwidth *Quantity // the noise bandwidth, a frequency
+	Backoff   *Quantity // the least distance from each stage's output P1dB, a ratio in dB
+	node      int
+	broken    bool // a stage's keys contradict each other or are of the wrong kind (reported at load)
 }
 
 // Stage is one stage of a chain. Values holds its keys (gain, nf, te, loss, iip3, oip3, ip1db,

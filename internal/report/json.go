@@ -76,6 +76,13 @@ type jsonStage struct {
 	OutDBm     *float64 `json:"signal_out_dbm,omitempty"`
 	IIP2DBm    *float64 `json:"iip2_dbm,omitempty"`
 	CumIIP2DBm *float64 `json:"cum_iip2_dbm,omitempty"`
+	OIP3DBm    *float64 `json:"oip3_dbm,omitempty"`
+	CumOIP3DBm *float64 `json:"cum_oip3_dbm,omitempty"`
+	IP1dBDBm   *float64 `json:"ip1db_dbm,omitempty"`
+	OP1dBDBm   *float64 `json:"op1db_dbm,omitempty"`
+	CumIP1dB   *float64 `json:"cum_ip1db_dbm,omitempty"`
+	CumOP1dB   *float64 `json:"cum_op1db_dbm,omitempty"`
+	BelowOP1dB *float64 `json:"below_op1db_db,omitempty"` // headroom at the chain input level
 }
 
 type jsonChain struct {
@@ -86,6 +93,10 @@ type jsonChain struct {
 	IIP3DBm *float64    `json:"iip3_dbm,omitempty"`
 	OIP3DBm *float64    `json:"oip3_dbm,omitempty"`
 	IIP2DBm *float64    `json:"iip2_dbm,omitempty"`
+	IP1dB   *float64    `json:"ip1db_dbm,omitempty"`
+	OP1dB   *float64    `json:"op1db_dbm,omitempty"`
+	InDBm   *float64    `json:"input_dbm,omitempty"`  // chain_input, when the group gives it
+	Backoff *float64    `json:"backoff_db,omitempty"` // with input_dbm
 	Error   string      `json:"error,omitempty"`
 }
 
@@ -273,7 +284,13 @@ func chainJSON(ci analysis.Cascade) jsonChain {
 	if c.HasIIP2 {
 		jc.IIP2DBm = num(c.IIP2)
 	}
+	if c.HasIP1dB {
+		jc.IP1dB, jc.OP1dB = num(c.IP1dB), num(c.OP1dB)
+	}
 	in, hasIn := inputDBm(ci)
+	if hasIn {
+		jc.InDBm, jc.Backoff = num(in), num(ci.BackoffDB)
+	}
 	for i, st := range ci.Stages {
 		r := c.Stages[i]
 		js := jsonStage{Stage: st.Name, GainDB: st.GainDB, NFDB: st.NFDB, CumGainDB: r.CumGainDB, CumNFDB: r.CumNFDB, NoiseShare: r.NoiseShare}
@@ -292,6 +309,7 @@ func chainJSON(ci analysis.Cascade) jsonChain {
 		if hasIn {
 			js.OutDBm = num(in + r.CumGainDB)
 		}
+		stageLinearityJSON(&js, ci, i)
 		jc.Stages = append(jc.Stages, js)
 	}
 	return jc

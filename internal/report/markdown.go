@@ -312,13 +312,14 @@ func (p *page) cascades() {
 			p.f(", OIP3 %s dBm", db2(c.OIP3))
 		}
 		if c.HasIP1dB {
-			p.f(", input P1dB %s dBm", db2(c.IP1dB))
+			p.f(", input P1dB %s dBm, output P1dB %s dBm", db2(c.IP1dB), db2(c.OP1dB))
 		}
 		if c.HasIIP2 {
 			p.f(", IIP2 %s dBm (stages added in phase, a worst case)", db2(c.IIP2))
 		}
 		p.f(".\n\n")
 		p.f("%s\n\n", dominantStages(ci))
+		p.linearity(ci)
 		for _, n := range ci.Notes {
 			p.f("- Note: %s.\n", text(n))
 		}
