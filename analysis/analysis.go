@@ -88,6 +88,8 @@ type Tolerance struct {
 	Samples   []float64       // the focus in each trial that evaluated, sorted
 	Requires  []RequireSpread // every requirement's worst case and chance, in the sheet's order
 	Warnings  []engine.Tally  // validity warnings raised in the trials (points are trial numbers from 0)
+	// LowWarnings and HighWarnings are the validity warnings raised at the worst cases.
+	LowWarnings, HighWarnings []engine.Tally
 	// LowCorner and HighCorner say where each toleranced input sits in the worst case low
 	// and high: the input with the larger effect first, ties by name.
 	LowCorner, HighCorner []Corner
@@ -180,7 +182,7 @@ func Analyze(r *engine.Result, opt Options) (*Analysis, engine.Diagnostics) {
 		} else {
 			a.Tolerance = fa.tolerance(opt)
 			if a.Tolerance != nil {
-				diags = append(diags, cornerDiags(a.Tolerance)...)
+				diags = append(diags, cornerDiags(a.Tolerance, f.Name, a.Unit)...)
 				diags = append(diags, trialsDiags(a.Tolerance)...)
 			}
 		}
@@ -355,6 +357,8 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 	union := s.Cone(qs...)
 	t.WorstLow, _ = fa.at(qs, lowCorner, union)
 	t.WorstHigh, _ = fa.at(qs, highCorner, union)
+	_, _, t.LowWarnings = fa.corner(qs, lowCorner, union, focus)
+	_, _, t.HighWarnings = fa.corner(qs, highCorner, union, focus)
 	t.RSSSigma = math.Sqrt(rss)
 	los, his := make([]units.Q, len(ins)), make([]units.Q, len(ins))
 	for i, in := range ins {

@@ -101,15 +101,8 @@ func (fa *focusAt) requireWorst(qs []*engine.Quantity, lo, hi []units.Q, cone *e
 				}
 			}
 		}
-		// The corner in a scenario of its own, counting the warnings its models raise there.
-		csc := fa.nom.Scenario()
-		csc.Point(0)
-		for j, in := range qs {
-			csc.Set(in, corner[j])
-		}
-		csc.Run(cone)
-		out[i].Warnings = csc.Tallies()
-		v, ok := csc.Value(q)
+		v, ok, ws := fa.corner(qs, corner, cone, q)
+		out[i].Warnings = ws
 		if w := numberIn(sub.fu, v); ok && !math.IsNaN(w) {
 			out[i].Worst, out[i].Unit = w, engine.UnitName(q)
 			out[i].WorstHolds = meets(rq.Op, w, numberIn(sub.fu, rq.Bound))
@@ -118,13 +111,45 @@ func (fa *focusAt) requireWorst(qs []*engine.Quantity, lo, hi []units.Q, cone *e
 	return out
 }
 
-// cornerDiags says that a requirement's worst case lies where a model is not valid.
-func cornerDiags(t *Tolerance) engine.Diagnostics {
+// corner evaluates q with the inputs qs at vals, over cone, in a scenario of its own that
+// counts the warnings the models raise there.
+func (fa *focusAt) corner(qs []*engine.Quantity, vals []units.Q, cone *engine.Cone, q *engine.Quantity) (units.Q, bool, []engine.Tally) {
+	sc := fa.nom.Scenario()
+	sc.Point(0)
+	for j, in := range qs {
+		sc.Set(in, vals[j])
+	}
+	sc.Run(cone)
+	v, ok := sc.Value(q)
+	return v, ok, sc.Tallies()
+}
+
+// cornerDiags says that a worst case lies where a model is not valid: a requirement's, then
+// the focus's low and high ones (unless a requirement's corner said the same already).
+func cornerDiags(t *Tolerance, focus string, unit string) engine.Diagnostics {
 	var out engine.Diagnostics
+	said := map[string]bool{}
 	for _, rs := range t.Requires {
 		out = append(out, talliesDiags(rs.Warnings, func(engine.Tally) string {
 			return fmt.Sprintf("at the worst case of the requirement %s (%s = %s)", rs.Require.That, rs.Require.Subject, fmtX(rs.Worst, rs.Unit))
 		})...)
+		for _, w := range rs.Warnings {
+			said[w.Quantity.Name+"\x00"+w.Message] = true
+		}
+	}
+	for i, ws := range [2][]engine.Tally{t.LowWarnings, t.HighWarnings} {
+		side, v := "low", t.WorstLow
+		if i == 1 {
+			side, v = "high", t.WorstHigh
+		}
+		for _, w := range ws {
+			if said[w.Quantity.Name+"\x00"+w.Message] {
+				continue
+			}
+			out = append(out, talliesDiags([]engine.Tally{w}, func(engine.Tally) string {
+				return fmt.Sprintf("at the worst case %s of %s (%s)", side, focus, fmtX(v, unit))
+			})...)
+		}
 	}
 	return out
 }

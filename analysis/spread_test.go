@@ -1,6 +1,7 @@
 package analysis_test
 
 import (
+	"fmt"
 	"math"
 	"strings"
 	"testing"
@@ -177,5 +178,32 @@ func TestCount(t *testing.T) {
 		if got := analysis.Count(n); got != want {
 			t.Errorf("Count(%d) = %q, want %q", n, got, want)
 		}
+	}
+}
+
+// TestFocusCornerWarnings: without a requirement, the focus's own worst cases are checked:
+// the low one of the loss sits at 88 m, below logdist's d0 = 100 m, and says so once; the
+// high one (132 m) is inside the model's range.
+func TestFocusCornerWarnings(t *testing.T) {
+	r := evalSrc(t, `focus = "loss"
+d    = { is = "110 m", tol = "20 %", dist = "uniform" }
+loss = "= logdist(d, 868 MHz, 100 m, 3)"
+`)
+	a, diags := analysis.Analyze(r, analysis.Options{Trials: 100, Seed: 1})
+	if len(a.Tolerance.LowWarnings) != 1 || len(a.Tolerance.HighWarnings) != 0 {
+		t.Errorf("corner warnings low %+v, high %+v; want one at the low corner only", a.Tolerance.LowWarnings, a.Tolerance.HighWarnings)
+	}
+	n := 0
+	for _, d := range diags {
+		if strings.HasPrefix(d.Summary, "at the worst case") {
+			n++
+			want := fmt.Sprintf("at the worst case low of loss (%.2f dB): logdist: distance 88 m is shorter", logDist(88))
+			if !strings.HasPrefix(d.Summary, want) {
+				t.Errorf("corner warning %q, want it to start %q", d.Summary, want)
+			}
+		}
+	}
+	if n != 1 {
+		t.Errorf("%d corner warnings in %v, want 1", n, diags)
 	}
 }
