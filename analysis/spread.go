@@ -34,7 +34,9 @@ type RequireSpread struct {
 
 // StdErr is the standard error of a proportion p estimated from n independent trials,
 // sqrt(p(1−p)/n): the spread of a Monte Carlo chance from the finite number of trials
-// (the binomial proportion's standard error). NaN for n < 1.
+// (the standard error of a binomial proportion, as in Wackerly, Mendenhall and Scheaffer,
+// Mathematical Statistics with Applications, 7th ed., the large-sample interval for p; the
+// section recalled from memory). NaN for n < 1.
 func StdErr(p float64, n int) float64 {
 	if n < 1 {
 		return math.NaN()

@@ -34,8 +34,10 @@ that = "= y >= -10 dB"
 // TestRequireSpread checks each requirement's worst case in its failing direction and its
 // Monte Carlo chance against the exact probabilities of a uniform input: P(x ≥ 1) = 5/6,
 // P(x ≤ 5) = 5/6, P(both) = 4/6 (the uniform distribution's CDF, (x−a)/(b−a)), each within
-// 4 standard errors; the standard error itself is checked against gonum's binomial
-// distribution, whose standard deviation over n is sqrt(p(1−p)/n).
+// 4 standard errors; the standard error itself, sqrt(p(1−p)/n) for a binomial proportion
+// (Wackerly, Mendenhall and Scheaffer, Mathematical Statistics with Applications, 7th ed.;
+// recalled from memory), is checked against gonum's binomial distribution, whose standard
+// deviation over n is that formula.
 func TestRequireSpread(t *testing.T) {
 	r := evalSrc(t, spreadSheet)
 	a, diags := analysis.Analyze(r, analysis.Options{Trials: 20_000, Seed: 3})
