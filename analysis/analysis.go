@@ -73,18 +73,23 @@ type Contribution struct {
 
 // Tolerance is the spread of the focus from the inputs' tolerances.
 type Tolerance struct {
-	Nominal   float64   // the focus at the nominal inputs, in Analysis.Unit like all values below
-	WorstLow  float64   // the focus with every input at the end of its tolerance that lowers it
-	WorstHigh float64   // the focus with every input at the end that raises it
-	RSSSigma  float64   // one standard deviation of the focus: root-sum-square of each input's slope × σ
-	Trials    int       // Monte Carlo trials run (0 with Options.SkipMonteCarlo)
-	Seed      uint64    // the seed they ran with
-	PPass     float64   // chance that every requirement holds (1 when there are none and all trials evaluate)
-	P01, P50  float64   // the 1st percentile and the median of the trials
-	P99       float64   // the 99th percentile
-	Failed    int       // trials that could not be evaluated (counted as failing)
-	Shares    []Share   // each input's share of the variance, largest first
-	Samples   []float64 // the focus in each trial that evaluated, sorted
+	Nominal   float64         // the focus at the nominal inputs, in Analysis.Unit like all values below
+	WorstLow  float64         // the focus with every input at the end of its tolerance that lowers it
+	WorstHigh float64         // the focus with every input at the end that raises it
+	RSSSigma  float64         // one standard deviation of the focus: root-sum-square of each input's slope × σ
+	Trials    int             // Monte Carlo trials run (0 with Options.SkipMonteCarlo)
+	Seed      uint64          // the seed they ran with
+	PPass     float64         // chance that every requirement holds (1 when there are none and all trials evaluate)
+	PPassSE   float64         // its binomial standard error, StdErr(PPass, Trials)
+	P01, P50  float64         // the 1st percentile and the median of the trials
+	P99       float64         // the 99th percentile
+	Failed    int             // trials that could not be evaluated (counted as failing)
+	Shares    []Share         // each input's share of the variance, largest first
+	Samples   []float64       // the focus in each trial that evaluated, sorted
+	Requires  []RequireSpread // every requirement's worst case and chance, in the sheet's order
+	Warnings  []engine.Tally  // validity warnings raised in the trials (points are trial numbers from 0)
+	// LowWarnings and HighWarnings are the validity warnings raised at the worst cases.
+	LowWarnings, HighWarnings []engine.Tally
 	// LowCorner and HighCorner say where each toleranced input sits in the worst case low
 	// and high: the input with the larger effect first, ties by name.
 	LowCorner, HighCorner []Corner
@@ -108,10 +113,11 @@ type Share struct {
 // SweepResult holds a sweep's points.
 type SweepResult struct {
 	Sweep     *engine.Sweep
-	Unit      string     // unit of X
-	X         []float64  // the swept input's values, Sweep.Steps+1 of them
-	Series    []Series   // one per quantity of Sweep.Plot, in that order
-	Crossings []Crossing // where a series crosses a plain bound on it, by requirement and series
+	Unit      string         // unit of X
+	X         []float64      // the swept input's values, Sweep.Steps+1 of them
+	Series    []Series       // one per quantity of Sweep.Plot, in that order
+	Crossings []Crossing     // where a series crosses a plain bound on it, by requirement and series
+	Warnings  []engine.Tally // validity warnings raised at the points (points index X)
 }
 
 // Series is one plotted quantity over a sweep. Y is NaN where it could not be evaluated.
@@ -135,6 +141,8 @@ type SolveResult struct {
 	Value float64 // in Unit
 	Unit  string  // the unit of the varied input
 	Note  string  // why nothing was found, or what went wrong
+	// Warnings are the validity warnings raised at the answer: a model used outside its range there.
+	Warnings []string
 }
 
 // Analyze runs the analyses on the focus quantity of r's sheet, and the sweeps and solves,
@@ -173,16 +181,23 @@ func Analyze(r *engine.Result, opt Options) (*Analysis, engine.Diagnostics) {
 			diags = append(diags, engine.Diagnostic{Severity: engine.Error, Quantity: "trials", Summary: fmt.Sprintf("at most %d Monte Carlo trials", MaxTrials), Range: engine.Range{File: s.File}})
 		} else {
 			a.Tolerance = fa.tolerance(opt)
+			if a.Tolerance != nil {
+				diags = append(diags, cornerDiags(a.Tolerance, f.Name, a.Unit)...)
+				diags = append(diags, trialsDiags(a.Tolerance)...)
+			}
 		}
 	}
 	for _, sw := range s.Sweeps {
-		a.Sweeps = append(a.Sweeps, sweep(r, sw))
+		res := sweep(r, sw)
+		diags = append(diags, sweepDiags(res)...)
+		a.Sweeps = append(a.Sweeps, res)
 	}
 	for _, so := range s.Solves {
-		res, err := solve(r, so)
+		res, ts, err := solve(r, so)
 		if err != nil {
 			diags = append(diags, engine.Diagnostic{Severity: engine.Warning, Quantity: "solve " + so.Name, Summary: err.Error(), Range: so.Range})
 		}
+		diags = append(diags, solveDiags(res, ts)...)
 		a.Solves = append(a.Solves, res)
 	}
 	return a, diags
@@ -342,7 +357,14 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 	union := s.Cone(qs...)
 	t.WorstLow, _ = fa.at(qs, lowCorner, union)
 	t.WorstHigh, _ = fa.at(qs, highCorner, union)
+	_, _, t.LowWarnings = fa.corner(qs, lowCorner, union, focus)
+	_, _, t.HighWarnings = fa.corner(qs, highCorner, union, focus)
 	t.RSSSigma = math.Sqrt(rss)
+	los, his := make([]units.Q, len(ins)), make([]units.Q, len(ins))
+	for i, in := range ins {
+		los[i], his[i] = in.lo, in.hi
+	}
+	t.Requires = fa.requireWorst(qs, los, his, union)
 	if opt.SkipMonteCarlo {
 		t.Trials = 0
 		return t
@@ -356,8 +378,10 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 	pass := make([]bool, n)
 	draws := make([]float64, n*len(ins))
 	workers := make([]*engine.Scenario, opt.Workers)
+	holds := make([][]int, opt.Workers) // per worker, trials in which each requirement holds
 	for w := range workers {
 		workers[w] = nom.Scenario()
+		holds[w] = make([]int, len(s.Requires))
 	}
 	var progress func(int)
 	if opt.Progress != nil {
@@ -372,6 +396,7 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 			row[i] = v.V
 			sc.Set(in.q, v)
 		}
+		sc.Point(trial)
 		sc.Run(union)
 		focusVals[trial] = math.NaN()
 		v, ok := sc.Value(focus)
@@ -379,7 +404,25 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 			focusVals[trial] = numberIn(fa.fu, v)
 		}
 		pass[trial] = ok && sc.Holds()
+		for i, rq := range s.Requires {
+			if p, _ := sc.Pass(rq); p {
+				holds[w][i]++
+			}
+		}
 	}, progress)
+	tallies := make([][]engine.Tally, len(workers))
+	for w, sc := range workers {
+		tallies[w] = sc.Tallies()
+		for i := range t.Requires {
+			t.Requires[i].Holds += holds[w][i]
+		}
+	}
+	t.Warnings = engine.MergeTallies(tallies...)
+	for i := range t.Requires {
+		rs := &t.Requires[i]
+		rs.Chance = float64(rs.Holds) / float64(n)
+		rs.ChanceSE = StdErr(rs.Chance, n)
+	}
 
 	passed := 0
 	var samples []float64
@@ -394,6 +437,7 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 		}
 	}
 	t.PPass = float64(passed) / float64(n)
+	t.PPassSE = StdErr(t.PPass, n)
 	sort.Float64s(samples)
 	t.Samples = samples
 	if len(samples) > 0 {
@@ -512,9 +556,10 @@ func sweep(nom *engine.Result, sw *engine.Sweep) SweepResult {
 		plots = append(plots, pq)
 		res.Series = append(res.Series, Series{Quantity: p, Unit: engine.UnitName(pq)})
 	}
-	for _, x := range xs {
+	for j, x := range xs {
 		q := base
 		q.V = x
+		sc.Point(j)
 		set(q)
 		res.X = append(res.X, engine.Number(vq, q))
 		for i, pq := range plots {
@@ -526,6 +571,8 @@ func sweep(nom *engine.Result, sw *engine.Sweep) SweepResult {
 			res.Series[i].Y = append(res.Series[i].Y, y)
 		}
 	}
+	sc.Point(-1)
+	res.Warnings = sc.Tallies()
 	set(base)
 	// Where a plotted quantity crosses a requirement's bound, refine the crossing on the model.
 	for ri, rq := range s.Requires {
@@ -566,7 +613,8 @@ func sweep(nom *engine.Result, sw *engine.Sweep) SweepResult {
 	return res
 }
 
-func solve(nom *engine.Result, so *engine.Solve) (SolveResult, error) {
+// solve finds a solve's answer; the tallies are the validity warnings raised at it.
+func solve(nom *engine.Result, so *engine.Solve) (SolveResult, []engine.Tally, error) {
 	s := nom.Sheet()
 	vq, _ := s.Quantity(so.Vary)
 	tq, _ := s.Quantity(so.SoThat)
@@ -574,11 +622,11 @@ func solve(nom *engine.Result, so *engine.Solve) (SolveResult, error) {
 	base, _ := nom.Value(vq)
 	if so.Within[0].D != base.D || so.Within[1].D != base.D || so.Within[0].K != base.K {
 		res.Note = fmt.Sprintf("within must be in the same unit kind as %s", so.Vary)
-		return res, fmt.Errorf("%s", res.Note)
+		return res, nil, fmt.Errorf("%s", res.Note)
 	}
 	if !nom.Known(tq) {
 		res.Note = so.SoThat + " could not be evaluated"
-		return res, nil
+		return res, nil, nil
 	}
 	target, err := so.Equals.V, error(nil)
 	if u := reportUnit(tq); u != nil {
@@ -586,7 +634,7 @@ func solve(nom *engine.Result, so *engine.Solve) (SolveResult, error) {
 	}
 	if err != nil {
 		res.Note = fmt.Sprintf("equals %s does not fit %s: %v", so.Equals, so.SoThat, err)
-		return res, fmt.Errorf("%s", res.Note)
+		return res, nil, fmt.Errorf("%s", res.Note)
 	}
 	sc := nom.Scenario()
 	down := s.Cone(vq)
@@ -606,14 +654,22 @@ func solve(nom *engine.Result, so *engine.Solve) (SolveResult, error) {
 	x, found, err := numeric.Brent(g, lo, hi, logScale, 1e-10)
 	if err != nil {
 		res.Note = err.Error()
-		return res, err
+		return res, nil, err
 	}
 	if !found {
 		res.Note = "no crossing in range"
-		return res, nil
+		return res, nil, nil
 	}
 	q := base
 	q.V = x
 	res.Found, res.Value = true, engine.Number(vq, q)
-	return res, nil
+	// The answer evaluated once more, counting the warnings its models raise there.
+	sc.Point(0)
+	sc.Set(vq, q)
+	sc.Run(down)
+	ts := sc.Tallies()
+	for _, t := range ts {
+		res.Warnings = append(res.Warnings, t.Message)
+	}
+	return res, ts, nil
 }

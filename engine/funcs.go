@@ -117,11 +117,18 @@ func resultUnit(sym string) (units.Q, error) {
 type Call struct {
 	warnings []string
 	quiet    bool
+	tally    *tally // a scenario's count of the warnings at its points (see Scenario.Point)
 }
 
 // Warn records that the call went outside its model's validity; the report shows it against the quantity.
 func (c *Call) Warn(format string, args ...any) {
-	if c == nil || c.quiet {
+	if c == nil {
+		return
+	}
+	if c.tally != nil {
+		c.tally.add(format, args)
+	}
+	if c.quiet {
 		return
 	}
 	c.warnings = append(c.warnings, fmt.Sprintf(format, args...))

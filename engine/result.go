@@ -260,6 +260,9 @@ func (r *Result) evalNode(id int) {
 		if !r.quiet {
 			r.call.warnings = r.call.warnings[:0]
 		}
+		if r.call.tally != nil {
+			r.call.tally.node = id
+		}
 		v, err := n.code.eval(r)
 		if err == nil && (math.IsNaN(v) || math.IsInf(v, 0)) {
 			err = fmt.Errorf("result is %s", units.FormatNum(v))

@@ -55,7 +55,7 @@ func init() {
 			"evaluate a worksheet and write its budget page (Markdown, charts beside -o) or its JSON",
 			[][2]string{sheet}, "rfledger render worksheets/field-probe-uplink.toml -o budget.md", cmdRender},
 		{"check", "SHEET... [--format text|json|junit|github] [--set name=value]... [--case NAME]... [--trials N]",
-			"evaluate worksheets and print a verdict for people or CI; exit 1 when a requirement fails in any case",
+			"evaluate worksheets and print a verdict for people or CI (at risk when a nominal pass holds in fewer than 90 % of the Monte Carlo trials); exit 1 when a requirement fails in any case",
 			[][2]string{{"SHEET...", "one or more worksheet files"}},
 			"rfledger check worksheets/*.toml\nrfledger check --format junit worksheets/*.toml > budget-junit.xml", cmdCheck},
 		{"watch", "SHEET -o FILE [--serve ADDR] [--set name=value]...",

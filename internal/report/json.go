@@ -21,6 +21,7 @@ type jsonDoc struct {
 	Summary      string               `json:"summary,omitempty"`
 	Focus        string               `json:"focus"`
 	Pass         bool                 `json:"pass"`
+	AtRisk       bool                 `json:"at_risk"` // passes, but holds in fewer than 90 % of the trials
 	Quantities   map[string]jsonQ     `json:"quantities"`
 	Requirements []jsonReq            `json:"requirements"`
 	Chains       map[string]jsonChain `json:"chains"`
@@ -52,9 +53,14 @@ type jsonQ struct {
 }
 
 type jsonReq struct {
-	That string `json:"that"`
-	Pass bool   `json:"pass"`
-	Note string `json:"note,omitempty"`
+	That      string   `json:"that"`
+	Pass      bool     `json:"pass"`
+	Note      string   `json:"note,omitempty"`
+	Worst     *float64 `json:"worst,omitempty"` // the bounded quantity at the worst case against the bound
+	WorstUnit string   `json:"worst_unit,omitempty"`
+	WorstPass *bool    `json:"worst_pass,omitempty"`
+	Chance    *float64 `json:"chance,omitempty"` // Monte Carlo chance that it holds
+	ChanceSE  *float64 `json:"chance_se,omitempty"`
 }
 
 type jsonStage struct {
@@ -108,14 +114,15 @@ type jsonContribution struct {
 }
 
 type jsonMC struct {
-	Trials int      `json:"trials"`
-	Seed   uint64   `json:"seed"`
-	PPass  float64  `json:"p_pass"`
-	P01    float64  `json:"p01"`
-	P50    float64  `json:"p50"`
-	P99    float64  `json:"p99"`
-	Failed int      `json:"failed"`
-	Shares []jShare `json:"variance_shares"`
+	Trials  int      `json:"trials"`
+	Seed    uint64   `json:"seed"`
+	PPass   float64  `json:"p_pass"`
+	PPassSE float64  `json:"p_pass_se"`
+	P01     float64  `json:"p01"`
+	P50     float64  `json:"p50"`
+	P99     float64  `json:"p99"`
+	Failed  int      `json:"failed"`
+	Shares  []jShare `json:"variance_shares"`
 }
 
 type jShare struct {
@@ -190,6 +197,8 @@ type jsonSolve struct {
 	SIUnit string   `json:"si_unit"`
 	Found  bool     `json:"found"`
 	Note   string   `json:"note,omitempty"`
+	// Warnings are the validity warnings of the models at the answer.
+	Warnings []string `json:"warnings,omitempty"`
 }
 
 func num(v float64) *float64 {
@@ -210,8 +219,18 @@ func JSON(in Input) []byte {
 	for _, rq := range sh.Requires {
 		pass := passes(r, rq)
 		doc.Pass = doc.Pass && pass
-		doc.Requirements = append(doc.Requirements, jsonReq{That: rq.That, Pass: pass, Note: rq.Note})
+		jr := jsonReq{That: rq.That, Pass: pass, Note: rq.Note}
+		if rs, ok := spreadOf(in.Analysis, rq); ok {
+			if jr.Worst = num(rs.Worst); jr.Worst != nil {
+				jr.WorstUnit, jr.WorstPass = rs.Unit, &rs.WorstHolds
+			}
+			if jr.Chance = reqChance(in.Analysis, rq); jr.Chance != nil {
+				jr.ChanceSE = num(rs.ChanceSE)
+			}
+		}
+		doc.Requirements = append(doc.Requirements, jr)
 	}
+	doc.AtRisk = analysis.AtRisk(r, in.Analysis)
 	for _, ci := range analysis.Cascades(r) {
 		doc.Chains[ci.Chain.Name] = chainJSON(ci)
 	}
@@ -306,7 +325,7 @@ func analysisJSON(doc *jsonDoc, a *analysis.Analysis, sh *engine.Sheet) {
 	doc.SignalFlow = flowJSON(a.Flow)
 	if t := a.Tolerance; t != nil {
 		jt := &jsonTol{Nominal: t.Nominal, WorstLow: t.WorstLow, WorstHigh: t.WorstHigh, RSSSigma: t.RSSSigma, Unit: a.Unit,
-			MonteCarlo: jsonMC{Trials: t.Trials, Seed: t.Seed, PPass: t.PPass, P01: t.P01, P50: t.P50, P99: t.P99, Failed: t.Failed, Shares: []jShare{}}}
+			MonteCarlo: jsonMC{Trials: t.Trials, Seed: t.Seed, PPass: t.PPass, PPassSE: t.PPassSE, P01: t.P01, P50: t.P50, P99: t.P99, Failed: t.Failed, Shares: []jShare{}}}
 		for _, s := range t.Shares {
 			jt.MonteCarlo.Shares = append(jt.MonteCarlo.Shares, jShare{Input: s.Input, Share: s.Share})
 		}
@@ -341,7 +360,7 @@ func analysisJSON(doc *jsonDoc, a *analysis.Analysis, sh *engine.Sheet) {
 func solvesJSON(a *analysis.Analysis) []jsonSolve {
 	out := []jsonSolve{}
 	for _, r := range a.Solves {
-		js := jsonSolve{Name: r.Solve.Name, Unit: r.Unit, Found: r.Found, Note: r.Note}
+		js := jsonSolve{Name: r.Solve.Name, Unit: r.Unit, Found: r.Found, Note: r.Note, Warnings: r.Warnings}
 		_, js.SIUnit = siOfNumber(1, r.Unit)
 		if r.Found {
 			js.Value = num(r.Value)
