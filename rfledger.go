@@ -41,7 +41,7 @@ type Report struct {
 	// Analysis holds the analyses of Result (from [analysis.Analyze]); nil leaves them out.
 	Analysis *analysis.Analysis
 	// Warnings are the diagnostics to list with the results: typically those of loading,
-	// evaluation and the analyses together, sorted by position ([engine.SortDiagnostics]) as
+	// evaluation and the analyses together, sorted by position ([engine.Diagnostics.Sorted]) as
 	// the command lists them. Only the warnings among them are written, in the order given.
 	Warnings engine.Diagnostics
 	// Cases are the operating points to show side by side (see [engine.Sheet.EvalCases]),

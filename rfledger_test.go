@@ -10,7 +10,6 @@ import (
 
 	"github.com/rfledger/rfledger"
 	"github.com/rfledger/rfledger/analysis"
-	"github.com/rfledger/rfledger/engine"
 	"github.com/rfledger/rfledger/internal/cli"
 )
 
@@ -44,7 +43,7 @@ func TestWritersMatchTheCommand(t *testing.T) {
 		tested++
 		r, ediags := sh.Eval()
 		a, adiags := analysis.Analyze(r, analysis.Options{Trials: trials, Seed: 1})
-		rep := rfledger.Report{Result: r, Analysis: a, Warnings: engine.SortDiagnostics(append(append(diags, ediags...), adiags...))}
+		rep := rfledger.Report{Result: r, Analysis: a, Warnings: append(append(diags, ediags...), adiags...).Sorted()}
 
 		var js bytes.Buffer
 		if err := rfledger.WriteJSON(&js, rep); err != nil {

@@ -168,7 +168,7 @@ func Analyze(r *engine.Result, opt Options) (*Analysis, engine.Diagnostics) {
 	if f, ok := s.Quantity(focus); ok && r.Known(f) {
 		a.Focus = f
 		a.FocusValue, _ = r.Value(f)
-		a.Unit = engine.UnitName(f)
+		a.Unit = f.UnitName()
 		a.ChangeUnit = a.Unit
 		if a.FocusValue.K == units.Level {
 			a.ChangeUnit = "dB"
@@ -205,7 +205,7 @@ func Analyze(r *engine.Result, opt Options) (*Analysis, engine.Diagnostics) {
 
 // reportUnit is the unit a quantity's numbers are reported in (nil for a plain number).
 func reportUnit(q *engine.Quantity) *units.Unit {
-	u, err := units.ParseUnit(engine.UnitName(q))
+	u, err := units.ParseUnit(q.UnitName())
 	if err != nil {
 		return nil
 	}
@@ -450,7 +450,7 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 }
 
 func corner(q *engine.Quantity, limit string, v units.Q, effect float64) Corner {
-	return Corner{Input: q.Name, Limit: limit, Value: engine.Number(q, v), Unit: engine.UnitName(q), Effect: effect}
+	return Corner{Input: q.Name, Limit: limit, Value: q.Number(v), Unit: q.UnitName(), Effect: effect}
 }
 
 func sortCorners(cs []Corner) {
@@ -541,7 +541,7 @@ func sweepPoints(sw *engine.Sweep) []float64 {
 func sweep(nom *engine.Result, sw *engine.Sweep) SweepResult {
 	s := nom.Sheet()
 	vq, _ := s.Quantity(sw.Vary)
-	res := SweepResult{Sweep: sw, Unit: engine.UnitName(vq)}
+	res := SweepResult{Sweep: sw, Unit: vq.UnitName()}
 	sc := nom.Scenario()
 	down := s.Cone(vq)
 	xs := sweepPoints(sw)
@@ -554,19 +554,19 @@ func sweep(nom *engine.Result, sw *engine.Sweep) SweepResult {
 	for _, p := range sw.Plot {
 		pq, _ := s.Quantity(p)
 		plots = append(plots, pq)
-		res.Series = append(res.Series, Series{Quantity: p, Unit: engine.UnitName(pq)})
+		res.Series = append(res.Series, Series{Quantity: p, Unit: pq.UnitName()})
 	}
 	for j, x := range xs {
 		q := base
 		q.V = x
 		sc.Point(j)
 		set(q)
-		res.X = append(res.X, engine.Number(vq, q))
+		res.X = append(res.X, vq.Number(q))
 		for i, pq := range plots {
 			v, ok := sc.Value(pq)
 			y := math.NaN()
 			if ok {
-				y = engine.Number(pq, v)
+				y = pq.Number(v)
 			}
 			res.Series[i].Y = append(res.Series[i].Y, y)
 		}
@@ -580,7 +580,7 @@ func sweep(nom *engine.Result, sw *engine.Sweep) SweepResult {
 			if rq.Subject != pq.Name {
 				continue
 			}
-			bound := engine.Number(pq, rq.Bound)
+			bound := pq.Number(rq.Bound)
 			ys := res.Series[si].Y
 			for i := 1; i < len(xs); i++ {
 				a, b := ys[i-1]-bound, ys[i]-bound
@@ -595,14 +595,14 @@ func sweep(nom *engine.Result, sw *engine.Sweep) SweepResult {
 					if !ok {
 						return math.NaN(), nil
 					}
-					return engine.Number(pq, v) - bound, nil
+					return pq.Number(v) - bound, nil
 				}
 				x, found, err := numeric.Brent(g, xs[i-1], xs[i], false, 1e-9)
 				set(base)
 				if err == nil && found {
 					q := base
 					q.V = x
-					res.Crossings = append(res.Crossings, Crossing{Quantity: pq.Name, Require: ri, X: engine.Number(vq, q), Y: bound})
+					res.Crossings = append(res.Crossings, Crossing{Quantity: pq.Name, Require: ri, X: vq.Number(q), Y: bound})
 				}
 				if b == 0 {
 					i++ // do not report a crossing exactly at a point twice
@@ -618,7 +618,7 @@ func solve(nom *engine.Result, so *engine.Solve) (SolveResult, []engine.Tally, e
 	s := nom.Sheet()
 	vq, _ := s.Quantity(so.Vary)
 	tq, _ := s.Quantity(so.SoThat)
-	res := SolveResult{Solve: so, Unit: engine.UnitName(vq)}
+	res := SolveResult{Solve: so, Unit: vq.UnitName()}
 	base, _ := nom.Value(vq)
 	if so.Within[0].D != base.D || so.Within[1].D != base.D || so.Within[0].K != base.K {
 		res.Note = fmt.Sprintf("within must be in the same unit kind as %s", so.Vary)
@@ -647,7 +647,7 @@ func solve(nom *engine.Result, so *engine.Solve) (SolveResult, []engine.Tally, e
 		if !ok {
 			return math.NaN(), nil
 		}
-		return engine.Number(tq, v) - target, nil
+		return tq.Number(v) - target, nil
 	}
 	lo, hi := so.Within[0].V, so.Within[1].V
 	logScale := base.K == units.Linear && lo > 0 && hi > 0 && math.Max(lo, hi)/math.Min(lo, hi) >= 100
@@ -662,7 +662,7 @@ func solve(nom *engine.Result, so *engine.Solve) (SolveResult, []engine.Tally, e
 	}
 	q := base
 	q.V = x
-	res.Found, res.Value = true, engine.Number(vq, q)
+	res.Found, res.Value = true, vq.Number(q)
 	// The answer evaluated once more, counting the warnings its models raise there.
 	sc.Point(0)
 	sc.Set(vq, q)

@@ -27,7 +27,7 @@ func budget(sc *engine.Scenario, focus *engine.Quantity) []Contribution {
 	for _, it := range b.items {
 		total += it.Value
 	}
-	if d := engine.Number(focus, fv) - total; math.Abs(d) > 1e-9 {
+	if d := focus.Number(fv) - total; math.Abs(d) > 1e-9 {
 		b.items = append(b.items, Contribution{Item: "reference level conversion", Value: d, Unit: "dB", ref: units.DB(d), Sign: 1})
 	}
 	// Terms with a reference (dBW, dB/K, dBHz) come first in the order the formula writes
@@ -94,7 +94,7 @@ func (b *budgeter) walk(q *engine.Quantity, sign, depth int) bool {
 			if !ok || v.K != units.Level {
 				return false
 			}
-			b.items = append(b.items, Contribution{Item: t.Quantity.Name, Quantity: t.Quantity.Name, Value: float64(s) * engine.Number(t.Quantity, v), Unit: engine.UnitName(t.Quantity), ref: v, Sign: s})
+			b.items = append(b.items, Contribution{Item: t.Quantity.Name, Quantity: t.Quantity.Name, Value: float64(s) * t.Quantity.Number(v), Unit: t.Quantity.UnitName(), ref: v, Sign: s})
 			continue
 		}
 		v, ok := b.sc.Term(t)

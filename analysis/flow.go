@@ -131,7 +131,7 @@ func (f *flower) flow(q *engine.Quantity, depth int) *SignalFlow {
 	if math.Abs(cur.V-fv.V) > 1e-9*math.Max(1, math.Abs(fv.V)) || cur.D != fv.D {
 		return nil
 	}
-	sf.Rows = append(sf.Rows, FlowRow{Item: q.Name, Quantity: q.Name, Kind: FlowTotal, Change: math.NaN(), Level: engine.Number(q, fv), Unit: engine.UnitName(q)})
+	sf.Rows = append(sf.Rows, FlowRow{Item: q.Name, Quantity: q.Name, Kind: FlowTotal, Change: math.NaN(), Level: q.Number(fv), Unit: q.UnitName()})
 	return sf
 }
 

@@ -106,7 +106,7 @@ func (fa *focusAt) requireWorst(qs []*engine.Quantity, lo, hi []units.Q, cone *e
 		v, ok, ws := fa.corner(qs, corner, cone, q)
 		out[i].Warnings = ws
 		if w := numberIn(sub.fu, v); ok && !math.IsNaN(w) {
-			out[i].Worst, out[i].Unit = w, engine.UnitName(q)
+			out[i].Worst, out[i].Unit = w, q.UnitName()
 			out[i].WorstHolds = meets(rq.Op, w, numberIn(sub.fu, rq.Bound))
 		}
 	}

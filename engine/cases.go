@@ -9,9 +9,6 @@ import (
 	"sync/atomic"
 )
 
-// MaxCases is the most [[case]] entries a worksheet may hold.
-const MaxCases = 64
-
 // NominalName is the name of the nominal evaluation when the sheet does not name it.
 const NominalName = "nominal"
 
@@ -223,9 +220,9 @@ func (l *loader) caseNameFree(cs *caseSite) bool {
 	return true
 }
 
-// CaseOverrides returns what a case is evaluated with: the overrides given for the whole run
+// Overrides returns what the case is evaluated with: the overrides given for the whole run
 // (--set) and then the case's own, which win where both name an input.
-func CaseOverrides(c *Case, run []Override) []Override {
+func (c *Case) Overrides(run []Override) []Override {
 	out := make([]Override, 0, len(run)+len(c.Set))
 	for _, o := range run {
 		mine := false
@@ -240,7 +237,7 @@ func CaseOverrides(c *Case, run []Override) []Override {
 }
 
 // EvalCases evaluates each case from nominal, an evaluation of this sheet with the run's
-// overrides (the case's own added, see [CaseOverrides]): only the cones of the inputs a case
+// overrides (the case's own added, see [Case.Overrides]): only the cones of the inputs a case
 // changes are computed again. The cases run in parallel on up to workers goroutines (0 means
 // GOMAXPROCS); results[i] and diags[i] belong to cases[i], the same for any number of workers.
 func (s *Sheet) EvalCases(nominal *Result, cases []*Case, workers int) ([]*Result, []Diagnostics) {
@@ -261,7 +258,7 @@ func (s *Sheet) EvalCases(nominal *Result, cases []*Case, workers int) ([]*Resul
 				if i >= len(cases) {
 					return
 				}
-				results[i], diags[i] = s.EvalFrom(nominal, CaseOverrides(cases[i], nominal.set)...)
+				results[i], diags[i] = s.EvalFrom(nominal, cases[i].Overrides(nominal.set)...)
 			}
 		}()
 	}

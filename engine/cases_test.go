@@ -75,7 +75,7 @@ func TestCasesEqualTheirOwnEvaluation(t *testing.T) {
 		one, _ := sh.EvalCases(nom, sh.Cases, 1)
 		many, _ := sh.EvalCases(nom, sh.Cases, 4)
 		for i, c := range sh.Cases {
-			full, _ := sh.Eval(engine.CaseOverrides(c, run)...)
+			full, _ := sh.Eval(c.Overrides(run)...)
 			sameResults(t, c.Name+" (1 worker)", one[i], full)
 			sameResults(t, c.Name+" (4 workers)", many[i], full)
 		}
@@ -85,7 +85,7 @@ func TestCasesEqualTheirOwnEvaluation(t *testing.T) {
 // TestCaseOverridesWin: a case's own value replaces the run's override of the same input.
 func TestCaseOverridesWin(t *testing.T) {
 	c := &engine.Case{Set: []engine.Override{{Name: "a", Value: "2 dB"}}}
-	got := engine.CaseOverrides(c, []engine.Override{{Name: "a", Value: "1 dB"}, {Name: "b", Value: "3 dB"}})
+	got := c.Overrides([]engine.Override{{Name: "a", Value: "1 dB"}, {Name: "b", Value: "3 dB"}})
 	want := []engine.Override{{Name: "b", Value: "3 dB"}, {Name: "a", Value: "2 dB"}}
 	if fmt.Sprint(got) != fmt.Sprint(want) {
 		t.Fatalf("got %v, want %v", got, want)

@@ -134,5 +134,5 @@ func sortDiags(ds Diagnostics) Diagnostics {
 	return out
 }
 
-// SortDiagnostics orders diagnostics by file and position and drops exact repeats.
-func SortDiagnostics(ds Diagnostics) Diagnostics { return sortDiags(ds) }
+// Sorted returns the diagnostics ordered by file and position, without exact repeats.
+func (ds Diagnostics) Sorted() Diagnostics { return sortDiags(ds) }

@@ -27,12 +27,12 @@ func unitName(q *Quantity) string {
 	return ""
 }
 
-// UnitName returns the symbol of the unit a quantity's numbers are reported in: its display
+// UnitName returns the symbol of the unit the quantity's numbers are reported in: its display
 // unit, else the unit its type gives ("" for a plain number).
-func UnitName(q *Quantity) string { return unitName(q) }
+func (q *Quantity) UnitName() string { return unitName(q) }
 
-// Number returns a value of quantity q as a number in the unit UnitName reports for q.
-func Number(q *Quantity, v units.Q) float64 {
+// Number returns a value of the quantity as a number in the unit UnitName reports.
+func (q *Quantity) Number(v units.Q) float64 {
 	u := unitOf(q)
 	if u == nil {
 		return v.V

@@ -110,7 +110,7 @@ func loadAndEval(path string, opt engine.Options, set ...engine.Override) (*engi
 	sh, diags := engine.Load(path, opt)
 	r, ediags := sh.Eval(set...)
 	all := append(append(engine.Diagnostics(nil), diags...), ediags...)
-	return r, engine.SortDiagnostics(all)
+	return r, all.Sorted()
 }
 
 func TestInvalidSheets(t *testing.T) {

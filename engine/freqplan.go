@@ -18,12 +18,6 @@ const (
 	maxPlanBands        = 16
 )
 
-// FreqPlans holds the worksheet's [[spurs]] and [[products]] blocks in file order.
-type FreqPlans struct {
-	Spurs    []*SpurBlock    // the [[spurs]] blocks: mixer spurious responses in a passband
-	Products []*ProductBlock // the [[products]] blocks: tone products in protected bands
-}
-
 // SpurBlock is a [[spurs]] block: one mixer's LO, IF passband and preselector passband, the
 // largest order m + n to consider and the mixer's rejection table.
 type SpurBlock struct {
@@ -98,7 +92,7 @@ func (l *loader) spurBlock(f *sheetFile, p string, i int, m map[string]any) {
 		ok = ok && okR
 	}
 	if ok {
-		l.sh.FreqPlans.Spurs = append(l.sh.FreqPlans.Spurs, sb)
+		l.sh.Spurs = append(l.sh.Spurs, sb)
 	}
 }
 
@@ -147,7 +141,7 @@ func (l *loader) productBlock(f *sheetFile, p string, i int, m map[string]any) {
 		ok = false
 	}
 	if ok {
-		l.sh.FreqPlans.Products = append(l.sh.FreqPlans.Products, pb)
+		l.sh.Products = append(l.sh.Products, pb)
 	}
 }
 

@@ -24,6 +24,7 @@ const (
 	MaxQuantities = 200_000 // twice the 100,000 that must work; the pre-scan counts them before decoding
 	MaxPartsDepth = 8
 	MaxSweepSteps = 10_000
+	MaxCases      = 64 // [[case]] entries
 )
 
 var (

@@ -24,7 +24,8 @@ type Sheet struct {
 	Solves   []*Solve   // the [[solve]] tables in file order (those that name what exists)
 	Parts    []string   // files brought in with `use`, in load order
 
-	FreqPlans FreqPlans // [[spurs]] and [[products]] blocks (freqplan.go)
+	Spurs    []*SpurBlock    // the [[spurs]] blocks in file order: mixer spurious responses in a passband (freqplan.go)
+	Products []*ProductBlock // the [[products]] blocks in file order: tone products in protected bands
 
 	// Nominal is the nominal evaluation's case (no overrides), named "nominal" unless a
 	// [[case]] without set names it; Cases are the other operating points in file order
@@ -175,14 +176,16 @@ type ChainValue struct {
 	Name   string       // the chain's full name
 	Stages []StageValue // in signal order
 	// Memo, when not nil, lets the function library keep what it derives from the stages (a
-	// cascade) so that several functions of one chain work it out once per evaluation.
-	Memo *ChainMemo
+	// cascade) so that several functions of one chain work it out once per evaluation:
+	// Memo.Data is the library's own and kept between evaluations (so its buffers are
+	// reused), and Memo.Valid is false whenever the stage values have changed since.
+	Memo *chainMemo
 }
 
-// ChainMemo holds a library's work on a chain's stages. The engine sets Valid to false each
+// chainMemo holds a library's work on a chain's stages. The engine sets Valid to false each
 // time the stage values change; Data belongs to the library and is kept from one evaluation
 // to the next, so that its buffers are reused. Each evaluation result has its own.
-type ChainMemo struct {
+type chainMemo struct {
 	Valid bool // Data describes the current stage values
 	Data  any  // the library's own, kept between evaluations
 }

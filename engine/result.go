@@ -71,7 +71,7 @@ func (r *Result) Number(q *Quantity) (float64, string) {
 	if !ok {
 		return math.NaN(), unitName(q)
 	}
-	return Number(q, v), unitName(q)
+	return q.Number(v), unitName(q)
 }
 
 // Warnings returns the validity warnings a quantity's functions raised.
@@ -121,7 +121,7 @@ func (s *Sheet) newResult() *Result {
 		if n.chain != nil {
 			cv := &r.chains[n.chainIdx]
 			cv.Name = n.chain.Name
-			cv.Memo = &ChainMemo{}
+			cv.Memo = &chainMemo{}
 			cv.Stages = make([]StageValue, len(n.chain.Stages))
 			for i, st := range n.chain.Stages {
 				cv.Stages[i].Label = st.Label
@@ -144,7 +144,7 @@ func (r *Result) clone() *Result {
 		quiet:  true,
 	}
 	for i, cv := range r.chains {
-		c.chains[i] = ChainValue{Name: cv.Name, Stages: append([]StageValue(nil), cv.Stages...), Memo: &ChainMemo{}}
+		c.chains[i] = ChainValue{Name: cv.Name, Stages: append([]StageValue(nil), cv.Stages...), Memo: &chainMemo{}}
 	}
 	c.call.quiet = true
 	return c
@@ -462,7 +462,7 @@ func (r *Result) near() *Result {
 		warnShared: true,
 	}
 	for i, cv := range r.chains {
-		c.chains[i] = ChainValue{Name: cv.Name, Stages: append([]StageValue(nil), cv.Stages...), Memo: &ChainMemo{}}
+		c.chains[i] = ChainValue{Name: cv.Name, Stages: append([]StageValue(nil), cv.Stages...), Memo: &chainMemo{}}
 	}
 	return c
 }

@@ -140,7 +140,7 @@ func toleranceLike(tol, d units.Q, focus *engine.Quantity) (float64, error) {
 		if d.K == units.Level {
 			return tol.V, nil // decibels
 		}
-		unit := engine.UnitName(focus)
+		unit := focus.UnitName()
 		u, err := units.ParseUnit(unit)
 		if err != nil {
 			return 0, err

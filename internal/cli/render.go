@@ -45,7 +45,7 @@ func evaluateCases(path string, set []engine.Override, fsys fs.FS, ao *analysis.
 		cases = []*engine.Case{sh.Nominal}
 	}
 	ev.diags = append(ev.diags, ev.evalCases(cases, set, sel, ao)...)
-	ev.diags = engine.SortDiagnostics(ev.diags)
+	ev.diags = ev.diags.Sorted()
 	return ev
 }
 

@@ -88,7 +88,7 @@ func (lw *liveSheet) render() ([]byte, []string, error) {
 	diags = append(diags, ediags...)
 	files := inputFiles(lw.sheet, sh.Parts)
 	if diags.HasErrors() {
-		return nil, files, errors.New(strings.TrimSuffix(formatDiags(engine.SortDiagnostics(diags), nil), "\n"))
+		return nil, files, errors.New(strings.TrimSuffix(formatDiags(diags.Sorted(), nil), "\n"))
 	}
 	lw.prevSh, lw.prevR = sh, r
 	quick := lw.ao
@@ -98,7 +98,7 @@ func (lw *liveSheet) render() ([]byte, []string, error) {
 	if err != nil {
 		return nil, files, err
 	}
-	ev.diags = engine.SortDiagnostics(append(ev.diags, ev.evalCases(cases, lw.over, lw.sel, &quick)...))
+	ev.diags = append(ev.diags, ev.evalCases(cases, lw.over, lw.sel, &quick)...).Sorted()
 	if err := checkOut(lw.out, files); err != nil {
 		return nil, files, err
 	}
@@ -123,7 +123,7 @@ func (lw *liveSheet) refine() ([]byte, bool) {
 	}
 	a, ds := analysis.Analyze(ev.result, lw.ao)
 	full := *ev
-	full.analysis, full.diags = a, engine.SortDiagnostics(append(ev.diags, ds...))
+	full.analysis, full.diags = a, append(ev.diags, ds...).Sorted()
 	return lw.pageOf(ev, &full)
 }
 

@@ -122,7 +122,7 @@ func (s *server) evaluate(d *document) {
 			r, evalDiags = sh.Eval()
 		}
 		all := append(append(engine.Diagnostics(nil), loadDiags...), evalDiags...)
-		ev.sheet, ev.result, ev.diags = sh, r, engine.SortDiagnostics(all)
+		ev.sheet, ev.result, ev.diags = sh, r, all.Sorted()
 		ev.loaded = !ev.diags.HasErrors()
 		for _, q := range sh.Quantities() {
 			if q.Range.File == name {

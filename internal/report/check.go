@@ -244,7 +244,7 @@ func checkResult(res *engine.Result, focusName string, a *analysis.Analysis) (*c
 				v, _ := res.Number(q)
 				r.Value = num(v)
 			}
-			r.Limit = num(engine.Number(q, rq.Bound))
+			r.Limit = num(q.Number(rq.Bound))
 		}
 		if rs, ok := spreadOf(a, rq); ok {
 			if r.Worst = num(rs.Worst); r.Worst != nil {
@@ -500,4 +500,4 @@ func siOfNumber(v float64, unit string) (*float64, string) {
 }
 
 // unitName is the unit a quantity's numbers are reported in (as Result.Number gives it).
-func unitName(q *engine.Quantity) string { return engine.UnitName(q) }
+func unitName(q *engine.Quantity) string { return q.UnitName() }

@@ -35,7 +35,7 @@ type productInfo struct {
 
 func spurPlans(r *engine.Result) []spurInfo {
 	var out []spurInfo
-	for _, b := range r.Sheet().FreqPlans.Spurs {
+	for _, b := range r.Sheet().Spurs {
 		si := spurInfo{block: b, unit: planUnit(b.Unit)}
 		lo, known := r.Value(b.LO)
 		switch {
@@ -58,7 +58,7 @@ func spurPlans(r *engine.Result) []spurInfo {
 
 func productPlans(sh *engine.Sheet) []productInfo {
 	var out []productInfo
-	for _, b := range sh.FreqPlans.Products {
+	for _, b := range sh.Products {
 		pi := productInfo{block: b, unit: planUnit(b.Unit)}
 		for _, t := range b.Tones {
 			pi.tones = append(pi.tones, t.V)

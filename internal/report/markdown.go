@@ -385,7 +385,7 @@ func (p *page) budget() {
 	for i, c := range a.Budget {
 		p.f("| %d | %s | %s | %s | %s |\n", i+1, code(c.Item), contribution(c), fmtNum(c.Total, c.TotalUnit), pct(math.Abs(c.Value)/abs))
 	}
-	p.f("| | **total** | | **%s %s** | |\n\n", db2(engine.Number(a.Focus, a.FocusValue)), a.Unit)
+	p.f("| | **total** | | **%s %s** | |\n\n", db2(a.Focus.Number(a.FocusValue)), a.Unit)
 	p.budgetChart()
 	p.chainShares()
 }

@@ -7,7 +7,6 @@ import (
 	"strings"
 
 	"github.com/rfledger/rfledger/analysis"
-	"github.com/rfledger/rfledger/engine"
 )
 
 // The sensitivity table and the corners of the worst case: the analyses give every input's
@@ -128,7 +127,7 @@ func (p *page) sensitivity() {
 		p.f("%s depends on no input.\n\n", code(a.Focus.Name))
 		return
 	}
-	f0 := engine.Number(a.Focus, a.FocusValue)
+	f0 := a.Focus.Number(a.FocusValue)
 	groups, zero := sensitivityGroups(a.Sensitivity, a.ChangeUnit, f0)
 	p.f("Change of %s when one input rises by one step, every other input at its nominal value; largest first within each step, equal changes by name:\n\n", code(a.Focus.Name))
 	for _, g := range groups {

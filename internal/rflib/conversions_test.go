@@ -5,7 +5,6 @@ import (
 	"strings"
 	"testing"
 
-	"github.com/rfledger/rfledger/engine"
 	"github.com/rfledger/rfledger/internal/sheettest"
 )
 
@@ -90,7 +89,7 @@ func TestToShowsTheTargetUnit(t *testing.T) {
 			t.Fatalf("%s: %v", c.formula, diags)
 		}
 		q, _ := r.Sheet().Quantity("x.y")
-		if got := engine.UnitName(q); got != c.unit {
+		if got := q.UnitName(); got != c.unit {
 			t.Errorf("%s: unit %q, want %q", c.formula, got, c.unit)
 		}
 		if got := r.Display(q); got != c.display {

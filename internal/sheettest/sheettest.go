@@ -30,7 +30,7 @@ func Load(files map[string]string, main string) (*engine.Sheet, engine.Diagnosti
 func EvalFS(files map[string]string, main string, set ...engine.Override) (*engine.Result, engine.Diagnostics) {
 	sh, diags := Load(files, main)
 	r, ediags := sh.Eval(set...)
-	return r, engine.SortDiagnostics(append(diags, ediags...))
+	return r, append(diags, ediags...).Sorted()
 }
 
 // Eval loads and evaluates a one-file sheet and returns the result with every diagnostic.
