@@ -49,6 +49,7 @@ func cmdWatch(e *Env, args []string) int {
 		Extra:   lw.extra,
 		Written: lw.written,
 		Refine:  lw.refine,
+		Summary: lw.summary,
 	})
 	if err != nil {
 		fmt.Fprintf(e.Stderr, "rfledger watch: %v\n", err)
@@ -167,4 +168,47 @@ func (lw *liveSheet) written() {
 	if err := removeOldCharts(lw.out, charts); err != nil {
 		fmt.Fprintf(lw.e.Stderr, "rfledger watch: %v\n", err)
 	}
+}
+
+// summary is the served page's status bar for the latest render: the verdict over every
+// case shown and the focus value of the first.
+func (lw *liveSheet) summary() watch.Summary {
+	lw.mu.Lock()
+	ev := lw.last
+	lw.mu.Unlock()
+	if ev == nil {
+		return watch.Summary{}
+	}
+	sh := ev.sheet
+	var s watch.Summary
+	results := []*engine.Result{ev.result}
+	if len(ev.cases) > 1 {
+		results = results[:0]
+		for _, c := range ev.cases {
+			results = append(results, c.Result)
+		}
+	}
+	if len(sh.Requires) > 0 {
+		held, checked := 0, 0
+		for _, r := range results {
+			for _, rq := range sh.Requires {
+				checked++
+				if pass, known := r.Pass(rq); pass && known {
+					held++
+				}
+			}
+		}
+		s.Verdict = "FAIL"
+		if held == checked {
+			s.Verdict = "PASS"
+		}
+		s.Detail = fmt.Sprintf("%d of %d requirements hold", held, checked)
+		if len(results) > 1 {
+			s.Detail = fmt.Sprintf("%d of %d requirement checks hold over %d cases", held, checked, len(results))
+		}
+	}
+	if f, ok := sh.Quantity(sh.Focus); ok {
+		s.FocusName, s.FocusValue = f.Name, ev.result.Display(f)
+	}
+	return s
 }

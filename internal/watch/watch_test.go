@@ -536,7 +536,7 @@ func TestServerPage(t *testing.T) {
 			t.Errorf("page lacks %q", want)
 		}
 	}
-	if !strings.Contains(body, `<td align="right">43.0 dBm</td>`) || strings.Contains(body, "style=") {
+	if !strings.Contains(body, "<td align=\"right\">43.0\u00a0dBm</td>") || strings.Contains(body, "style=") {
 		t.Errorf("table alignment should use align attributes, not style attributes (blocked by the CSP)")
 	}
 	if strings.Contains(body, "<script>alert(1)") || strings.Contains(body, "javascript:alert") {
