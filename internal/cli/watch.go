@@ -18,6 +18,13 @@ import (
 )
 
 func cmdWatch(e *Env, args []string) int {
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	defer stop()
+	return watchUntil(ctx, e, args, nil)
+}
+
+// watchUntil is watch until ctx ends; ready, when set, is told the served address.
+func watchUntil(ctx context.Context, e *Env, args []string, ready func(addr string)) int {
 	fs := newFlags(e, "watch")
 	out := fs.String("o", "", "write the page to `FILE` (required)")
 	serve := fs.String("serve", "", "also serve the page with live refresh on `ADDR` (e.g. :8080, loopback only unless a host is given)")
@@ -42,14 +49,13 @@ func cmdWatch(e *Env, args []string) int {
 		return usageErr(e, "watch", "%v", err)
 	}
 	lw := &liveSheet{e: e, sheet: sheet, out: *out, over: over, lib: lib, sel: *sel, ao: analysis.Options{Trials: *trials, Seed: *seed}}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
-	defer stop()
 	err = watch.Run(ctx, lw.render, watch.Options{
 		Out: *out, Status: e.Stderr, Errors: e.Stderr, Serve: *serve, Title: strings.TrimSuffix(filepath.Base(sheet), ".toml"),
 		Extra:   lw.extra,
 		Written: lw.written,
 		Refine:  lw.refine,
 		Summary: lw.summary,
+		Ready:   ready,
 	})
 	if err != nil {
 		fmt.Fprintf(e.Stderr, "rfledger watch: %v\n", err)

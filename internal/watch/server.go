@@ -443,19 +443,19 @@ const noReport template.HTML = "<p>No report rendered yet.</p>"
 // is still running, and the error while the sheet does not evaluate), then the report.
 // Its script follows /events and, on each new version, fetches /state and puts the bar
 // and the report in place, keeping the scroll position and which tables are unfolded.
-// Colours follow the system's light or dark setting; the charts, drawn dark on a
-// transparent background, sit on a light card in dark mode.
+// Colours follow the system's light or dark setting, and so do the charts: their
+// backgrounds are transparent and their text takes a light colour in dark mode.
 var pageTmpl = template.Must(template.New("page").Parse(`<!DOCTYPE html>
 <html lang="en">
 <head>
 <meta charset="utf-8">
 <meta name="viewport" content="width=device-width, initial-scale=1">
 <meta name="color-scheme" content="light dark">
+<link rel="icon" href="data:,">
 <title>{{.Title}}</title>
 <style nonce="{{.Nonce}}">
 :root{color-scheme:light dark;--fg:#1b1b1b;--bg:#fff;--muted:#5f6368;--line:#c8c8c8;--head:#f1f1f1;--code:#f3f3f3;--bar:#fafafa;--pass:#1b6e2d;--passbg:#e3f3e6;--fail:#a3231a;--failbg:#fbe4e2;--link:#0b57d0}
-@media (prefers-color-scheme:dark){:root{--fg:#e3e3e3;--bg:#151719;--muted:#a0a6ad;--line:#3c4046;--head:#222529;--code:#23262a;--bar:#1d2023;--pass:#8fdc9b;--passbg:#183d20;--fail:#ffb4ab;--failbg:#4a1a16;--link:#a8c7fa}
-main img{background:#f5f5f5;border-radius:4px;padding:6px}}
+@media (prefers-color-scheme:dark){:root{--fg:#e3e3e3;--bg:#151719;--muted:#a0a6ad;--line:#3c4046;--head:#222529;--code:#23262a;--bar:#1d2023;--pass:#8fdc9b;--passbg:#183d20;--fail:#ffb4ab;--failbg:#4a1a16;--link:#a8c7fa}}
 *{box-sizing:border-box}
 html{-webkit-text-size-adjust:100%}
 body{font:15px/1.5 system-ui,sans-serif;margin:0;color:var(--fg);background:var(--bg)}
@@ -472,10 +472,12 @@ code,pre{font-family:ui-monospace,monospace;font-size:.92em}
 code{background:var(--code);border-radius:3px;padding:0 .2em}
 pre{background:var(--code);padding:.6rem;overflow:auto}
 img{max-width:100%;height:auto}
+@media (max-width:40rem){.tbl table{width:max-content}th,td{max-width:15rem}}
 details.fold{margin:1rem 0}
 details.fold>summary{cursor:pointer;color:var(--muted)}
 .bar{position:sticky;top:0;z-index:1;background:var(--bar);border-bottom:1px solid var(--line);padding:.35rem 1rem;font-size:14px}
-.bar .row{max-width:60rem;margin:0 auto;display:flex;flex-wrap:wrap;align-items:baseline;gap:.3rem 1rem}
+.bar .row{max-width:58rem;margin:0 auto;display:flex;align-items:baseline;gap:1rem}
+.bar .info{flex:1 1 auto;min-width:0;display:flex;flex-wrap:wrap;align-items:baseline;gap:.2rem 1rem}
 .bar.broken{border-bottom:3px solid var(--fail)}
 .verdict{font-weight:700;padding:0 .45rem;border-radius:3px}
 .verdict.pass{color:var(--pass);background:var(--passbg)}
@@ -483,14 +485,14 @@ details.fold>summary{cursor:pointer;color:var(--muted)}
 .verdict.none{color:var(--muted)}
 .nw{white-space:nowrap}
 .when,.mc,.live{color:var(--muted)}
-.live{margin-left:auto}
+.live{flex:none}
 .live.off{color:var(--fail)}
 .err{flex-basis:100%;color:var(--fg);background:var(--failbg);border:1px solid var(--fail);padding:.4rem .7rem;max-height:35vh;overflow:auto}
 .err pre{background:none;padding:0;margin:.3rem 0 0;white-space:pre-wrap;overflow-wrap:anywhere}
 </style>
 </head>
 <body data-version="{{.Tag}}" data-report="{{.Report}}">
-<header class="bar{{if .Error}} broken{{end}}" id="bar"><div class="row"><div class="row" id="info">{{template "bar" .}}</div><span class="live" id="live">live</span></div></header>
+<header class="bar{{if .Error}} broken{{end}}" id="bar"><div class="row"><div class="info" id="info">{{template "bar" .}}</div><span class="live" id="live">live</span></div></header>
 <main id="report">
 {{if .Ready}}{{.Body}}{{else}}` + string(noReport) + `{{end}}</main>
 <script nonce="{{.Nonce}}">
