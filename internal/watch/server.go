@@ -457,7 +457,7 @@ var pageTmpl = template.Must(template.New("page").Parse(`<!DOCTYPE html>
 :root{color-scheme:light dark;--fg:#1b1b1b;--bg:#fff;--muted:#5f6368;--line:#c8c8c8;--head:#f1f1f1;--code:#f3f3f3;--bar:#fafafa;--pass:#1b6e2d;--passbg:#e3f3e6;--fail:#a3231a;--failbg:#fbe4e2;--link:#0b57d0}
 @media (prefers-color-scheme:dark){:root{--fg:#e3e3e3;--bg:#151719;--muted:#a0a6ad;--line:#3c4046;--head:#222529;--code:#23262a;--bar:#1d2023;--pass:#8fdc9b;--passbg:#183d20;--fail:#ffb4ab;--failbg:#4a1a16;--link:#a8c7fa}}
 *{box-sizing:border-box}
-html{-webkit-text-size-adjust:100%}
+html{-webkit-text-size-adjust:100%;scroll-padding-top:4.5rem}
 body{font:15px/1.5 system-ui,sans-serif;margin:0;color:var(--fg);background:var(--bg)}
 a{color:var(--link)}
 main{max-width:60rem;margin:0 auto;padding:.5rem 1rem 3rem}

@@ -696,13 +696,19 @@ func TestServerShowsPreviousReport(t *testing.T) {
 // rawHost sends GET / with the Host header given.
 func rawHost(t *testing.T, addr, host string) int {
 	t.Helper()
+	return rawHostPath(t, addr, host, "/")
+}
+
+// rawHostPath sends GET path with the Host header given.
+func rawHostPath(t *testing.T, addr, host, path string) int {
+	t.Helper()
 	c, err := net.DialTimeout("tcp", addr, 3*time.Second)
 	if err != nil {
 		t.Fatal(err)
 	}
 	defer c.Close()
 	c.SetDeadline(time.Now().Add(3 * time.Second))
-	fmt.Fprintf(c, "GET / HTTP/1.1\r\nHost: %s\r\nConnection: close\r\n\r\n", host)
+	fmt.Fprintf(c, "GET %s HTTP/1.1\r\nHost: %s\r\nConnection: close\r\n\r\n", path, host)
 	resp, err := http.ReadResponse(bufio.NewReader(c), nil)
 	if err != nil {
 		t.Fatal(err)

@@ -17,7 +17,8 @@ const env = (k) => {
 };
 const url = env("RFL_URL"), sheet = env("RFL_SHEET"), outFile = env("RFL_OUT"), shots = env("RFL_SHOTS");
 const res = { shots: [], steps: [] };
-const step = (s) => res.steps.push(s);
+const started = Date.now();
+const step = (s) => res.steps.push(s + " at " + (Date.now() - started) + " ms");
 
 // The page's own text of an element, with no-break spaces as plain ones.
 const text = (page, sel) => page.$eval(sel, (e) => e.textContent.replace(/\u00a0/g, " ").trim()).catch(() => null);
@@ -113,10 +114,10 @@ async function main() {
     fs.writeFileSync(sheet, edited);
     await page.waitForFunction(() => !document.getElementById("error") && document.getElementById("bar").className === "bar", null, { timeout: 5000 }).catch(() => {});
     res.fixed = await page.evaluate(() => !document.getElementById("error"));
-    await page.waitForFunction(() => !document.getElementById("mc"), null, { timeout: 20000 }).catch(() => {});
 
     step("narrow and dark");
     res.layouts = {};
+    res.chartContrast = {};
     for (const scheme of ["light", "dark"]) {
       await page.emulateMedia({ colorScheme: scheme });
       for (const width of [1280, 420]) {
@@ -147,9 +148,13 @@ async function main() {
         await shot(page, name);
         await page.evaluate(() => { const img = document.querySelector("#report img"); if (img) img.scrollIntoView(); });
         await shot(page, name + "-chart");
-        res.layouts[name].chartContrast = await chartContrast(page);
+        if (width === 1280) { // the same charts as at 420 px, drawn larger
+          res.chartContrast[scheme] = await chartContrast(page, "#report img");
+          if (scheme === "dark") res.chartContrast.control = await controlContrast(page);
+        }
       }
     }
+    step("done");
     res.loads = loads;
     res.sameDocumentAtEnd = await page.evaluate(() => window.__sameDocument === true);
   } finally {
@@ -160,8 +165,8 @@ async function main() {
 // chartContrast photographs the first chart as shown and returns the share of its pixels
 // that stand out from the page's background with a contrast ratio of at least 4.5
 // (WCAG 2.1's minimum for text; its definitions of relative luminance and contrast ratio).
-async function chartContrast(page) {
-  const img = await page.$("#report img");
+async function chartContrast(page, sel) {
+  const img = await page.$(sel);
   if (!img) return null;
   const png = (await img.screenshot()).toString("base64");
   return page.evaluate(async (png) => {
@@ -186,6 +191,28 @@ async function chartContrast(page) {
     }
     return n / (d.length / 4);
   }, png);
+}
+
+// controlContrast measures, on the dark page, the first chart with its dark-mode rule taken
+// out (served as a data: URL beside it): its text stays dark, and the measure must say so.
+async function controlContrast(page) {
+  const ok = await page.evaluate(async () => {
+    const img = document.querySelector("#report img");
+    const svg = await (await fetch(img.getAttribute("src"))).text();
+    const stripped = svg.replace(/@media \(prefers-color-scheme:dark\)\{[^}]*\}\}/, "");
+    if (stripped === svg) return false;
+    const c = new Image();
+    c.id = "control";
+    c.width = img.width; c.height = img.height;
+    c.src = "data:image/svg+xml;base64," + btoa(unescape(encodeURIComponent(stripped)));
+    img.after(c);
+    await c.decode();
+    return true;
+  });
+  if (!ok) return null;
+  const v = await chartContrast(page, "#control");
+  await page.evaluate(() => document.getElementById("control").remove());
+  return v;
 }
 
 async function shot(page, name) {
