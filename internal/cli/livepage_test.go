@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"io"
 	"math"
 	"os"
 	"os/exec"
@@ -13,6 +14,9 @@ import (
 	"sync"
 	"testing"
 	"time"
+
+	"github.com/rfledger/rfledger/analysis"
+	"github.com/rfledger/rfledger/internal/rflib"
 )
 
 // browserTools finds Debian's chromium and the npm playwright-core that drives it, or says
@@ -316,4 +320,51 @@ func (s *syncBuf) String() string {
 	s.mu.Lock()
 	defer s.mu.Unlock()
 	return s.b.String()
+}
+
+// TestLiveSummary checks the served page's status bar against each demo's committed page:
+// the same verdict as its Verdict section and the same focus value as its "Focus:" line.
+func TestLiveSummary(t *testing.T) {
+	sheets, err := filepath.Glob("../../worksheets/*.toml")
+	if err != nil || len(sheets) == 0 {
+		t.Fatalf("no demos: %v", err)
+	}
+	for _, sheet := range sheets {
+		t.Run(filepath.Base(sheet), func(t *testing.T) {
+			md, err := os.ReadFile(strings.TrimSuffix(sheet, ".toml") + ".md")
+			if err != nil {
+				t.Fatal(err)
+			}
+			page := string(md)
+			verdict, _, _ := strings.Cut(page[strings.Index(page, "## Verdict"):], "\n\n##")
+			lw := &liveSheet{e: &Env{Stdout: io.Discard, Stderr: io.Discard}, sheet: sheet, out: filepath.Join(t.TempDir(), "s.md"), lib: rflib.Library(), ao: analysis.Options{Seed: 1}}
+			if _, _, err := lw.render(); err != nil {
+				t.Fatal(err)
+			}
+			s := lw.summary()
+			switch {
+			case strings.Contains(verdict, "**PASS"):
+				if s.Verdict != "PASS" {
+					t.Errorf("the page passes, the bar says %q (%s)", s.Verdict, s.Detail)
+				}
+			case strings.Contains(verdict, "**FAIL"):
+				if s.Verdict != "FAIL" {
+					t.Errorf("the page fails, the bar says %q (%s)", s.Verdict, s.Detail)
+				}
+			default:
+				if s.Verdict != "" {
+					t.Errorf("the page checks nothing, the bar says %q", s.Verdict)
+				}
+			}
+			if s.FocusName == "" {
+				t.Fatal("no focus in the bar")
+			}
+			if line := "Focus: `" + s.FocusName + "` = **" + s.FocusValue + "**"; strings.Contains(verdict, "Focus:") && !strings.Contains(verdict, line) {
+				t.Errorf("the bar's %q is not the page's focus line", line)
+			}
+			if !s.Pending {
+				t.Error("the demos have tolerances: the quick render leaves the Monte Carlo pending")
+			}
+		})
+	}
 }

@@ -186,7 +186,8 @@ func (lw *liveSheet) summary() watch.Summary {
 		return watch.Summary{}
 	}
 	sh := ev.sheet
-	var s watch.Summary
+	// refine fills in the Monte Carlo exactly when the quick analyses have a tolerance.
+	s := watch.Summary{Pending: ev.analysis != nil && ev.analysis.Tolerance != nil}
 	results := []*engine.Result{ev.result}
 	if len(ev.cases) > 1 {
 		results = results[:0]

@@ -107,7 +107,7 @@ func TestServerLiveState(t *testing.T) {
 	o.Serve = ":0"
 	o.Ready = func(addr string) { ready <- addr }
 	o.Summary = func() Summary {
-		return Summary{Verdict: "PASS", Detail: "1 of 1 requirements hold", FocusName: "link.<margin>", FocusValue: "12.50 dB"}
+		return Summary{Verdict: "PASS", Detail: "1 of 1 requirements hold", FocusName: "link.<margin>", FocusValue: "12.50 dB", Pending: true}
 	}
 	o.Refine = func() ([]byte, bool) {
 		<-release
@@ -163,5 +163,28 @@ func TestServerLiveState(t *testing.T) {
 	})
 	if code := rawHostPath(t, s.addr, "evil.example", "/state"); code != http.StatusMisdirectedRequest {
 		t.Errorf("/state for a foreign Host = %d, want 421", code)
+	}
+}
+
+// A render that leaves nothing for Refine (Summary.Pending false) never shows the Monte Carlo
+// as running, though Refine is set.
+func TestServerNothingPending(t *testing.T) {
+	f := newFixture(t, "one")
+	ready := make(chan string, 1)
+	o := f.opts()
+	o.Serve = ":0"
+	o.Ready = func(addr string) { ready <- addr }
+	o.Summary = func() Summary { return Summary{Verdict: "FAIL", Detail: "0 of 1 requirements hold"} }
+	o.Refine = func() ([]byte, bool) { return nil, false }
+	start(t, f.sh.render, o)
+	s := &served{fixture: f, client: &http.Client{Timeout: 3 * time.Second, Transport: &http.Transport{DisableKeepAlives: true}}}
+	select {
+	case s.addr = <-ready:
+	case <-time.After(3 * time.Second):
+		t.Fatal("Ready was not called")
+	}
+	st := s.state(t)
+	if strings.Contains(st.Bar, "Monte Carlo") || !strings.Contains(st.Bar, `class="verdict fail"`) || strings.Contains(st.Bar, "focus") {
+		t.Errorf("status bar:\n%s", st.Bar)
 	}
 }

@@ -45,6 +45,9 @@ type Summary struct {
 	Detail     string // what the verdict counts, e.g. "2 of 2 requirements hold"
 	FocusName  string // the focus quantity's name; "" when the sheet has none
 	FocusValue string // its value in the page's display unit, e.g. "12.50 dB"
+	// Pending says the render left the Monte Carlo out for Options.Refine to fill in; the
+	// bar says so until it is done. Without a Summary, any render with a Refine is pending.
+	Pending bool
 }
 
 func newState() *state {

@@ -288,11 +288,11 @@ func (l *loop) recalc() bool {
 		l.written()
 	}
 	fmt.Fprintf(l.status, "%s rendered %s in %s\n", stamp(), name, fmtMillis(elapsed))
-	var sum Summary
+	sum := Summary{Pending: true}
 	if l.summary != nil {
 		sum = l.summary()
 	}
-	l.st.succeed(data, l.extras(), sum, l.refine != nil)
+	l.st.succeed(data, l.extras(), sum, l.refine != nil && sum.Pending)
 	l.stale = l.changedSince(files, start)
 	if l.refine != nil {
 		gen, refine, out, done := l.gen, l.refine, l.refined, l.done
