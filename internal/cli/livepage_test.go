@@ -1,7 +1,6 @@
 package cli
 
 import (
-	"bytes"
 	"context"
 	"encoding/json"
 	"io"
@@ -11,7 +10,6 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
-	"sync"
 	"testing"
 	"time"
 
@@ -138,10 +136,16 @@ func TestLivePageInChromium(t *testing.T) {
 
 	ctx, cancel := context.WithCancel(context.Background())
 	ready := make(chan string, 1)
-	var stderr syncBuf
+	// What watch prints goes to a file: the loop and its server write at once.
+	logFile, err := os.Create(filepath.Join(dir, "watch.log"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer logFile.Close()
+	stderr := logText(logFile.Name())
 	done := make(chan int, 1)
 	go func() {
-		done <- watchUntil(ctx, &Env{Stdout: &stderr, Stderr: &stderr}, []string{sheet, "-o", filepath.Join(dir, "field.md"), "--serve", "127.0.0.1:0"}, func(a string) { ready <- a })
+		done <- watchUntil(ctx, &Env{Stdout: logFile, Stderr: logFile}, []string{sheet, "-o", filepath.Join(dir, "field.md"), "--serve", "127.0.0.1:0"}, func(a string) { ready <- a })
 	}()
 	defer func() {
 		cancel()
@@ -272,6 +276,14 @@ func TestLivePageInChromium(t *testing.T) {
 // these measurements (no source).
 const chartInk = 0.01
 
+// logText reads the log file named when asked for its String.
+type logText string
+
+func (l logText) String() string {
+	b, _ := os.ReadFile(string(l))
+	return string(b)
+}
+
 // luminance reads a CSS rgb()/rgba() colour as a relative luminance from 0 to 1 (WCAG 2.1's
 // definition of relative luminance); a fully transparent colour counts as white, the
 // browser's default canvas.
@@ -302,24 +314,6 @@ func luminance(t *testing.T, css string) float64 {
 		c[i] = v
 	}
 	return 0.2126*c[0] + 0.7152*c[1] + 0.0722*c[2]
-}
-
-// syncBuf is a bytes.Buffer safe for the watch loop and its server writing at once.
-type syncBuf struct {
-	mu sync.Mutex
-	b  bytes.Buffer
-}
-
-func (s *syncBuf) Write(p []byte) (int, error) {
-	s.mu.Lock()
-	defer s.mu.Unlock()
-	return s.b.Write(p)
-}
-
-func (s *syncBuf) String() string {
-	s.mu.Lock()
-	defer s.mu.Unlock()
-	return s.b.String()
 }
 
 // TestLiveSummary checks the served page's status bar against each demo's committed page:

@@ -81,7 +81,23 @@ func TestServedLayout(t *testing.T) {
 	}
 }
 
-// liveState fetches /state.
+// serve runs f's watch with o, served on a loopback port.
+func serve(t *testing.T, f *fixture, o Options) *served {
+	t.Helper()
+	ready := make(chan string, 1)
+	o.Serve = ":0"
+	o.Ready = func(addr string) { ready <- addr }
+	s := &served{fixture: f, client: &http.Client{Timeout: 3 * time.Second, Transport: &http.Transport{DisableKeepAlives: true}}}
+	s.stop = start(t, f.sh.render, o)
+	select {
+	case s.addr = <-ready:
+	case <-time.After(3 * time.Second):
+		t.Fatal("Ready was not called")
+	}
+	return s
+}
+
+// state fetches /state.
 func (s *served) state(t *testing.T) liveState {
 	t.Helper()
 	resp, body := s.get(t, "GET", "/state")
@@ -111,10 +127,7 @@ func TestServerLiveState(t *testing.T) {
 	// Refinements wait until release is closed (a save that lands during the first render
 	// may render again, so there may be more than one waiting), then all go through.
 	release := make(chan struct{})
-	ready := make(chan string, 1)
 	o := f.opts()
-	o.Serve = ":0"
-	o.Ready = func(addr string) { ready <- addr }
 	o.Summary = func() Summary {
 		return Summary{Verdict: "PASS", Detail: "1 of 1 requirements hold", FocusName: "link.<margin>", FocusValue: "12.50 dB", Pending: true}
 	}
@@ -123,13 +136,7 @@ func TestServerLiveState(t *testing.T) {
 		data, _, err := f.sh.render()
 		return append(data, "\nMonte Carlo median 12 dB\n"...), err == nil
 	}
-	start(t, f.sh.render, o)
-	s := &served{fixture: f, client: &http.Client{Timeout: 3 * time.Second, Transport: &http.Transport{DisableKeepAlives: true}}}
-	select {
-	case s.addr = <-ready:
-	case <-time.After(3 * time.Second):
-		t.Fatal("Ready was not called")
-	}
+	s := serve(t, f, o)
 
 	quick := s.state(t)
 	if quick.Broken || !strings.Contains(quick.HTML, "<td>12.50\u00a0dB</td>") {
@@ -178,19 +185,10 @@ func TestServerLiveState(t *testing.T) {
 // as running, though Refine is set.
 func TestServerNothingPending(t *testing.T) {
 	f := newFixture(t, "one")
-	ready := make(chan string, 1)
 	o := f.opts()
-	o.Serve = ":0"
-	o.Ready = func(addr string) { ready <- addr }
 	o.Summary = func() Summary { return Summary{Verdict: "FAIL", Detail: "0 of 1 requirements hold"} }
 	o.Refine = func() ([]byte, bool) { return nil, false }
-	start(t, f.sh.render, o)
-	s := &served{fixture: f, client: &http.Client{Timeout: 3 * time.Second, Transport: &http.Transport{DisableKeepAlives: true}}}
-	select {
-	case s.addr = <-ready:
-	case <-time.After(3 * time.Second):
-		t.Fatal("Ready was not called")
-	}
+	s := serve(t, f, o)
 	st := s.state(t)
 	if strings.Contains(st.Bar, "Monte Carlo") || !strings.Contains(st.Bar, `class="verdict fail"`) || strings.Contains(st.Bar, "focus") {
 		t.Errorf("status bar:\n%s", st.Bar)

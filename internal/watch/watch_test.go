@@ -461,25 +461,15 @@ func startServed(t *testing.T, content string) *served {
 	outDir := filepath.Dir(f.out)
 	writeFile(t, filepath.Join(outDir, "sweep.svg"), `<svg xmlns="http://www.w3.org/2000/svg" width="10" height="10"/>`)
 	writeFile(t, filepath.Join(outDir, "secret.txt"), "not listed")
-	ready := make(chan string, 2)
 	o := f.opts()
-	o.Serve = ":0"
 	o.Title = "Field link <budget>"
-	o.Ready = func(addr string) { ready <- addr }
 	o.Extra = func(dir string) []string {
 		if dir != outDir {
 			t.Errorf("Extra got dir %q, want %q", dir, outDir)
 		}
 		return []string{"sweep.svg"}
 	}
-	s := &served{fixture: f, client: &http.Client{Timeout: 3 * time.Second, Transport: &http.Transport{DisableKeepAlives: true}}}
-	s.stop = start(t, f.sh.render, o)
-	select {
-	case s.addr = <-ready:
-	case <-time.After(3 * time.Second):
-		t.Fatal("Ready was not called")
-	}
-	return s
+	return serve(t, f, o)
 }
 
 func (s *served) get(t *testing.T, method, path string) (*http.Response, string) {
