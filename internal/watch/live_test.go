@@ -81,6 +81,16 @@ func TestServedLayout(t *testing.T) {
 	}
 }
 
+// age dates the sheet an hour back: a sheet saved just now is rendered twice on start (a
+// save may have landed during the first render, see changedSince).
+func (f *fixture) age(t *testing.T) {
+	t.Helper()
+	old := time.Now().Add(-time.Hour)
+	if err := os.Chtimes(f.main, old, old); err != nil {
+		t.Fatal(err)
+	}
+}
+
 // serve runs f's watch with o, served on a loopback port.
 func serve(t *testing.T, f *fixture, o Options) *served {
 	t.Helper()
@@ -118,12 +128,7 @@ func (s *served) state(t *testing.T) liveState {
 // one), a broken save and a fix, as the page's script sees them through /state.
 func TestServerLiveState(t *testing.T) {
 	f := newFixture(t, "| A | B |\n|---|---|\n| gain | 12.50 dB |")
-	// A sheet saved just now would be rendered twice on start (see changedSince); this
-	// test counts on one render per save.
-	old := time.Now().Add(-time.Hour)
-	if err := os.Chtimes(f.main, old, old); err != nil {
-		t.Fatal(err)
-	}
+	f.age(t) // this test counts on one render per save
 	// Refinements wait until release is closed (a save that lands during the first render
 	// may render again, so there may be more than one waiting), then all go through.
 	release := make(chan struct{})

@@ -837,6 +837,7 @@ func TestRunFollowsRecreatedFolder(t *testing.T) {
 // is never older than the sheet.
 func TestRunRefinesInTheBackground(t *testing.T) {
 	f := newFixture(t, "alpha")
+	f.age(t) // a second start-up render would make the slow refinement the first one's
 	release := make(chan struct{})
 	var calls atomic.Int64
 	o := f.opts()
