@@ -75,6 +75,7 @@ type livePage struct {
 	} `json:"seen"`
 	MonteCarloFilled      bool `json:"monteCarloFilled"`
 	SameDocumentAfterEdit bool `json:"sameDocumentAfterEdit"`
+	SweepStillOpen        bool `json:"sweepStillOpen"`
 	Broken                *struct {
 		BarClass     string  `json:"barClass"`
 		BarTop       float64 `json:"barTop"`
@@ -212,6 +213,9 @@ func TestLivePageInChromium(t *testing.T) {
 	}
 	if d := r.ScrollAfter - r.ScrollBefore; r.ScrollBefore < 1000 || d > 2 || d < -2 {
 		t.Errorf("the scroll position moved from %v to %v on update", r.ScrollBefore, r.ScrollAfter)
+	}
+	if !r.SweepStillOpen {
+		t.Error("the sweep table a reader unfolded closed again on update")
 	}
 	if !r.Seen.Quick || !r.Seen.Running || !r.MonteCarloFilled {
 		t.Errorf("the page should show the nominal results first and the Monte Carlo after: saw the quick page %v, the running mark %v, filled in %v", r.Seen.Quick, r.Seen.Running, r.MonteCarloFilled)

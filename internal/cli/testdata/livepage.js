@@ -53,8 +53,11 @@ async function main() {
       return d ? { open: d.open, rows: d.querySelectorAll("tbody tr").length, summary: d.querySelector("summary").textContent } : null;
     });
 
-    // Scroll well down, mark the document, and watch which steps the report goes through.
+    // Unfold the sweep table (as a reader would), scroll well down, mark the document, and
+    // watch which steps the report goes through.
     await page.evaluate(() => {
+      const d = document.querySelector("details.fold");
+      if (d) d.open = true;
       window.scrollTo(0, 2500);
       window.__sameDocument = true;
       window.__seen = { quick: false, running: false };
@@ -85,6 +88,7 @@ async function main() {
     res.monteCarloFilled = await page.evaluate(() => !document.getElementById("mc") && document.getElementById("report").textContent.includes("Monte Carlo median"));
     res.scrollAfter = await page.evaluate(() => window.scrollY);
     res.sameDocumentAfterEdit = await page.evaluate(() => window.__sameDocument === true);
+    res.sweepStillOpen = await page.evaluate(() => { const d = document.querySelector("details.fold"); return !!d && d.open; });
     await shot(page, "1280-light-scrolled");
 
     step("broken save");
