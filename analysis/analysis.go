@@ -20,17 +20,17 @@ import (
 
 // Limits on analyses.
 const (
-	DefaultTrials = 10_000
-	MaxTrials     = 1_000_000
+	DefaultTrials = 10_000    // Monte Carlo trials when Options.Trials is 0
+	MaxTrials     = 1_000_000 // the most trials the command accepts
 )
 
 // Options configure Analyze.
 type Options struct {
-	Trials   int    // Monte Carlo trials; 0 means DefaultTrials
-	Seed     uint64 // Monte Carlo seed; the same seed gives the same report
-	Workers  int    // goroutines for the trials; 0 means GOMAXPROCS. Results do not depend on it.
-	Focus    string // the quantity to centre on (a case's own focus); "" means the sheet's
-	Progress func(what string, done, total int)
+	Trials   int                                // Monte Carlo trials; 0 means DefaultTrials
+	Seed     uint64                             // Monte Carlo seed; the same seed gives the same report
+	Workers  int                                // goroutines for the trials; 0 means GOMAXPROCS. Results do not depend on it.
+	Focus    string                             // the quantity to centre on (a case's own focus); "" means the sheet's
+	Progress func(what string, done, total int) // told of the trials done, about 20 times a run, never concurrently; nil for none
 	// SkipMonteCarlo leaves the trials out (Tolerance.Trials is then 0): the worst case and
 	// RSS come at once, for a page that is completed later.
 	SkipMonteCarlo bool
@@ -38,84 +38,103 @@ type Options struct {
 
 // Analysis is what the analyses found about the focus quantity, and the sweeps and solves.
 type Analysis struct {
-	Focus       *engine.Quantity
-	FocusValue  units.Q
-	Unit        string // the unit focus values below are in ("dB", "dBm", "m" …)
-	ChangeUnit  string // the unit of changes of the focus ("dB" for a decibel focus)
-	Sensitivity []Sensitivity
-	Budget      []Contribution // where the budget goes; nil when the focus is not a sum of decibel terms
-	Tolerance   *Tolerance     // nil when no input the focus depends on has a tolerance
-	Sweeps      []SweepResult
-	Solves      []SolveResult
+	Focus       *engine.Quantity // the quantity analysed; nil when the sheet has no focus
+	FocusValue  units.Q          // its value in the result analysed
+	Unit        string           // the unit focus values below are in ("dB", "dBm", "m" …)
+	ChangeUnit  string           // the unit of changes of the focus ("dB" for a decibel focus)
+	Sensitivity []Sensitivity    // one per input the focus depends on, largest change first
+	Budget      []Contribution   // where the budget goes; nil when the focus is not a sum of decibel terms
+	Flow        *SignalFlow      // the budget in signal order; nil when the focus is not a level in signal order
+	Tolerance   *Tolerance       // nil when no input the focus depends on has a tolerance
+	Sweeps      []SweepResult    // one per [[sweep]], in file order
+	Solves      []SolveResult    // one per [[solve]], in file order
 }
 
 // Sensitivity is the change of the focus when one input rises by Per (1 dB or 10 %).
 type Sensitivity struct {
-	Input  string
-	Per    string
+	Input  string  // the input's full name
+	Per    string  // how far it rises: "1 dB" for a decibel input, "10 %" for a linear one
 	Change float64 // in Analysis.ChangeUnit; NaN when the focus could not be evaluated
 }
 
-// Contribution is one signed line item of a focus that is a sum of decibel terms.
+// Contribution is one signed line item of a focus that is a sum of decibel terms. The items
+// with a reference (dBm, dBHz) come first as the formula writes them, then the gains and
+// losses in dB, largest first.
 type Contribution struct {
-	Item     string  // label: a quantity's name, or "quantity: term" for a term inside a formula
-	Quantity string  // the quantity the term belongs to
-	Value    float64 // signed, in the term's own decibel unit
-	Unit     string
+	Item      string  // label: a quantity's name, or "quantity: term" for a term inside a formula
+	Quantity  string  // the quantity the term belongs to
+	Value     float64 // signed, in the term's own decibel unit
+	Unit      string  // that unit ("dB", "dBi" …)
+	Sign      int     // how the term enters the sum: +1 or −1
+	Total     float64 // the running total of the items so far, in TotalUnit
+	TotalUnit string  // the unit the references so far leave it in ("dBHz" after a C/N0, "dB" once a dBHz is taken off)
+	ref       units.Q // the term's value, before its sign
 }
 
 // Tolerance is the spread of the focus from the inputs' tolerances.
 type Tolerance struct {
-	Nominal   float64
-	WorstLow  float64
-	WorstHigh float64
-	RSSSigma  float64
-	Trials    int
-	Seed      uint64
-	PPass     float64 // chance that every requirement holds (1 when there are none and all trials evaluate)
-	P01, P50  float64
-	P99       float64
+	Nominal   float64   // the focus at the nominal inputs, in Analysis.Unit like all values below
+	WorstLow  float64   // the focus with every input at the end of its tolerance that lowers it
+	WorstHigh float64   // the focus with every input at the end that raises it
+	RSSSigma  float64   // one standard deviation of the focus: root-sum-square of each input's slope × σ
+	Trials    int       // Monte Carlo trials run (0 with Options.SkipMonteCarlo)
+	Seed      uint64    // the seed they ran with
+	PPass     float64   // chance that every requirement holds (1 when there are none and all trials evaluate)
+	P01, P50  float64   // the 1st percentile and the median of the trials
+	P99       float64   // the 99th percentile
 	Failed    int       // trials that could not be evaluated (counted as failing)
 	Shares    []Share   // each input's share of the variance, largest first
 	Samples   []float64 // the focus in each trial that evaluated, sorted
+	// LowCorner and HighCorner say where each toleranced input sits in the worst case low
+	// and high: the input with the larger effect first, ties by name.
+	LowCorner, HighCorner []Corner
+}
+
+// Corner is where one toleranced input sits in a worst case.
+type Corner struct {
+	Input  string  // the input's full name
+	Limit  string  // "low" or "high" (its tolerance limit), or "nominal" when it does not move the focus
+	Value  float64 // the input's value there, in Unit
+	Unit   string  // the input's report unit
+	Effect float64 // the change of the focus (in Analysis.ChangeUnit) with this input alone moved there; NaN when a limit could not be evaluated
 }
 
 // Share is one input's share of the focus's variance.
 type Share struct {
-	Input string
-	Share float64
+	Input string  // the input's full name
+	Share float64 // its fraction of the variance, 0 to 1
 }
 
 // SweepResult holds a sweep's points.
 type SweepResult struct {
 	Sweep     *engine.Sweep
-	Unit      string // unit of X
-	X         []float64
-	Series    []Series
-	Crossings []Crossing
+	Unit      string     // unit of X
+	X         []float64  // the swept input's values, Sweep.Steps+1 of them
+	Series    []Series   // one per quantity of Sweep.Plot, in that order
+	Crossings []Crossing // where a series crosses a plain bound on it, by requirement and series
 }
 
 // Series is one plotted quantity over a sweep. Y is NaN where it could not be evaluated.
 type Series struct {
-	Quantity string
-	Unit     string
-	Y        []float64
+	Quantity string    // the plotted quantity's full name
+	Unit     string    // unit of Y
+	Y        []float64 // one per point of the sweep's X
 }
 
 // Crossing is where a plotted quantity crosses a requirement's bound within a sweep.
 type Crossing struct {
-	Quantity string
-	Require  int // index into Sheet.Requires
-	X, Y     float64
+	Quantity string  // the plotted quantity's full name
+	Require  int     // index into Sheet.Requires
+	X, Y     float64 // where, in the sweep's and the series' units; X found on the model between points
 }
 
 // SolveResult is the answer to a solve. Found is false when there is no crossing in range.
 type SolveResult struct {
 	Solve *engine.Solve
-	Found bool
+	Found bool    // a value within the solve's range was found
 	Value float64 // in Unit
-	Unit  string
-	Note  string // why nothing was found, or what went wrong
+	Unit  string  // the unit of the varied input
+	Note  string  // why nothing was found, or what went wrong
 }
 
 // Analyze runs the analyses on the focus quantity of r's sheet, and the sweeps and solves,
@@ -131,6 +150,9 @@ func Analyze(r *engine.Result, opt Options) (*Analysis, engine.Diagnostics) {
 	}
 	a := &Analysis{}
 	var diags engine.Diagnostics
+	for _, cc := range Cascades(r) {
+		diags = append(diags, cc.Warnings...) // stages near compression at the chain's input level
+	}
 	focus := s.Focus
 	if opt.Focus != "" {
 		focus = opt.Focus
@@ -146,6 +168,7 @@ func Analyze(r *engine.Result, opt Options) (*Analysis, engine.Diagnostics) {
 		fa := newFocusAt(r, f)
 		a.Sensitivity = fa.sensitivity()
 		a.Budget = budget(fa.sc, f)
+		a.Flow = signalFlow(fa.sc, f)
 		if opt.Trials > MaxTrials {
 			diags = append(diags, engine.Diagnostic{Severity: engine.Error, Quantity: "trials", Summary: fmt.Sprintf("at most %d Monte Carlo trials", MaxTrials), Range: engine.Range{File: s.File}})
 		} else {
@@ -237,8 +260,20 @@ func (fa *focusAt) sensitivity() []Sensitivity {
 		}
 		out = append(out, Sensitivity{Input: q.Name, Per: per, Change: change})
 	}
-	sort.SliceStable(out, func(i, j int) bool { return math.Abs(out[i].Change) > math.Abs(out[j].Change) })
+	sort.Slice(out, func(i, j int) bool { return largerEffect(out[i].Change, out[j].Change, out[i].Input, out[j].Input) })
 	return out
+}
+
+// largerEffect orders effects largest first, those that could not be evaluated (NaN) last,
+// ties by name, so the order never depends on the order the inputs were found in.
+func largerEffect(a, b float64, nameA, nameB string) bool {
+	if na, nb := math.IsNaN(a), math.IsNaN(b); na != nb {
+		return nb
+	}
+	if x, y := math.Abs(a), math.Abs(b); x != y && !math.IsNaN(x) {
+		return x > y
+	}
+	return nameA < nameB
 }
 
 // tolerance computes worst cases, RSS and the Monte Carlo spread of the focus.
@@ -284,11 +319,15 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 		fl, okl := fa.at(qs[i:i+1], []units.Q{in.lo}, cone)
 		fh, okh := fa.at(qs[i:i+1], []units.Q{in.hi}, cone)
 		lowCorner[i], highCorner[i] = in.nom, in.nom
+		low, high := corner(in.q, "nominal", in.nom, math.NaN()), corner(in.q, "nominal", in.nom, math.NaN())
 		if okl && okh {
+			low.Effect, high.Effect = 0, 0
 			if fl < fh {
 				lowCorner[i], highCorner[i] = in.lo, in.hi
+				low, high = corner(in.q, "low", in.lo, fl-t.Nominal), corner(in.q, "high", in.hi, fh-t.Nominal)
 			} else if fh < fl {
 				lowCorner[i], highCorner[i] = in.hi, in.lo
+				low, high = corner(in.q, "high", in.hi, fh-t.Nominal), corner(in.q, "low", in.lo, fl-t.Nominal)
 			}
 			if span := in.hi.V - in.lo.V; span > 0 {
 				slope := (fh - fl) / span
@@ -296,7 +335,10 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 				rss += sd * sd
 			}
 		}
+		t.LowCorner, t.HighCorner = append(t.LowCorner, low), append(t.HighCorner, high)
 	}
+	sortCorners(t.LowCorner)
+	sortCorners(t.HighCorner)
 	union := s.Cone(qs...)
 	t.WorstLow, _ = fa.at(qs, lowCorner, union)
 	t.WorstHigh, _ = fa.at(qs, highCorner, union)
@@ -361,6 +403,14 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 	}
 	t.Shares = varianceShares(focusVals, draws, len(ins), func(i int) string { return ins[i].q.Name })
 	return t
+}
+
+func corner(q *engine.Quantity, limit string, v units.Q, effect float64) Corner {
+	return Corner{Input: q.Name, Limit: limit, Value: engine.Number(q, v), Unit: engine.UnitName(q), Effect: effect}
+}
+
+func sortCorners(cs []Corner) {
+	sort.Slice(cs, func(i, j int) bool { return largerEffect(cs[i].Effect, cs[j].Effect, cs[i].Input, cs[j].Input) })
 }
 
 // varianceShares estimates each input's share of the focus variance as its squared

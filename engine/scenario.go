@@ -104,9 +104,9 @@ func (sc *Scenario) Holds() bool {
 // quantity the formula names (Quantity is set), or another expression, shown as Text and
 // computed by Scenario.Term.
 type Term struct {
-	Sign     int
-	Quantity *Quantity
-	Text     string // the term in worksheet syntax, names relative to the formula's group
+	Sign     int       // +1 or −1
+	Quantity *Quantity // the quantity the term names, nil for another expression
+	Text     string    // the term in worksheet syntax, names relative to the formula's group
 	x        *inode
 }
 

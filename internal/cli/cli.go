@@ -61,7 +61,7 @@ func init() {
 		{"watch", "SHEET -o FILE [--serve ADDR] [--set name=value]...",
 			"re-render on every save of the worksheet or a part it uses; --serve shows the page live on loopback",
 			[][2]string{sheet}, "rfledger watch field.toml -o field.md --serve :8080", cmdWatch},
-		{"diff", "OLD NEW | SHEET --rev REV [--format markdown|json] [--exit-code [--tolerance X]]",
+		{"diff", "OLD NEW | SHEET --rev REV [--format markdown|json] [--exit-code [--tolerance X]] [--trials N] [--seed N]",
 			"what changed in the results between two worksheets, or a git revision and the working file",
 			[][2]string{{"OLD NEW", "two worksheet files, old first"}, {"SHEET", "with --rev: the working file, compared with itself at REV"}},
 			"rfledger diff field.toml --rev HEAD\nrfledger diff --exit-code --tolerance 0.5dB old.toml new.toml", cmdDiff},

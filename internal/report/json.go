@@ -26,7 +26,8 @@ type jsonDoc struct {
 	Chains       map[string]jsonChain `json:"chains"`
 	Sensitivity  []jsonSens           `json:"sensitivity"`
 	Budget       []jsonContribution   `json:"budget"`
-	Tolerance    any                  `json:"tolerance"` // *jsonTol, or an empty object
+	SignalFlow   []jsonFlowRow        `json:"signal_flow"` // the budget in signal order (flow.go); empty when the focus is not a level in signal order
+	Tolerance    any                  `json:"tolerance"`   // *jsonTol, or an empty object
 	Sweeps       []jsonSweep          `json:"sweeps"`
 	Solves       []jsonSolve          `json:"solves"`
 	Warnings     []string             `json:"warnings"`
@@ -69,6 +70,13 @@ type jsonStage struct {
 	OutDBm     *float64 `json:"signal_out_dbm,omitempty"`
 	IIP2DBm    *float64 `json:"iip2_dbm,omitempty"`
 	CumIIP2DBm *float64 `json:"cum_iip2_dbm,omitempty"`
+	OIP3DBm    *float64 `json:"oip3_dbm,omitempty"`
+	CumOIP3DBm *float64 `json:"cum_oip3_dbm,omitempty"`
+	IP1dBDBm   *float64 `json:"ip1db_dbm,omitempty"`
+	OP1dBDBm   *float64 `json:"op1db_dbm,omitempty"`
+	CumIP1dB   *float64 `json:"cum_ip1db_dbm,omitempty"`
+	CumOP1dB   *float64 `json:"cum_op1db_dbm,omitempty"`
+	BelowOP1dB *float64 `json:"below_op1db_db,omitempty"` // headroom at the chain input level
 }
 
 type jsonChain struct {
@@ -79,6 +87,10 @@ type jsonChain struct {
 	IIP3DBm *float64    `json:"iip3_dbm,omitempty"`
 	OIP3DBm *float64    `json:"oip3_dbm,omitempty"`
 	IIP2DBm *float64    `json:"iip2_dbm,omitempty"`
+	IP1dB   *float64    `json:"ip1db_dbm,omitempty"`
+	OP1dB   *float64    `json:"op1db_dbm,omitempty"`
+	InDBm   *float64    `json:"input_dbm,omitempty"`  // chain_input, when the group gives it
+	Backoff *float64    `json:"backoff_db,omitempty"` // with input_dbm
 	Error   string      `json:"error,omitempty"`
 }
 
@@ -118,6 +130,31 @@ type jsonTol struct {
 	RSSSigma   float64 `json:"rss_sigma"`
 	Unit       string  `json:"unit"`
 	MonteCarlo jsonMC  `json:"monte_carlo"`
+	// Where each toleranced input sits in the worst case low and high, largest effect first.
+	WorstLowCorner  []jsonCorner `json:"worst_low_corner"`
+	WorstHighCorner []jsonCorner `json:"worst_high_corner"`
+}
+
+// jsonCorner is one input at a worst case: which limit, its value there, and the change of
+// the focus (in the tolerance's change unit: dB for a decibel focus) with it alone moved there.
+type jsonCorner struct {
+	Input  string   `json:"input"`
+	Limit  string   `json:"limit"` // low, high or nominal
+	Value  *float64 `json:"value"`
+	Unit   string   `json:"unit"`
+	SI     *float64 `json:"si"`
+	SIUnit string   `json:"si_unit"`
+	Effect *float64 `json:"effect"`
+}
+
+func cornersJSON(cs []analysis.Corner) []jsonCorner {
+	out := []jsonCorner{}
+	for _, c := range cs {
+		jc := jsonCorner{Input: c.Input, Limit: c.Limit, Value: num(c.Value), Unit: c.Unit, Effect: num(c.Effect)}
+		jc.SI, jc.SIUnit = siOfNumber(c.Value, c.Unit)
+		out = append(out, jc)
+	}
+	return out
 }
 
 type jsonSweep struct {
@@ -168,7 +205,7 @@ func JSON(in Input) []byte {
 	sh, r := in.Sheet, in.Result
 	doc := jsonDoc{Format: 2, Tolerance: struct{}{}, Title: sh.Title, Summary: sh.Summary, Focus: sh.Focus, Hash: sh.Hash, Pass: true,
 		Quantities: map[string]jsonQ{}, Chains: map[string]jsonChain{},
-		Requirements: []jsonReq{}, Sensitivity: []jsonSens{}, Sweeps: []jsonSweep{}, Solves: []jsonSolve{}, Warnings: []string{}, Budget: []jsonContribution{}}
+		Requirements: []jsonReq{}, Sensitivity: []jsonSens{}, Sweeps: []jsonSweep{}, Solves: []jsonSolve{}, Warnings: []string{}, Budget: []jsonContribution{}, SignalFlow: []jsonFlowRow{}}
 	doc.Quantities = quantitiesJSON(sh, r)
 	for _, rq := range sh.Requires {
 		pass := passes(r, rq)
@@ -228,7 +265,13 @@ func chainJSON(ci analysis.Cascade) jsonChain {
 	if c.HasIIP2 {
 		jc.IIP2DBm = num(c.IIP2)
 	}
+	if c.HasIP1dB {
+		jc.IP1dB, jc.OP1dB = num(c.IP1dB), num(c.OP1dB)
+	}
 	in, hasIn := inputDBm(ci)
+	if hasIn {
+		jc.InDBm, jc.Backoff = num(in), num(ci.BackoffDB)
+	}
 	for i, st := range ci.Stages {
 		r := c.Stages[i]
 		js := jsonStage{Stage: st.Name, GainDB: st.GainDB, NFDB: st.NFDB, CumGainDB: r.CumGainDB, CumNFDB: r.CumNFDB, NoiseShare: r.NoiseShare}
@@ -247,6 +290,7 @@ func chainJSON(ci analysis.Cascade) jsonChain {
 		if hasIn {
 			js.OutDBm = num(in + r.CumGainDB)
 		}
+		stageLinearityJSON(&js, ci, i)
 		jc.Stages = append(jc.Stages, js)
 	}
 	return jc
@@ -259,12 +303,14 @@ func analysisJSON(doc *jsonDoc, a *analysis.Analysis, sh *engine.Sheet) {
 	for _, c := range a.Budget {
 		doc.Budget = append(doc.Budget, jsonContribution{Item: c.Item, Value: c.Value, Unit: c.Unit})
 	}
+	doc.SignalFlow = flowJSON(a.Flow)
 	if t := a.Tolerance; t != nil {
 		jt := &jsonTol{Nominal: t.Nominal, WorstLow: t.WorstLow, WorstHigh: t.WorstHigh, RSSSigma: t.RSSSigma, Unit: a.Unit,
 			MonteCarlo: jsonMC{Trials: t.Trials, Seed: t.Seed, PPass: t.PPass, P01: t.P01, P50: t.P50, P99: t.P99, Failed: t.Failed, Shares: []jShare{}}}
 		for _, s := range t.Shares {
 			jt.MonteCarlo.Shares = append(jt.MonteCarlo.Shares, jShare{Input: s.Input, Share: s.Share})
 		}
+		jt.WorstLowCorner, jt.WorstHighCorner = cornersJSON(t.LowCorner), cornersJSON(t.HighCorner)
 		doc.Tolerance = jt
 	}
 	for _, sw := range a.Sweeps {

@@ -286,13 +286,14 @@ func (p *page) cascades() {
 			p.f(", OIP3 %s dBm", db2(c.OIP3))
 		}
 		if c.HasIP1dB {
-			p.f(", input P1dB %s dBm", db2(c.IP1dB))
+			p.f(", input P1dB %s dBm, output P1dB %s dBm", db2(c.IP1dB), db2(c.OP1dB))
 		}
 		if c.HasIIP2 {
 			p.f(", IIP2 %s dBm (stages added in phase, a worst case)", db2(c.IIP2))
 		}
 		p.f(".\n\n")
 		p.f("%s\n\n", dominantStages(ci))
+		p.linearity(ci)
 		for _, n := range ci.Notes {
 			p.f("- Note: %s.\n", text(n))
 		}
@@ -344,16 +345,19 @@ func (p *page) budget() {
 		p.chainShares()
 		return
 	}
+	if a.Flow != nil {
+		p.signalFlow()
+		p.chainShares()
+		return
+	}
 	abs := 0.0
 	for _, c := range a.Budget {
 		abs += math.Abs(c.Value)
 	}
-	p.f("%s = %s is the sum of these terms, largest first (followed through the quantities its formula names):\n\n", code(a.Focus.Name), p.r.Display(a.Focus))
+	p.f("%s = %s is not one level carried along a signal path by gains and losses in dB, so its terms are listed as a sum (followed through the quantities its formula names): those with a reference (dBW, dBHz, dB/K) as the formula writes them, then the gains and losses in dB, largest first:\n\n", code(a.Focus.Name), p.r.Display(a.Focus))
 	p.f("| # | item | contribution | running total | share of the total swing |\n| ---: | --- | ---: | ---: | ---: |\n")
-	run := 0.0
 	for i, c := range a.Budget {
-		run += c.Value
-		p.f("| %d | %s | %s %s | %s | %s |\n", i+1, code(c.Item), signed(c.Value), c.Unit, db2(run), pct(math.Abs(c.Value)/abs))
+		p.f("| %d | %s | %s | %s | %s |\n", i+1, code(c.Item), contribution(c), fmtNum(c.Total, c.TotalUnit), pct(math.Abs(c.Value)/abs))
 	}
 	p.f("| | **total** | | **%s %s** | |\n\n", db2(engine.Number(a.Focus, a.FocusValue)), a.Unit)
 	p.budgetChart()
@@ -373,21 +377,6 @@ func (p *page) chainShares() {
 	}
 }
 
-func (p *page) sensitivity() {
-	a := p.in.Analysis
-	p.f("## Sensitivity\n\n")
-	if len(a.Sensitivity) == 0 {
-		p.f("%s depends on no input.\n\n", code(a.Focus.Name))
-		return
-	}
-	p.f("Change of %s when one input rises by 1 dB (decibel inputs) or 10 %% (linear inputs), every other input at its nominal value; largest first:\n\n", code(a.Focus.Name))
-	p.f("| input | step | change of %s |\n| --- | ---: | ---: |\n", text(a.Focus.Name))
-	for _, s := range a.Sensitivity {
-		p.f("| %s | +%s | %s |\n", p.inputName(s.Input), s.Per, signedIn(s.Change, a.ChangeUnit))
-	}
-	p.f("\n")
-}
-
 func (p *page) tolerance() {
 	a := p.in.Analysis
 	t := a.Tolerance
@@ -405,6 +394,7 @@ func (p *page) tolerance() {
 	p.f("| root-sum-square σ | %s |\n", fmtNum(t.RSSSigma, a.ChangeUnit))
 	if t.Trials == 0 {
 		p.f("\nMonte Carlo: being computed; the page is completed when the trials are done.\n\n")
+		p.worstCorners()
 		return
 	}
 	p.f("| Monte Carlo 1 %% point | %s |\n", fmtNum(t.P01, u))
@@ -429,6 +419,7 @@ func (p *page) tolerance() {
 		}
 		p.f("\n")
 	}
+	p.worstCorners()
 	p.histChart()
 }
 
