@@ -105,8 +105,12 @@ func (liveLayout) Transform(doc *ast.Document, reader text.Reader, _ parser.Cont
 
 // bindRun binds numbers to units in the run of text nodes that starts at t (the parser
 // splits text at spaces, so "12.50 dB" is two nodes), replacing the run by one string when
-// anything changed. t must be the first of its run; a later node is skipped.
+// anything changed. Only the first node of a run does anything: a later one is skipped,
+// whether it is still in place (the run is unchanged) or was taken out with its run.
 func bindRun(t *ast.Text, src []byte) {
+	if t.Parent() == nil {
+		return // taken out with the run it belonged to
+	}
 	if prev, ok := t.PreviousSibling().(*ast.Text); ok && !prev.SoftLineBreak() && !prev.HardLineBreak() {
 		return // part of the run that starts before it
 	}
