@@ -18,6 +18,13 @@ import (
 )
 
 func cmdWatch(e *Env, args []string) int {
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	defer stop()
+	return watchUntil(ctx, e, args, nil)
+}
+
+// watchUntil is watch until ctx ends; ready, when set, is told the served address.
+func watchUntil(ctx context.Context, e *Env, args []string, ready func(addr string)) int {
 	fs := newFlags(e, "watch")
 	out := fs.String("o", "", "write the page to `FILE` (required)")
 	serve := fs.String("serve", "", "also serve the page with live refresh on `ADDR` (e.g. :8080, loopback only unless a host is given)")
@@ -42,13 +49,13 @@ func cmdWatch(e *Env, args []string) int {
 		return usageErr(e, "watch", "%v", err)
 	}
 	lw := &liveSheet{e: e, sheet: sheet, out: *out, over: over, lib: lib, sel: *sel, ao: analysis.Options{Trials: *trials, Seed: *seed}}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
-	defer stop()
 	err = watch.Run(ctx, lw.render, watch.Options{
 		Out: *out, Status: e.Stderr, Errors: e.Stderr, Serve: *serve, Title: strings.TrimSuffix(filepath.Base(sheet), ".toml"),
 		Extra:   lw.extra,
 		Written: lw.written,
 		Refine:  lw.refine,
+		Summary: lw.summary,
+		Ready:   ready,
 	})
 	if err != nil {
 		fmt.Fprintf(e.Stderr, "rfledger watch: %v\n", err)
@@ -167,4 +174,48 @@ func (lw *liveSheet) written() {
 	if err := removeOldCharts(lw.out, charts); err != nil {
 		fmt.Fprintf(lw.e.Stderr, "rfledger watch: %v\n", err)
 	}
+}
+
+// summary is the served page's status bar for the latest render: the verdict over every
+// case shown and the focus value of the first.
+func (lw *liveSheet) summary() watch.Summary {
+	lw.mu.Lock()
+	ev := lw.last
+	lw.mu.Unlock()
+	if ev == nil {
+		return watch.Summary{}
+	}
+	sh := ev.sheet
+	// refine fills in the Monte Carlo exactly when the quick analyses have a tolerance.
+	s := watch.Summary{Pending: ev.analysis != nil && ev.analysis.Tolerance != nil}
+	results := []*engine.Result{ev.result}
+	if len(ev.cases) > 1 {
+		results = results[:0]
+		for _, c := range ev.cases {
+			results = append(results, c.Result)
+		}
+	}
+	if len(sh.Requires) > 0 {
+		held, checked := 0, 0
+		for _, r := range results {
+			for _, rq := range sh.Requires {
+				checked++
+				if pass, known := r.Pass(rq); pass && known {
+					held++
+				}
+			}
+		}
+		s.Verdict = "FAIL"
+		if held == checked {
+			s.Verdict = "PASS"
+		}
+		s.Detail = fmt.Sprintf("%d of %d requirements hold", held, checked)
+		if len(results) > 1 {
+			s.Detail = fmt.Sprintf("%d of %d requirement checks hold over %d cases", held, checked, len(results))
+		}
+	}
+	if f, ok := sh.Quantity(sh.Focus); ok {
+		s.FocusName, s.FocusValue = f.Name, ev.result.Display(f)
+	}
+	return s
 }

@@ -17,7 +17,13 @@
 //
 // When Options.Serve is set, Run also serves a read-only HTML view of the
 // Markdown output (rendered with goldmark and its GitHub-flavoured extensions;
-// raw HTML in the Markdown is not passed through). The page holds a
-// Server-Sent Events connection to /events and reloads itself when a new
-// render is available. A bare port or ":port" binds 127.0.0.1 only.
+// raw HTML in the Markdown is not passed through) under a status bar that stays
+// in view: the verdict and focus value from Options.Summary, the time of the last
+// recalculation, whether Options.Refine is still filling in the Monte Carlo, and
+// the error while the sheet does not evaluate. The page holds a Server-Sent
+// Events connection to /events and, on each new version, fetches /state (the bar
+// and the report as JSON) and puts them in place without a reload, keeping the
+// scroll position. Only the served HTML is reshaped for narrow windows (tables in
+// boxes of their own, long sweep tables folded, numbers bound to their units);
+// the output file stays as rendered. A bare port or ":port" binds 127.0.0.1 only.
 package watch

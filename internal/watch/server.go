@@ -5,6 +5,7 @@ import (
 	"context"
 	"crypto/rand"
 	"encoding/base64"
+	"encoding/json"
 	"fmt"
 	"html/template"
 	"io"
@@ -16,24 +17,37 @@ import (
 	"strings"
 	"sync"
 	"time"
-
-	"github.com/yuin/goldmark"
-	"github.com/yuin/goldmark/extension"
-	"github.com/yuin/goldmark/parser"
 )
 
 // state is the part of the watch loop the server reads: the last good output,
 // the last error and a version counter that changes on every recalculation.
 type state struct {
-	mu      sync.Mutex
-	boot    string // distinguishes runs so a page from an earlier run reloads
-	version uint64
-	md      []byte
-	errText string
-	extras  map[string]string
-	html    []byte // rendered md, cached for htmlVersion
-	htmlFor uint64
-	changed chan struct{} // closed and replaced on every version change
+	mu       sync.Mutex
+	boot     string // distinguishes runs so a page from an earlier run reloads
+	version  uint64
+	report   uint64 // changes when md does
+	md       []byte
+	errText  string
+	extras   map[string]string
+	sum      Summary   // the status bar's figures of md
+	goodAt   time.Time // when md was recalculated
+	errAt    time.Time // when errText was found
+	refining bool      // md lacks the Monte Carlo, which is being computed
+	html     []byte    // rendered md, cached for htmlFor
+	htmlFor  uint64
+	changed  chan struct{} // closed and replaced on every version change
+}
+
+// Summary is what the served page's status bar shows of a good render: its verdict and
+// the value of its focus.
+type Summary struct {
+	Verdict    string // "PASS", "FAIL", or "" when there is nothing to check
+	Detail     string // what the verdict counts, e.g. "2 of 2 requirements hold"
+	FocusName  string // the focus quantity's name; "" when the sheet has none
+	FocusValue string // its value in the page's display unit, e.g. "12.50 dB"
+	// Pending says the render left the Monte Carlo out for Options.Refine to fill in; the
+	// bar says so until it is done. Without a Summary, any render with a Refine is pending.
+	Pending bool
 }
 
 func newState() *state {
@@ -48,13 +62,41 @@ func (s *state) bumpLocked() {
 	s.changed = make(chan struct{})
 }
 
-func (s *state) succeed(md []byte, extras map[string]string) {
+// succeed records a good render; refining says its Monte Carlo is still being computed.
+func (s *state) succeed(md []byte, extras map[string]string, sum Summary, refining bool) {
 	s.mu.Lock()
 	defer s.mu.Unlock()
-	s.md = bytes.Clone(md)
+	s.setLocked(md, extras)
 	s.errText = ""
-	s.extras = extras
+	s.sum = sum
+	s.goodAt = time.Now()
+	s.refining = refining
 	s.bumpLocked()
+}
+
+// complete records the refinement of the last good render.
+func (s *state) complete(md []byte, extras map[string]string) {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	s.setLocked(md, extras)
+	s.refining = false
+	s.bumpLocked()
+}
+
+// settle records that the last render's refinement ended without changing it.
+func (s *state) settle() {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	if s.refining {
+		s.refining = false
+		s.bumpLocked()
+	}
+}
+
+func (s *state) setLocked(md []byte, extras map[string]string) {
+	s.md = bytes.Clone(md)
+	s.extras = extras
+	s.report++
 }
 
 // seed sets the report shown before any good render without changing the
@@ -62,14 +104,15 @@ func (s *state) succeed(md []byte, extras map[string]string) {
 func (s *state) seed(md []byte, extras map[string]string) {
 	s.mu.Lock()
 	defer s.mu.Unlock()
-	s.md = bytes.Clone(md)
-	s.extras = extras
+	s.setLocked(md, extras)
 }
 
 func (s *state) fail(msg string) {
 	s.mu.Lock()
 	defer s.mu.Unlock()
 	s.errText = msg
+	s.errAt = time.Now()
+	s.refining = false // a newer save overtook it: its result is dropped
 	s.bumpLocked()
 }
 
@@ -84,28 +127,62 @@ func (s *state) lastErr() string {
 func (s *state) tag() (string, <-chan struct{}) {
 	s.mu.Lock()
 	defer s.mu.Unlock()
-	return s.boot + "-" + strconv.FormatUint(s.version, 10), s.changed
+	return s.tagLocked(), s.changed
+}
+
+func (s *state) tagLocked() string { return s.boot + "-" + strconv.FormatUint(s.version, 10) }
+
+// view is what the page shows at one moment.
+type view struct {
+	Tag      string
+	Report   string // changes when Body does
+	Body     template.HTML
+	Ready    bool // Body holds a report
+	Error    string
+	ErrorAt  string
+	At       string
+	Refining bool
+	Summary
+}
+
+// VerdictClass is the status bar's class for the verdict.
+func (v view) VerdictClass() string {
+	switch v.Verdict {
+	case "PASS":
+		return "pass"
+	case "FAIL":
+		return "fail"
+	}
+	return "none"
 }
 
 // snapshot returns what the page shows: the rendered HTML of the last good
-// output, the current error (if any) and the version tag.
-func (s *state) snapshot() (body []byte, errText, tag string, ok bool) {
+// output, the current error (if any), the status bar's figures and the version tag.
+func (s *state) snapshot() view {
 	s.mu.Lock()
 	defer s.mu.Unlock()
-	tag = s.boot + "-" + strconv.FormatUint(s.version, 10)
-	if s.md == nil {
-		return nil, s.errText, tag, false
+	v := view{Tag: s.tagLocked(), Report: strconv.FormatUint(s.report, 10), Error: s.errText, Refining: s.refining, Summary: s.sum}
+	if !s.goodAt.IsZero() {
+		v.At = s.goodAt.Format("15:04:05")
 	}
-	if s.html == nil || s.htmlFor != s.version {
+	if !s.errAt.IsZero() {
+		v.ErrorAt = s.errAt.Format("15:04:05")
+	}
+	if s.md == nil {
+		return v
+	}
+	if s.html == nil || s.htmlFor != s.report {
 		var buf bytes.Buffer
 		if err := markdown.Convert(s.md, &buf); err != nil {
 			buf.Reset()
 			fmt.Fprintf(&buf, "<pre>%s</pre>", template.HTMLEscapeString(string(s.md)))
 		}
 		s.html = buf.Bytes()
-		s.htmlFor = s.version
+		s.htmlFor = s.report
 	}
-	return s.html, s.errText, tag, true
+	v.Body = template.HTML(s.html) // produced by goldmark without raw HTML
+	v.Ready = true
+	return v
 }
 
 func (s *state) extra(name string) (string, bool) {
@@ -114,20 +191,6 @@ func (s *state) extra(name string) (string, bool) {
 	p, ok := s.extras[name]
 	return p, ok
 }
-
-// markdown converts the report with the GitHub-flavoured extensions. Raw HTML
-// is not passed through (no html.WithUnsafe) and dangerous link schemes are
-// dropped by goldmark. Table alignment is written as align attributes rather
-// than style attributes, which the page's Content-Security-Policy would block.
-var markdown = goldmark.New(
-	goldmark.WithExtensions(
-		extension.Linkify,
-		extension.NewTable(extension.WithTableCellAlignMethod(extension.TableCellAlignAttribute)),
-		extension.Strikethrough,
-		extension.TaskList,
-	),
-	goldmark.WithParserOptions(parser.WithAutoHeadingID()),
-)
 
 // server wraps http.Server with a stop that ends long-lived event streams.
 type server struct {
@@ -219,28 +282,22 @@ func (h *handler) ServeHTTP(w http.ResponseWriter, r *http.Request) {
 		h.page(w, r)
 	case "/events":
 		h.events(w, r)
+	case "/state":
+		h.state(w, r)
 	default:
 		h.file(w, r)
 	}
 }
 
 func (h *handler) page(w http.ResponseWriter, r *http.Request) {
-	body, errText, tag, ok := h.st.snapshot()
+	v := h.st.snapshot()
 	nonce := newNonce()
 	hdr := w.Header()
 	hdr.Set("Content-Security-Policy", "default-src 'none'; img-src 'self' data:; style-src 'nonce-"+nonce+"'; script-src 'nonce-"+nonce+"'; connect-src 'self'; base-uri 'none'; form-action 'none'; frame-ancestors 'none'")
 	hdr.Set("Content-Type", "text/html; charset=utf-8")
 	hdr.Set("Cache-Control", "no-store")
 	var buf bytes.Buffer
-	err := pageTmpl.Execute(&buf, pageData{
-		Title: h.title,
-		Nonce: nonce,
-		Tag:   tag,
-		Error: errText,
-		Ready: ok,
-		Body:  template.HTML(body), // produced by goldmark without raw HTML
-	})
-	if err != nil {
+	if err := pageTmpl.Execute(&buf, pageData{Title: h.title, Nonce: nonce, view: v}); err != nil {
 		http.Error(w, "page template failed", http.StatusInternalServerError)
 		return
 	}
@@ -249,6 +306,43 @@ func (h *handler) page(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	w.Write(buf.Bytes())
+}
+
+// liveState is what /state answers: the page's changing parts, for the page's script to
+// put in place without a reload.
+type liveState struct {
+	Tag    string `json:"tag"`    // the version, as /events sends it
+	Report string `json:"report"` // changes when HTML does
+	HTML   string `json:"html"`   // the report (goldmark's output, no raw HTML)
+	Bar    string `json:"bar"`    // the status bar's contents
+	Broken bool   `json:"broken"` // the sheet does not evaluate now
+}
+
+// state answers the page's changing parts as JSON.
+func (h *handler) state(w http.ResponseWriter, r *http.Request) {
+	v := h.st.snapshot()
+	var bar bytes.Buffer
+	if err := pageTmpl.ExecuteTemplate(&bar, "bar", v); err != nil {
+		http.Error(w, "page template failed", http.StatusInternalServerError)
+		return
+	}
+	body := v.Body
+	if !v.Ready {
+		body = noReport
+	}
+	b, err := json.Marshal(liveState{Tag: v.Tag, Report: v.Report, HTML: string(body), Bar: bar.String(), Broken: v.Error != ""})
+	if err != nil {
+		http.Error(w, "state failed", http.StatusInternalServerError)
+		return
+	}
+	hdr := w.Header()
+	hdr.Set("Content-Type", "application/json")
+	hdr.Set("Cache-Control", "no-store")
+	hdr.Set("Content-Length", strconv.Itoa(len(b)))
+	if r.Method == http.MethodHead {
+		return
+	}
+	w.Write(b)
 }
 
 // events streams the version tag as Server-Sent Events: once on connect and
@@ -341,49 +435,118 @@ func newNonce() string {
 type pageData struct {
 	Title string
 	Nonce string
-	Tag   string
-	Error string
-	Ready bool
-	Body  template.HTML
+	view
 }
 
+// noReport stands in for the report before any render succeeded.
+const noReport template.HTML = "<p>No report rendered yet.</p>"
+
+// pageTmpl is the served page: a status bar that stays at the top however far the page is
+// scrolled (verdict, focus value, time of the last recalculation, whether the Monte Carlo
+// is still running, and the error while the sheet does not evaluate), then the report.
+// Its script follows /events and, on each new version, fetches /state and puts the bar
+// and the report in place, keeping the scroll position and which tables are unfolded.
+// Colours follow the system's light or dark setting, and so do the charts: their
+// backgrounds are transparent and their text takes a light colour in dark mode.
 var pageTmpl = template.Must(template.New("page").Parse(`<!DOCTYPE html>
 <html lang="en">
 <head>
 <meta charset="utf-8">
 <meta name="viewport" content="width=device-width, initial-scale=1">
+<meta name="color-scheme" content="light dark">
+<link rel="icon" href="data:,">
 <title>{{.Title}}</title>
 <style nonce="{{.Nonce}}">
-body{font:15px/1.5 system-ui,sans-serif;max-width:60rem;margin:2rem auto;padding:0 1rem;color:#1b1b1b;background:#fff}
-table{border-collapse:collapse;margin:1rem 0}
-th,td{border:1px solid #c8c8c8;padding:.25rem .6rem}
-th{background:#f1f1f1}
+:root{color-scheme:light dark;--fg:#1b1b1b;--bg:#fff;--muted:#5f6368;--line:#c8c8c8;--head:#f1f1f1;--code:#f3f3f3;--bar:#fafafa;--pass:#1b6e2d;--passbg:#e3f3e6;--fail:#a3231a;--failbg:#fbe4e2;--link:#0b57d0}
+@media (prefers-color-scheme:dark){:root{--fg:#e3e3e3;--bg:#151719;--muted:#a0a6ad;--line:#3c4046;--head:#222529;--code:#23262a;--bar:#1d2023;--pass:#8fdc9b;--passbg:#183d20;--fail:#ffb4ab;--failbg:#4a1a16;--link:#a8c7fa}}
+*{box-sizing:border-box}
+html{-webkit-text-size-adjust:100%;scroll-padding-top:4.5rem}
+body{font:15px/1.5 system-ui,sans-serif;margin:0;color:var(--fg);background:var(--bg)}
+a{color:var(--link)}
+main{max-width:60rem;margin:0 auto;padding:.5rem 1rem 3rem}
+main p,main li,main h1,main h2,main h3{overflow-wrap:break-word}
+.tbl{overflow-x:auto;margin:1rem 0;max-width:100%}
+table{border-collapse:collapse}
+th,td{border:1px solid var(--line);padding:.25rem .6rem;vertical-align:top}
+th{background:var(--head)}
 td{font-variant-numeric:tabular-nums}
-code,pre{font-family:ui-monospace,monospace}
-pre{background:#f6f6f6;padding:.6rem;overflow:auto}
-img{max-width:100%}
-.err{border:1px solid #c0392b;background:#fdecea;padding:.6rem 1rem;margin-bottom:1.5rem}
-.err pre{background:none;padding:0;margin:.4rem 0 0;white-space:pre-wrap}
-.live{position:fixed;top:.4rem;right:.6rem;font-size:12px;color:#777}
-.live.off{color:#c0392b}
+td[align=right],th[align=right]{white-space:nowrap}
+code,pre{font-family:ui-monospace,monospace;font-size:.92em}
+code{background:var(--code);border-radius:3px;padding:0 .2em}
+pre{background:var(--code);padding:.6rem;overflow:auto}
+img{max-width:100%;height:auto}
+@media (max-width:40rem){.tbl table{width:max-content}th,td{max-width:15rem}}
+details.fold{margin:1rem 0}
+details.fold>summary{cursor:pointer;color:var(--muted)}
+.bar{position:sticky;top:0;z-index:1;background:var(--bar);border-bottom:1px solid var(--line);padding:.35rem 1rem;font-size:14px}
+.bar .row{max-width:58rem;margin:0 auto;display:flex;align-items:baseline;gap:1rem}
+.bar .info{flex:1 1 auto;min-width:0;display:flex;flex-wrap:wrap;align-items:baseline;gap:.2rem 1rem}
+.bar.broken{border-bottom:3px solid var(--fail)}
+.verdict{font-weight:700;padding:0 .45rem;border-radius:3px}
+.verdict.pass{color:var(--pass);background:var(--passbg)}
+.verdict.fail{color:var(--fail);background:var(--failbg)}
+.verdict.none{color:var(--muted)}
+.nw{white-space:nowrap}
+.when,.mc,.live{color:var(--muted)}
+.live{flex:none}
+.live.off{color:var(--fail)}
+.err{flex-basis:100%;color:var(--fg);background:var(--failbg);border:1px solid var(--fail);padding:.4rem .7rem;max-height:35vh;overflow:auto}
+.err pre{background:none;padding:0;margin:.3rem 0 0;white-space:pre-wrap;overflow-wrap:anywhere}
 </style>
 </head>
-<body data-version="{{.Tag}}">
-<div class="live" id="live">live</div>
-{{if .Error}}<div class="err"><strong>The sheet does not evaluate{{if .Ready}}; showing the last good report{{end}}.</strong><pre>{{.Error}}</pre></div>
-{{end}}{{if .Ready}}<main>
-{{.Body}}</main>{{else}}<p>No report rendered yet.</p>{{end}}
+<body data-version="{{.Tag}}" data-report="{{.Report}}">
+<header class="bar{{if .Error}} broken{{end}}" id="bar"><div class="row"><div class="info" id="info">{{template "bar" .}}</div><span class="live" id="live">live</span></div></header>
+<main id="report">
+{{if .Ready}}{{.Body}}{{else}}` + string(noReport) + `{{end}}</main>
 <script nonce="{{.Nonce}}">
 (function(){
-  var v = document.body.getAttribute("data-version");
-  var live = document.getElementById("live");
-  if (!window.EventSource) { live.textContent = ""; return; }
+  var body = document.body, v = body.getAttribute("data-version"), report = body.getAttribute("data-report");
+  var boot = v.split("-")[0];
+  var bar = document.getElementById("bar"), info = document.getElementById("info");
+  var main = document.getElementById("report"), live = document.getElementById("live");
+  if (!window.EventSource || !window.fetch || !window.JSON) { live.textContent = ""; return; }
+  function apply(s) {
+    v = s.tag;
+    body.setAttribute("data-version", v);
+    bar.className = s.broken ? "bar broken" : "bar";
+    info.innerHTML = s.bar;
+    if (s.report !== report) {
+      report = s.report;
+      body.setAttribute("data-report", report);
+      var open = [], ds = main.querySelectorAll("details");
+      for (var i = 0; i < ds.length; i++) { if (ds[i].open) { open.push(i); } }
+      var x = window.scrollX, y = window.scrollY;
+      main.innerHTML = s.html;
+      ds = main.querySelectorAll("details");
+      for (var j = 0; j < open.length; j++) { if (ds[open[j]]) { ds[open[j]].open = true; } }
+      window.scrollTo(x, y);
+    }
+  }
+  var busy = false, again = false;
+  function refresh() {
+    if (busy) { again = true; return; }
+    busy = true;
+    fetch("/state", {cache: "no-store", credentials: "same-origin"})
+      .then(function(r){ if (!r.ok) { throw new Error("state " + r.status); } return r.json(); })
+      .then(apply)
+      .catch(function(){ live.textContent = "update failed"; live.className = "live off"; })
+      .then(function(){ busy = false; if (again) { again = false; refresh(); } });
+  }
   var es = new EventSource("/events");
   es.onopen = function(){ live.textContent = "live"; live.className = "live"; };
   es.onerror = function(){ live.textContent = "disconnected"; live.className = "live off"; };
-  es.onmessage = function(e){ if (e.data && e.data !== v) { es.close(); location.reload(); } };
+  es.onmessage = function(e){
+    if (!e.data || e.data === v) { return; }
+    if (e.data.split("-")[0] !== boot) { es.close(); location.reload(); return; }
+    refresh();
+  };
 })();
 </script>
 </body>
 </html>
-`))
+{{define "bar"}}{{if .Verdict}}<span class="verdict {{.VerdictClass}}" id="verdict" title="{{.Detail}}">{{.Verdict}}</span>{{else}}<span class="verdict none" id="verdict">{{if .Ready}}no requirements{{else}}no report yet{{end}}</span>{{end}}
+{{- if .FocusName}} <span class="focus" id="focus"><code>{{.FocusName}}</code> = <b class="nw" id="focus-value">{{.FocusValue}}</b></span>{{end}}
+{{- if .At}} <span class="when" id="when">{{if .Error}}last good at {{.At}}{{else}}recalculated {{.At}}{{end}}</span>{{end}}
+{{- if .Refining}} <span class="mc" id="mc">Monte Carlo running…</span>{{end}}
+{{- if .Error}} <div class="err" id="error" role="alert"><strong>The sheet does not evaluate{{if .ErrorAt}} (since {{.ErrorAt}}){{end}}{{if .Ready}}; showing the last good report{{end}}.</strong><pre>{{.Error}}</pre></div>{{end}}
+{{- end}}`))

@@ -37,6 +37,9 @@ type Options struct {
 	// at once and is completed when they are done. Its output replaces the render's unless a
 	// newer recalculation has started meanwhile; ok false leaves the render's output.
 	Refine func() (out []byte, ok bool)
+	// Summary, when set, is called after each good render (on Run's goroutine, before Refine
+	// starts) for the verdict and focus value the served page's status bar shows.
+	Summary func() Summary
 }
 
 // DefaultDebounce is the debounce window used when Options.Debounce is zero or negative.
@@ -77,6 +80,7 @@ func Run(ctx context.Context, r Render, o Options) error {
 		extra:    o.Extra,
 		written:  o.Written,
 		refine:   o.Refine,
+		summary:  o.Summary,
 		refined:  make(chan refinement, 1),
 		files:    map[string]bool{},
 		st:       newState(),
@@ -150,6 +154,7 @@ type loop struct {
 	extra    func(dir string) []string
 	written  func()
 	refine   func() ([]byte, bool)
+	summary  func() Summary
 	refined  chan refinement // finished refinements, from their goroutines
 	gen      int             // recalculations started so far
 	done     <-chan struct{} // closed when Run returns
@@ -283,7 +288,11 @@ func (l *loop) recalc() bool {
 		l.written()
 	}
 	fmt.Fprintf(l.status, "%s rendered %s in %s\n", stamp(), name, fmtMillis(elapsed))
-	l.st.succeed(data, l.extras())
+	sum := Summary{Pending: true}
+	if l.summary != nil {
+		sum = l.summary()
+	}
+	l.st.succeed(data, l.extras(), sum, l.refine != nil && sum.Pending)
 	l.stale = l.changedSince(files, start)
 	if l.refine != nil {
 		gen, refine, out, done := l.gen, l.refine, l.refined, l.done
@@ -308,7 +317,11 @@ type refinement struct {
 
 // finish writes a refined output, unless a newer recalculation has started since its render.
 func (l *loop) finish(rf refinement) {
-	if !rf.ok || rf.gen != l.gen {
+	if rf.gen != l.gen {
+		return
+	}
+	if !rf.ok {
+		l.st.settle()
 		return
 	}
 	name := filepath.Base(l.out)
@@ -320,7 +333,7 @@ func (l *loop) finish(rf refinement) {
 		l.written()
 	}
 	fmt.Fprintf(l.status, "%s completed %s in %s\n", stamp(), name, fmtMillis(time.Since(rf.start)))
-	l.st.succeed(rf.data, l.extras())
+	l.st.complete(rf.data, l.extras())
 }
 
 // callRefine calls Refine, turning a panic into no refinement.

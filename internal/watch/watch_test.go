@@ -461,25 +461,15 @@ func startServed(t *testing.T, content string) *served {
 	outDir := filepath.Dir(f.out)
 	writeFile(t, filepath.Join(outDir, "sweep.svg"), `<svg xmlns="http://www.w3.org/2000/svg" width="10" height="10"/>`)
 	writeFile(t, filepath.Join(outDir, "secret.txt"), "not listed")
-	ready := make(chan string, 2)
 	o := f.opts()
-	o.Serve = ":0"
 	o.Title = "Field link <budget>"
-	o.Ready = func(addr string) { ready <- addr }
 	o.Extra = func(dir string) []string {
 		if dir != outDir {
 			t.Errorf("Extra got dir %q, want %q", dir, outDir)
 		}
 		return []string{"sweep.svg"}
 	}
-	s := &served{fixture: f, client: &http.Client{Timeout: 3 * time.Second, Transport: &http.Transport{DisableKeepAlives: true}}}
-	s.stop = start(t, f.sh.render, o)
-	select {
-	case s.addr = <-ready:
-	case <-time.After(3 * time.Second):
-		t.Fatal("Ready was not called")
-	}
-	return s
+	return serve(t, f, o)
 }
 
 func (s *served) get(t *testing.T, method, path string) (*http.Response, string) {
@@ -536,7 +526,7 @@ func TestServerPage(t *testing.T) {
 			t.Errorf("page lacks %q", want)
 		}
 	}
-	if !strings.Contains(body, `<td align="right">43.0 dBm</td>`) || strings.Contains(body, "style=") {
+	if !strings.Contains(body, "<td align=\"right\">43.0\u00a0dBm</td>") || strings.Contains(body, "style=") {
 		t.Errorf("table alignment should use align attributes, not style attributes (blocked by the CSP)")
 	}
 	if strings.Contains(body, "<script>alert(1)") || strings.Contains(body, "javascript:alert") {
@@ -696,13 +686,19 @@ func TestServerShowsPreviousReport(t *testing.T) {
 // rawHost sends GET / with the Host header given.
 func rawHost(t *testing.T, addr, host string) int {
 	t.Helper()
+	return rawHostPath(t, addr, host, "/")
+}
+
+// rawHostPath sends GET path with the Host header given.
+func rawHostPath(t *testing.T, addr, host, path string) int {
+	t.Helper()
 	c, err := net.DialTimeout("tcp", addr, 3*time.Second)
 	if err != nil {
 		t.Fatal(err)
 	}
 	defer c.Close()
 	c.SetDeadline(time.Now().Add(3 * time.Second))
-	fmt.Fprintf(c, "GET / HTTP/1.1\r\nHost: %s\r\nConnection: close\r\n\r\n", host)
+	fmt.Fprintf(c, "GET %s HTTP/1.1\r\nHost: %s\r\nConnection: close\r\n\r\n", path, host)
 	resp, err := http.ReadResponse(bufio.NewReader(c), nil)
 	if err != nil {
 		t.Fatal(err)
@@ -841,6 +837,7 @@ func TestRunFollowsRecreatedFolder(t *testing.T) {
 // is never older than the sheet.
 func TestRunRefinesInTheBackground(t *testing.T) {
 	f := newFixture(t, "alpha")
+	f.age(t) // a second start-up render would make the slow refinement the first one's
 	release := make(chan struct{})
 	var calls atomic.Int64
 	o := f.opts()
