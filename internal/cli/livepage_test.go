@@ -363,6 +363,14 @@ func TestLiveSummary(t *testing.T) {
 			if !s.Pending {
 				t.Error("the demos have tolerances: the quick render leaves the Monte Carlo pending")
 			}
+			// Once the Monte Carlo is in, the bar says "AT RISK" exactly where the page does.
+			if _, ok := lw.refine(); !ok {
+				t.Fatal("the refinement wrote no page")
+			}
+			s = lw.summary()
+			if risky := strings.Contains(verdict, "AT RISK"); risky != (s.Verdict == "AT RISK") {
+				t.Errorf("page at risk: %v; the bar after the Monte Carlo says %q (%s)", risky, s.Verdict, s.Detail)
+			}
 		})
 	}
 }

@@ -83,12 +83,13 @@ type liveSheet struct {
 	mu     sync.Mutex
 	charts []report.File // the charts of the page on disk
 	last   *evaluated    // the latest good evaluation, which refine completes
+	full   *evaluated    // last completed with the Monte Carlo (nil until refine has done so)
 }
 
 // render loads and evaluates the sheet and writes the quick page's charts.
 func (lw *liveSheet) render() ([]byte, []string, error) {
 	lw.mu.Lock()
-	lw.last = nil
+	lw.last, lw.full = nil, nil
 	lw.mu.Unlock()
 	sh, diags := engine.Load(lw.sheet, engine.Options{Library: lw.lib, Previous: lw.prevSh})
 	r, ediags := sh.EvalFrom(lw.prevR, lw.over...)
@@ -131,7 +132,15 @@ func (lw *liveSheet) refine() ([]byte, bool) {
 	a, ds := analysis.Analyze(ev.result, lw.ao)
 	full := *ev
 	full.analysis, full.diags = a, append(ev.diags, ds...).Sorted()
-	return lw.pageOf(ev, &full)
+	page, ok := lw.pageOf(ev, &full)
+	if ok {
+		lw.mu.Lock()
+		if lw.last == ev {
+			lw.full = &full
+		}
+		lw.mu.Unlock()
+	}
+	return page, ok
 }
 
 // page renders ev and writes its charts.
@@ -180,7 +189,7 @@ func (lw *liveSheet) written() {
 // case shown and the focus value of the first.
 func (lw *liveSheet) summary() watch.Summary {
 	lw.mu.Lock()
-	ev := lw.last
+	ev, full := lw.last, lw.full
 	lw.mu.Unlock()
 	if ev == nil {
 		return watch.Summary{}
@@ -212,6 +221,13 @@ func (lw *liveSheet) summary() watch.Summary {
 		s.Detail = fmt.Sprintf("%d of %d requirements hold", held, checked)
 		if len(results) > 1 {
 			s.Detail = fmt.Sprintf("%d of %d requirement checks hold over %d cases", held, checked, len(results))
+		}
+		// The Monte Carlo runs for the first case: passing there at nominal is not enough
+		// when the requirements hold together in too few of its trials.
+		if full != nil && s.Verdict == "PASS" && analysis.AtRisk(full.result, full.analysis) {
+			t := full.analysis.Tolerance
+			s.Verdict = "AT RISK"
+			s.Detail = fmt.Sprintf("%s at nominal, but they hold together in only %.1f %% ± %.1f %% of %d Monte Carlo trials", s.Detail, 100*t.PPass, 100*t.PPassSE, t.Trials)
 		}
 	}
 	if f, ok := sh.Quantity(sh.Focus); ok {

@@ -41,7 +41,7 @@ type state struct {
 // Summary is what the served page's status bar shows of a good render: its verdict and
 // the value of its focus.
 type Summary struct {
-	Verdict    string // "PASS", "FAIL", or "" when there is nothing to check
+	Verdict    string // "PASS", "FAIL", "AT RISK" (passes at nominal, too few Monte Carlo trials hold), or "" when there is nothing to check
 	Detail     string // what the verdict counts, e.g. "2 of 2 requirements hold"
 	FocusName  string // the focus quantity's name; "" when the sheet has none
 	FocusValue string // its value in the page's display unit, e.g. "12.50 dB"
@@ -152,6 +152,8 @@ func (v view) VerdictClass() string {
 		return "pass"
 	case "FAIL":
 		return "fail"
+	case "AT RISK":
+		return "risk"
 	}
 	return "none"
 }
@@ -457,8 +459,8 @@ var pageTmpl = template.Must(template.New("page").Parse(`<!DOCTYPE html>
 <link rel="icon" href="data:,">
 <title>{{.Title}}</title>
 <style nonce="{{.Nonce}}">
-:root{color-scheme:light dark;--fg:#1b1b1b;--bg:#fff;--muted:#5f6368;--line:#c8c8c8;--head:#f1f1f1;--code:#f3f3f3;--bar:#fafafa;--pass:#1b6e2d;--passbg:#e3f3e6;--fail:#a3231a;--failbg:#fbe4e2;--link:#0b57d0}
-@media (prefers-color-scheme:dark){:root{--fg:#e3e3e3;--bg:#151719;--muted:#a0a6ad;--line:#3c4046;--head:#222529;--code:#23262a;--bar:#1d2023;--pass:#8fdc9b;--passbg:#183d20;--fail:#ffb4ab;--failbg:#4a1a16;--link:#a8c7fa}}
+:root{color-scheme:light dark;--fg:#1b1b1b;--bg:#fff;--muted:#5f6368;--line:#c8c8c8;--head:#f1f1f1;--code:#f3f3f3;--bar:#fafafa;--pass:#1b6e2d;--passbg:#e3f3e6;--fail:#a3231a;--failbg:#fbe4e2;--risk:#7a4b00;--riskbg:#fdf0d5;--link:#0b57d0}
+@media (prefers-color-scheme:dark){:root{--fg:#e3e3e3;--bg:#151719;--muted:#a0a6ad;--line:#3c4046;--head:#222529;--code:#23262a;--bar:#1d2023;--pass:#8fdc9b;--passbg:#183d20;--fail:#ffb4ab;--failbg:#4a1a16;--risk:#ffd38a;--riskbg:#3f2e0c;--link:#a8c7fa}}
 *{box-sizing:border-box}
 html{-webkit-text-size-adjust:100%;scroll-padding-top:4.5rem}
 body{font:15px/1.5 system-ui,sans-serif;margin:0;color:var(--fg);background:var(--bg)}
@@ -485,6 +487,7 @@ details.fold>summary{cursor:pointer;color:var(--muted)}
 .verdict{font-weight:700;padding:0 .45rem;border-radius:3px}
 .verdict.pass{color:var(--pass);background:var(--passbg)}
 .verdict.fail{color:var(--fail);background:var(--failbg)}
+.verdict.risk{color:var(--risk);background:var(--riskbg)}
 .verdict.none{color:var(--muted)}
 .nw{white-space:nowrap}
 .when,.mc,.live{color:var(--muted)}
