@@ -193,6 +193,10 @@ type focusAt struct {
 	fu    *units.Unit // the focus's report unit
 }
 
+// perturbOnly makes the analyses recompute cones even where the focus has an affine form
+// (the tests compare the two ways).
+var perturbOnly bool
+
 func newFocusAt(r *engine.Result, focus *engine.Quantity) *focusAt {
 	return &focusAt{nom: r, sc: r.Scenario(), focus: focus, fu: reportUnit(focus)}
 }
@@ -212,6 +216,38 @@ func (fa *focusAt) at(ins []*engine.Quantity, vals []units.Q, cone *engine.Cone)
 	return x, ok && !math.IsNaN(x)
 }
 
+// linearThreshold is the number of inputs from which an analysis takes each input's effect
+// on the focus from the focus's affine form, when it has one, rather than recomputing the
+// input's cone: one backward pass over the formulas instead of inputs × cone. Below it the
+// cones are small and recomputing keeps the figures exactly as evaluating gives them (the
+// two agree to within rounding; see TestLinearMatchesPerturbation).
+const linearThreshold = 64
+
+// linear returns the focus's affine form in the inputs, or nil when there are few inputs or
+// the focus is not affine in them.
+func (fa *focusAt) linear(ins []*engine.Quantity) *engine.Linear {
+	if len(ins) < linearThreshold || perturbOnly {
+		return nil
+	}
+	l, ok := fa.nom.Linear(ins, []*engine.Quantity{fa.focus}, false)
+	if !ok {
+		return nil
+	}
+	return l
+}
+
+// linearAt is at for input i of l alone set to x.
+func (fa *focusAt) linearAt(l *engine.Linear, i int, x float64) (float64, bool) {
+	y, ok := l.At(0, i, x)
+	if !ok {
+		return math.NaN(), false
+	}
+	v, _ := fa.nom.Value(fa.focus)
+	v.V = y
+	f := numberIn(fa.fu, v)
+	return f, !math.IsNaN(f)
+}
+
 // step returns an input raised by 1 dB (decibel inputs) or by 10 % (linear inputs).
 func step(q units.Q) (units.Q, string) {
 	if q.K == units.Level || q.K == units.Rate {
@@ -227,10 +263,18 @@ func (fa *focusAt) sensitivity() []Sensitivity {
 	fv, _ := fa.nom.Value(fa.focus)
 	f0 := numberIn(fa.fu, fv)
 	var out []Sensitivity
-	for _, q := range s.Inputs(fa.focus) {
+	ins := s.Inputs(fa.focus)
+	lin := fa.linear(ins)
+	for i, q := range ins {
 		nv, _ := fa.nom.Value(q)
 		up, per := step(nv)
-		v, ok := fa.at([]*engine.Quantity{q}, []units.Q{up}, s.Cone(q))
+		var v float64
+		var ok bool
+		if lin != nil {
+			v, ok = fa.linearAt(lin, i, up.V)
+		} else {
+			v, ok = fa.at([]*engine.Quantity{q}, []units.Q{up}, s.Cone(q))
+		}
 		change := v - f0
 		if !ok {
 			change = math.NaN()
@@ -280,9 +324,19 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 	var rss float64
 	for i, in := range ins {
 		qs[i] = in.q
-		cone := s.Cone(in.q)
-		fl, okl := fa.at(qs[i:i+1], []units.Q{in.lo}, cone)
-		fh, okh := fa.at(qs[i:i+1], []units.Q{in.hi}, cone)
+	}
+	lin := fa.linear(qs)
+	for i, in := range ins {
+		var fl, fh float64
+		var okl, okh bool
+		if lin != nil {
+			fl, okl = fa.linearAt(lin, i, in.lo.V)
+			fh, okh = fa.linearAt(lin, i, in.hi.V)
+		} else {
+			cone := s.Cone(in.q)
+			fl, okl = fa.at(qs[i:i+1], []units.Q{in.lo}, cone)
+			fh, okh = fa.at(qs[i:i+1], []units.Q{in.hi}, cone)
+		}
 		lowCorner[i], highCorner[i] = in.nom, in.nom
 		if okl && okh {
 			if fl < fh {
@@ -317,20 +371,40 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 	for w := range workers {
 		workers[w] = nom.Scenario()
 	}
+	// When the focus and what the requirements read are affine in the toleranced inputs, a
+	// trial computes them from their affine form (a multiply-add per input) instead of
+	// recomputing the whole cone.
+	var mcLin *engine.Linear
+	if len(ins) >= linearThreshold && !perturbOnly {
+		if l, ok := nom.Linear(qs, []*engine.Quantity{focus}, true); ok {
+			mcLin = l
+		}
+	}
 	var progress func(int)
 	if opt.Progress != nil {
 		progress = func(done int) { opt.Progress("Monte Carlo", done, n) }
 	}
+	samplers := make([]numeric.Sampler, len(ins))
+	for i, in := range ins {
+		samplers[i] = numeric.NewSampler(in.dist, in.nom.V, in.lo.V, in.hi.V)
+	}
 	numeric.Trials(n, opt.Workers, opt.Seed, func(w, trial int, r *rand.Rand) {
 		sc := workers[w]
 		row := draws[trial*len(ins) : (trial+1)*len(ins)]
-		for i, in := range ins {
-			v := in.nom
-			v.V = numeric.Draw(r, in.dist, in.nom.V, in.lo.V, in.hi.V)
-			row[i] = v.V
-			sc.Set(in.q, v)
+		if mcLin != nil {
+			for i := range samplers {
+				row[i] = samplers[i].Draw(r)
+			}
+			sc.RunLinear(mcLin, row)
+		} else {
+			for i, in := range ins {
+				v := in.nom
+				v.V = samplers[i].Draw(r)
+				row[i] = v.V
+				sc.Set(in.q, v)
+			}
+			sc.Run(union)
 		}
-		sc.Run(union)
 		focusVals[trial] = math.NaN()
 		v, ok := sc.Value(focus)
 		if ok {
