@@ -12,6 +12,7 @@ import (
 	"math/rand/v2"
 	"runtime"
 	"sort"
+	"sync"
 
 	"github.com/rfledger/rfledger/engine"
 	"github.com/rfledger/rfledger/engine/numeric"
@@ -433,58 +434,39 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 		t.P50 = numeric.Quantile(samples, 0.50)
 		t.P99 = numeric.Quantile(samples, 0.99)
 	}
-	t.Shares = varianceShares(focusVals, draws, len(ins), func(i int) string { return ins[i].q.Name })
+	t.Shares = varianceShares(focusVals, draws, len(ins), opt.Workers, func(i int) string { return ins[i].q.Name })
 	return t
 }
 
 // varianceShares estimates each input's share of the focus variance as its squared
 // correlation with the focus, normalised to sum to 1 (exact for a focus linear in
-// independent inputs).
-func varianceShares(f, draws []float64, k int, name func(int) string) []Share {
+// independent inputs). The inputs' sums are split among workers by blocks of inputs; each
+// input's sums run over the trials in order whatever the split, so the shares do not
+// depend on the number of workers.
+func varianceShares(f, draws []float64, k, workers int, name func(int) string) []Share {
 	n := len(f)
 	// Two passes (means, then centred sums): the one-pass formula cancels catastrophically
 	// when the focus barely moves.
-	var my float64
+	var my, vy float64
 	var m int
-	mx := make([]float64, k)
 	for t := range n {
-		if math.IsNaN(f[t]) {
-			continue
+		if !math.IsNaN(f[t]) {
+			my += f[t]
+			m++
 		}
-		my += f[t]
-		for i := range k {
-			mx[i] += draws[t*k+i]
-		}
-		m++
 	}
 	corr2 := make([]float64, k)
 	if m >= 2 {
 		my /= float64(m)
-		for i := range k {
-			mx[i] /= float64(m)
-		}
-		var vy float64
-		vx := make([]float64, k)
-		cov := make([]float64, k)
 		for t := range n {
-			if math.IsNaN(f[t]) {
-				continue
-			}
-			dy := f[t] - my
-			vy += dy * dy
-			for i := range k {
-				dx := draws[t*k+i] - mx[i]
-				vx[i] += dx * dx
-				cov[i] += dx * dy
+			if !math.IsNaN(f[t]) {
+				dy := f[t] - my
+				vy += dy * dy
 			}
 		}
 		// A focus that moves by less than rounding noise has no variance to share out.
 		if vy > float64(m)*1e-24*max(1, my*my) {
-			for i := range k {
-				if vx[i] > 0 {
-					corr2[i] = cov[i] * cov[i] / (vx[i] * vy)
-				}
-			}
+			columns(k, workers, func(lo, hi int) { inputShares(f, draws, k, lo, hi, my, vy, m, corr2) })
 		}
 	}
 	total := 0.0
@@ -501,6 +483,58 @@ func varianceShares(f, draws []float64, k int, name func(int) string) []Share {
 	}
 	sort.SliceStable(out, func(i, j int) bool { return out[i].Share > out[j].Share })
 	return out
+}
+
+// inputShares fills corr2[lo:hi], the squared correlations of inputs lo..hi-1 with the
+// focus f of mean my and centred sum of squares vy over m trials.
+func inputShares(f, draws []float64, k, lo, hi int, my, vy float64, m int, corr2 []float64) {
+	w := hi - lo
+	mx, vx, cov := make([]float64, w), make([]float64, w), make([]float64, w)
+	for t := range len(f) {
+		if math.IsNaN(f[t]) {
+			continue
+		}
+		row := draws[t*k+lo : t*k+hi]
+		for i, x := range row {
+			mx[i] += x
+		}
+	}
+	for i := range mx {
+		mx[i] /= float64(m)
+	}
+	for t := range len(f) {
+		if math.IsNaN(f[t]) {
+			continue
+		}
+		dy := f[t] - my
+		row := draws[t*k+lo : t*k+hi]
+		for i, x := range row {
+			dx := x - mx[i]
+			vx[i] += dx * dx
+			cov[i] += dx * dy
+		}
+	}
+	for i := range w {
+		if vx[i] > 0 {
+			corr2[lo+i] = cov[i] * cov[i] / (vx[i] * vy)
+		}
+	}
+}
+
+// columns runs fn over blocks [lo, hi) of 0..k-1, on up to workers goroutines when there is
+// enough to share.
+func columns(k, workers int, fn func(lo, hi int)) {
+	const minBlock = 256
+	if workers <= 1 || k < 2*minBlock {
+		fn(0, k)
+		return
+	}
+	var wg sync.WaitGroup
+	size := (k + workers - 1) / workers
+	for lo := 0; lo < k; lo += size {
+		wg.Go(func() { fn(lo, min(lo+size, k)) })
+	}
+	wg.Wait()
 }
 
 // sweepPoints returns the values of a sweep's input, evenly spaced (or log-spaced):

@@ -194,3 +194,30 @@ p = "= dbw(w) + z"
 		t.Error("dbw(w) + z is affine in z with coefficient 1")
 	}
 }
+
+// TestSharesAnyWorkers: the variance shares of a sheet with enough inputs to split their
+// sums among workers are the same, bit for bit, on one worker and on three (the page must
+// not depend on the number of cores).
+func TestSharesAnyWorkers(t *testing.T) {
+	src, err := gen.SumChain(600, 2)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := evalSrc(t, string(src))
+	var got [][]analysis.Share
+	for _, w := range []int{1, 3} {
+		a, diags := analysis.Analyze(r, analysis.Options{Trials: 500, Seed: 4, Workers: w})
+		if diags.HasErrors() || a.Tolerance == nil {
+			t.Fatalf("workers %d: %v", w, diags)
+		}
+		got = append(got, a.Tolerance.Shares)
+	}
+	if len(got[0]) != 600 || len(got[1]) != 600 {
+		t.Fatalf("%d and %d shares, want 600", len(got[0]), len(got[1]))
+	}
+	for i := range got[0] {
+		if got[0][i] != got[1][i] {
+			t.Fatalf("share %d: %v on one worker, %v on three", i, got[0][i], got[1][i])
+		}
+	}
+}
