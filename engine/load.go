@@ -66,7 +66,6 @@ type sheetFile struct {
 	prefix string // part prefix, "" for the worksheet
 	src    string
 	doc    map[string]any // the decoded text (shared with later loads, never changed)
-	lines  lineKeys       // the keys on each line, found on first use
 }
 
 // rangeOf returns where the key at an index path (see keyJoin) is written, or its nearest
