@@ -235,8 +235,8 @@ func (lz *linearizer) value(x *inode) (float64, bool) {
 
 // RunLinear sets the inputs of l to x (in l's input order, in the numbers of their types)
 // and computes l's quantities from their affine form; what else depends on the inputs is
-// not computed. Value and Holds then see the new values of l's quantities. Undo it with
-// ResetLinear.
+// not computed. Value and Holds then see the new values of l's quantities; Reset with the
+// inputs' cone puts the nominal values back.
 func (sc *Scenario) RunLinear(l *Linear, x []float64) {
 	r := sc.r
 	n := len(l.ins)
@@ -247,12 +247,5 @@ func (sc *Scenario) RunLinear(l *Linear, x []float64) {
 			v += c * (x[i] - l.x0[i])
 		}
 		r.vals[id], r.known[id] = v, !isBad(v)
-	}
-}
-
-// ResetLinear puts the nominal values back on l's quantities.
-func (sc *Scenario) ResetLinear(l *Linear) {
-	for _, id := range l.of {
-		sc.r.vals[id], sc.r.known[id] = sc.nom.vals[id], sc.nom.known[id]
 	}
 }
