@@ -21,17 +21,17 @@ import (
 
 // Limits on analyses.
 const (
-	DefaultTrials = 10_000
-	MaxTrials     = 1_000_000
+	DefaultTrials = 10_000    // Monte Carlo trials when Options.Trials is 0
+	MaxTrials     = 1_000_000 // the most trials the command accepts
 )
 
 // Options configure Analyze.
 type Options struct {
-	Trials   int    // Monte Carlo trials; 0 means DefaultTrials
-	Seed     uint64 // Monte Carlo seed; the same seed gives the same report
-	Workers  int    // goroutines for the trials; 0 means GOMAXPROCS. Results do not depend on it.
-	Focus    string // the quantity to centre on (a case's own focus); "" means the sheet's
-	Progress func(what string, done, total int)
+	Trials   int                                // Monte Carlo trials; 0 means DefaultTrials
+	Seed     uint64                             // Monte Carlo seed; the same seed gives the same report
+	Workers  int                                // goroutines for the trials; 0 means GOMAXPROCS. Results do not depend on it.
+	Focus    string                             // the quantity to centre on (a case's own focus); "" means the sheet's
+	Progress func(what string, done, total int) // told of the trials done, about 20 times a run, never concurrently; nil for none
 	// SkipMonteCarlo leaves the trials out (Tolerance.Trials is then 0): the worst case and
 	// RSS come at once, for a page that is completed later.
 	SkipMonteCarlo bool
@@ -39,84 +39,111 @@ type Options struct {
 
 // Analysis is what the analyses found about the focus quantity, and the sweeps and solves.
 type Analysis struct {
-	Focus       *engine.Quantity
-	FocusValue  units.Q
-	Unit        string // the unit focus values below are in ("dB", "dBm", "m" …)
-	ChangeUnit  string // the unit of changes of the focus ("dB" for a decibel focus)
-	Sensitivity []Sensitivity
-	Budget      []Contribution // where the budget goes; nil when the focus is not a sum of decibel terms
-	Tolerance   *Tolerance     // nil when no input the focus depends on has a tolerance
-	Sweeps      []SweepResult
-	Solves      []SolveResult
+	Focus       *engine.Quantity // the quantity analysed; nil when the sheet has no focus
+	FocusValue  units.Q          // its value in the result analysed
+	Unit        string           // the unit focus values below are in ("dB", "dBm", "m" …)
+	ChangeUnit  string           // the unit of changes of the focus ("dB" for a decibel focus)
+	Sensitivity []Sensitivity    // one per input the focus depends on, largest change first
+	Budget      []Contribution   // where the budget goes; nil when the focus is not a sum of decibel terms
+	Flow        *SignalFlow      // the budget in signal order; nil when the focus is not a level in signal order
+	Tolerance   *Tolerance       // nil when no input the focus depends on has a tolerance
+	Sweeps      []SweepResult    // one per [[sweep]], in file order
+	Solves      []SolveResult    // one per [[solve]], in file order
 }
 
 // Sensitivity is the change of the focus when one input rises by Per (1 dB or 10 %).
 type Sensitivity struct {
-	Input  string
-	Per    string
+	Input  string  // the input's full name
+	Per    string  // how far it rises: "1 dB" for a decibel input, "10 %" for a linear one
 	Change float64 // in Analysis.ChangeUnit; NaN when the focus could not be evaluated
 }
 
-// Contribution is one signed line item of a focus that is a sum of decibel terms.
+// Contribution is one signed line item of a focus that is a sum of decibel terms. The items
+// with a reference (dBm, dBHz) come first as the formula writes them, then the gains and
+// losses in dB, largest first.
 type Contribution struct {
-	Item     string  // label: a quantity's name, or "quantity: term" for a term inside a formula
-	Quantity string  // the quantity the term belongs to
-	Value    float64 // signed, in the term's own decibel unit
-	Unit     string
+	Item      string  // label: a quantity's name, or "quantity: term" for a term inside a formula
+	Quantity  string  // the quantity the term belongs to
+	Value     float64 // signed, in the term's own decibel unit
+	Unit      string  // that unit ("dB", "dBi" …)
+	Sign      int     // how the term enters the sum: +1 or −1
+	Total     float64 // the running total of the items so far, in TotalUnit
+	TotalUnit string  // the unit the references so far leave it in ("dBHz" after a C/N0, "dB" once a dBHz is taken off)
+	ref       units.Q // the term's value, before its sign
 }
 
 // Tolerance is the spread of the focus from the inputs' tolerances.
 type Tolerance struct {
-	Nominal   float64
-	WorstLow  float64
-	WorstHigh float64
-	RSSSigma  float64
-	Trials    int
-	Seed      uint64
-	PPass     float64 // chance that every requirement holds (1 when there are none and all trials evaluate)
-	P01, P50  float64
-	P99       float64
-	Failed    int       // trials that could not be evaluated (counted as failing)
-	Shares    []Share   // each input's share of the variance, largest first
-	Samples   []float64 // the focus in each trial that evaluated, sorted
+	Nominal   float64         // the focus at the nominal inputs, in Analysis.Unit like all values below
+	WorstLow  float64         // the focus with every input at the end of its tolerance that lowers it
+	WorstHigh float64         // the focus with every input at the end that raises it
+	RSSSigma  float64         // one standard deviation of the focus: root-sum-square of each input's slope × σ
+	Trials    int             // Monte Carlo trials run (0 with Options.SkipMonteCarlo)
+	Seed      uint64          // the seed they ran with
+	PPass     float64         // chance that every requirement holds (1 when there are none and all trials evaluate)
+	PPassSE   float64         // its binomial standard error, StdErr(PPass, Trials)
+	P01, P50  float64         // the 1st percentile and the median of the trials
+	P99       float64         // the 99th percentile
+	Failed    int             // trials that could not be evaluated (counted as failing)
+	Shares    []Share         // each input's share of the variance, largest first
+	Samples   []float64       // the focus in each trial that evaluated, sorted
+	Requires  []RequireSpread // every requirement's worst case and chance, in the sheet's order
+	Warnings  []engine.Tally  // validity warnings raised in the trials (points are trial numbers from 0)
+	// LowWarnings and HighWarnings are the validity warnings raised at the worst cases.
+	LowWarnings, HighWarnings []engine.Tally
+	// LowCorner and HighCorner say where each toleranced input sits in the worst case low
+	// and high: the input with the larger effect first, ties by name.
+	LowCorner, HighCorner []Corner
+}
+
+// Corner is where one toleranced input sits in a worst case.
+type Corner struct {
+	Input  string  // the input's full name
+	Limit  string  // "low" or "high" (its tolerance limit), or "nominal" when it does not move the focus
+	Value  float64 // the input's value there, in Unit
+	Unit   string  // the input's report unit
+	Effect float64 // the change of the focus (in Analysis.ChangeUnit) with this input alone moved there; NaN when a limit could not be evaluated
 }
 
 // Share is one input's share of the focus's variance.
 type Share struct {
-	Input string
-	Share float64
+	Input string  // the input's full name
+	Share float64 // its fraction of the variance, 0 to 1
 }
 
 // SweepResult holds a sweep's points.
 type SweepResult struct {
 	Sweep     *engine.Sweep
-	Unit      string // unit of X
-	X         []float64
-	Series    []Series
-	Crossings []Crossing
+	Unit      string         // unit of X
+	X         []float64      // the swept input's values, Sweep.Steps+1 of them
+	Series    []Series       // one per quantity of Sweep.Plot, in that order
+	Crossings []Crossing     // where a series crosses a plain bound on it, by requirement and series
+	Warnings  []engine.Tally // validity warnings raised at the points (points index X)
 }
 
 // Series is one plotted quantity over a sweep. Y is NaN where it could not be evaluated.
 type Series struct {
-	Quantity string
-	Unit     string
-	Y        []float64
+	Quantity string    // the plotted quantity's full name
+	Unit     string    // unit of Y
+	Y        []float64 // one per point of the sweep's X
 }
 
 // Crossing is where a plotted quantity crosses a requirement's bound within a sweep.
 type Crossing struct {
-	Quantity string
-	Require  int // index into Sheet.Requires
-	X, Y     float64
+	Quantity string  // the plotted quantity's full name
+	Require  int     // index into Sheet.Requires
+	X, Y     float64 // where, in the sweep's and the series' units; X found on the model between points
 }
 
 // SolveResult is the answer to a solve. Found is false when there is no crossing in range.
 type SolveResult struct {
 	Solve *engine.Solve
-	Found bool
+	Found bool    // a value within the solve's range was found
 	Value float64 // in Unit
-	Unit  string
-	Note  string // why nothing was found, or what went wrong
+	Unit  string  // the unit of the varied input
+	Note  string  // why nothing was found, or what went wrong
+	// Warnings are the validity warnings raised at the answer: a model used outside its range there.
+	Warnings []string
 }
 
 // Analyze runs the analyses on the focus quantity of r's sheet, and the sweeps and solves,
@@ -132,6 +159,9 @@ func Analyze(r *engine.Result, opt Options) (*Analysis, engine.Diagnostics) {
 	}
 	a := &Analysis{}
 	var diags engine.Diagnostics
+	for _, cc := range Cascades(r) {
+		diags = append(diags, cc.Warnings...) // stages near compression at the chain's input level
+	}
 	focus := s.Focus
 	if opt.Focus != "" {
 		focus = opt.Focus
@@ -147,20 +177,28 @@ func Analyze(r *engine.Result, opt Options) (*Analysis, engine.Diagnostics) {
 		fa := newFocusAt(r, f)
 		a.Sensitivity = fa.sensitivity()
 		a.Budget = budget(fa.sc, f)
+		a.Flow = signalFlow(fa.sc, f)
 		if opt.Trials > MaxTrials {
 			diags = append(diags, engine.Diagnostic{Severity: engine.Error, Quantity: "trials", Summary: fmt.Sprintf("at most %d Monte Carlo trials", MaxTrials), Range: engine.Range{File: s.File}})
 		} else {
 			a.Tolerance = fa.tolerance(opt)
+			if a.Tolerance != nil {
+				diags = append(diags, cornerDiags(a.Tolerance, f.Name, a.Unit)...)
+				diags = append(diags, trialsDiags(a.Tolerance)...)
+			}
 		}
 	}
 	for _, sw := range s.Sweeps {
-		a.Sweeps = append(a.Sweeps, sweep(r, sw))
+		res := sweep(r, sw)
+		diags = append(diags, sweepDiags(res)...)
+		a.Sweeps = append(a.Sweeps, res)
 	}
 	for _, so := range s.Solves {
-		res, err := solve(r, so)
+		res, ts, err := solve(r, so)
 		if err != nil {
 			diags = append(diags, engine.Diagnostic{Severity: engine.Warning, Quantity: "solve " + so.Name, Summary: err.Error(), Range: so.Range})
 		}
+		diags = append(diags, solveDiags(res, ts)...)
 		a.Solves = append(a.Solves, res)
 	}
 	return a, diags
@@ -282,8 +320,20 @@ func (fa *focusAt) sensitivity() []Sensitivity {
 		}
 		out = append(out, Sensitivity{Input: q.Name, Per: per, Change: change})
 	}
-	sort.SliceStable(out, func(i, j int) bool { return math.Abs(out[i].Change) > math.Abs(out[j].Change) })
+	sort.Slice(out, func(i, j int) bool { return largerEffect(out[i].Change, out[j].Change, out[i].Input, out[j].Input) })
 	return out
+}
+
+// largerEffect orders effects largest first, those that could not be evaluated (NaN) last,
+// ties by name, so the order never depends on the order the inputs were found in.
+func largerEffect(a, b float64, nameA, nameB string) bool {
+	if na, nb := math.IsNaN(a), math.IsNaN(b); na != nb {
+		return nb
+	}
+	if x, y := math.Abs(a), math.Abs(b); x != y && !math.IsNaN(x) {
+		return x > y
+	}
+	return nameA < nameB
 }
 
 // tolerance computes worst cases, RSS and the Monte Carlo spread of the focus.
@@ -339,11 +389,15 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 			fh, okh = fa.at(qs[i:i+1], []units.Q{in.hi}, cone)
 		}
 		lowCorner[i], highCorner[i] = in.nom, in.nom
+		low, high := corner(in.q, "nominal", in.nom, math.NaN()), corner(in.q, "nominal", in.nom, math.NaN())
 		if okl && okh {
+			low.Effect, high.Effect = 0, 0
 			if fl < fh {
 				lowCorner[i], highCorner[i] = in.lo, in.hi
+				low, high = corner(in.q, "low", in.lo, fl-t.Nominal), corner(in.q, "high", in.hi, fh-t.Nominal)
 			} else if fh < fl {
 				lowCorner[i], highCorner[i] = in.hi, in.lo
+				low, high = corner(in.q, "high", in.hi, fh-t.Nominal), corner(in.q, "low", in.lo, fl-t.Nominal)
 			}
 			if span := in.hi.V - in.lo.V; span > 0 {
 				slope := (fh - fl) / span
@@ -351,11 +405,21 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 				rss += sd * sd
 			}
 		}
+		t.LowCorner, t.HighCorner = append(t.LowCorner, low), append(t.HighCorner, high)
 	}
+	sortCorners(t.LowCorner)
+	sortCorners(t.HighCorner)
 	union := s.Cone(qs...)
 	t.WorstLow, _ = fa.at(qs, lowCorner, union)
 	t.WorstHigh, _ = fa.at(qs, highCorner, union)
+	_, _, t.LowWarnings = fa.corner(qs, lowCorner, union, focus)
+	_, _, t.HighWarnings = fa.corner(qs, highCorner, union, focus)
 	t.RSSSigma = math.Sqrt(rss)
+	los, his := make([]units.Q, len(ins)), make([]units.Q, len(ins))
+	for i, in := range ins {
+		los[i], his[i] = in.lo, in.hi
+	}
+	t.Requires = fa.requireWorst(qs, los, his, union)
 	if opt.SkipMonteCarlo {
 		t.Trials = 0
 		return t
@@ -369,8 +433,10 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 	pass := make([]bool, n)
 	draws := make([]float64, n*len(ins))
 	workers := make([]*engine.Scenario, opt.Workers)
+	holds := make([][]int, opt.Workers) // per worker, trials in which each requirement holds
 	for w := range workers {
 		workers[w] = nom.Scenario()
+		holds[w] = make([]int, len(s.Requires))
 	}
 	// When the focus and what the requirements read are affine in the toleranced inputs, a
 	// trial computes them from their affine form (a multiply-add per input) instead of
@@ -404,6 +470,7 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 				row[i] = v.V
 				sc.Set(in.q, v)
 			}
+			sc.Point(trial)
 			sc.Run(union)
 		}
 		focusVals[trial] = math.NaN()
@@ -412,7 +479,25 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 			focusVals[trial] = numberIn(fa.fu, v)
 		}
 		pass[trial] = ok && sc.Holds()
+		for i, rq := range s.Requires {
+			if p, _ := sc.Pass(rq); p {
+				holds[w][i]++
+			}
+		}
 	}, progress)
+	tallies := make([][]engine.Tally, len(workers))
+	for w, sc := range workers {
+		tallies[w] = sc.Tallies()
+		for i := range t.Requires {
+			t.Requires[i].Holds += holds[w][i]
+		}
+	}
+	t.Warnings = engine.MergeTallies(tallies...)
+	for i := range t.Requires {
+		rs := &t.Requires[i]
+		rs.Chance = float64(rs.Holds) / float64(n)
+		rs.ChanceSE = StdErr(rs.Chance, n)
+	}
 
 	passed := 0
 	var samples []float64
@@ -427,6 +512,7 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 		}
 	}
 	t.PPass = float64(passed) / float64(n)
+	t.PPassSE = StdErr(t.PPass, n)
 	sort.Float64s(samples)
 	t.Samples = samples
 	if len(samples) > 0 {
@@ -436,6 +522,14 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 	}
 	t.Shares = varianceShares(focusVals, draws, len(ins), opt.Workers, func(i int) string { return ins[i].q.Name })
 	return t
+}
+
+func corner(q *engine.Quantity, limit string, v units.Q, effect float64) Corner {
+	return Corner{Input: q.Name, Limit: limit, Value: engine.Number(q, v), Unit: engine.UnitName(q), Effect: effect}
+}
+
+func sortCorners(cs []Corner) {
+	sort.Slice(cs, func(i, j int) bool { return largerEffect(cs[i].Effect, cs[j].Effect, cs[i].Input, cs[j].Input) })
 }
 
 // varianceShares estimates each input's share of the focus variance as its squared
@@ -570,9 +664,10 @@ func sweep(nom *engine.Result, sw *engine.Sweep) SweepResult {
 		plots = append(plots, pq)
 		res.Series = append(res.Series, Series{Quantity: p, Unit: engine.UnitName(pq)})
 	}
-	for _, x := range xs {
+	for j, x := range xs {
 		q := base
 		q.V = x
+		sc.Point(j)
 		set(q)
 		res.X = append(res.X, engine.Number(vq, q))
 		for i, pq := range plots {
@@ -584,6 +679,8 @@ func sweep(nom *engine.Result, sw *engine.Sweep) SweepResult {
 			res.Series[i].Y = append(res.Series[i].Y, y)
 		}
 	}
+	sc.Point(-1)
+	res.Warnings = sc.Tallies()
 	set(base)
 	// Where a plotted quantity crosses a requirement's bound, refine the crossing on the model.
 	for ri, rq := range s.Requires {
@@ -624,7 +721,8 @@ func sweep(nom *engine.Result, sw *engine.Sweep) SweepResult {
 	return res
 }
 
-func solve(nom *engine.Result, so *engine.Solve) (SolveResult, error) {
+// solve finds a solve's answer; the tallies are the validity warnings raised at it.
+func solve(nom *engine.Result, so *engine.Solve) (SolveResult, []engine.Tally, error) {
 	s := nom.Sheet()
 	vq, _ := s.Quantity(so.Vary)
 	tq, _ := s.Quantity(so.SoThat)
@@ -632,11 +730,11 @@ func solve(nom *engine.Result, so *engine.Solve) (SolveResult, error) {
 	base, _ := nom.Value(vq)
 	if so.Within[0].D != base.D || so.Within[1].D != base.D || so.Within[0].K != base.K {
 		res.Note = fmt.Sprintf("within must be in the same unit kind as %s", so.Vary)
-		return res, fmt.Errorf("%s", res.Note)
+		return res, nil, fmt.Errorf("%s", res.Note)
 	}
 	if !nom.Known(tq) {
 		res.Note = so.SoThat + " could not be evaluated"
-		return res, nil
+		return res, nil, nil
 	}
 	target, err := so.Equals.V, error(nil)
 	if u := reportUnit(tq); u != nil {
@@ -644,7 +742,7 @@ func solve(nom *engine.Result, so *engine.Solve) (SolveResult, error) {
 	}
 	if err != nil {
 		res.Note = fmt.Sprintf("equals %s does not fit %s: %v", so.Equals, so.SoThat, err)
-		return res, fmt.Errorf("%s", res.Note)
+		return res, nil, fmt.Errorf("%s", res.Note)
 	}
 	sc := nom.Scenario()
 	down := s.Cone(vq)
@@ -664,14 +762,22 @@ func solve(nom *engine.Result, so *engine.Solve) (SolveResult, error) {
 	x, found, err := numeric.Brent(g, lo, hi, logScale, 1e-10)
 	if err != nil {
 		res.Note = err.Error()
-		return res, err
+		return res, nil, err
 	}
 	if !found {
 		res.Note = "no crossing in range"
-		return res, nil
+		return res, nil, nil
 	}
 	q := base
 	q.V = x
 	res.Found, res.Value = true, engine.Number(vq, q)
-	return res, nil
+	// The answer evaluated once more, counting the warnings its models raise there.
+	sc.Point(0)
+	sc.Set(vq, q)
+	sc.Run(down)
+	ts := sc.Tallies()
+	for _, t := range ts {
+		res.Warnings = append(res.Warnings, t.Message)
+	}
+	return res, ts, nil
 }

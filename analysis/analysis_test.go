@@ -217,9 +217,11 @@ m = "= x + z"
 
 func TestTrialsDeterministic(t *testing.T) {
 	path := "../worksheets/field-probe-uplink.toml"
+	// One evaluation for every run: the tolerance names its requirements and quantities by
+	// pointer, which DeepEqual follows to the same sheet.
+	sh := evalFile(t, path)
 	run := func(workers, procs int) *analysis.Tolerance {
 		defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(procs))
-		sh := evalFile(t, path)
 		a, _ := analysis.Analyze(sh, analysis.Options{Trials: 3000, Seed: 42, Workers: workers})
 		if a.Tolerance == nil {
 			t.Fatal("no tolerance analysis")

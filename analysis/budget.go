@@ -28,10 +28,44 @@ func budget(sc *engine.Scenario, focus *engine.Quantity) []Contribution {
 		total += it.Value
 	}
 	if d := engine.Number(focus, fv) - total; math.Abs(d) > 1e-9 {
-		b.items = append(b.items, Contribution{Item: "reference level conversion", Value: d, Unit: "dB"})
+		b.items = append(b.items, Contribution{Item: "reference level conversion", Value: d, Unit: "dB", ref: units.DB(d), Sign: 1})
 	}
-	sort.SliceStable(b.items, func(i, j int) bool { return math.Abs(b.items[i].Value) > math.Abs(b.items[j].Value) })
+	// Terms with a reference (dBW, dB/K, dBHz) come first in the order the formula writes
+	// them, so that the running total passes through units that mean something (dBW, dBW/K,
+	// dBHz); then the gains and losses in dB, largest first.
+	sort.SliceStable(b.items, func(i, j int) bool {
+		ri, rj := !b.items[i].ref.D.IsNone(), !b.items[j].ref.D.IsNone()
+		if ri || rj {
+			return ri && !rj
+		}
+		return math.Abs(b.items[i].Value) > math.Abs(b.items[j].Value)
+	})
+	runningTotals(b.items)
 	return b.items
+}
+
+// runningTotals sets each item's running total and the unit the references of the items so
+// far leave it in: 78.61 dBHz after a C/N0, 15.60 dB once a dBHz is taken off it.
+func runningTotals(items []Contribution) {
+	acc, run := units.DB(0), 0.0
+	for i := range items {
+		it := &items[i]
+		run += it.Value
+		next, err := units.Add(acc, it.ref)
+		if it.Sign < 0 {
+			next, err = units.Sub(acc, it.ref)
+		}
+		if err != nil {
+			// A reference with no decibel unit of its own (the inverse of a power, say):
+			// keep the dimension, which the unit name then spells out.
+			next = units.Q{V: acc.V + float64(it.Sign)*it.ref.V, D: acc.D.Mul(it.ref.D), K: units.Level}
+			if it.Sign < 0 {
+				next.D = acc.D.Div(it.ref.D)
+			}
+		}
+		acc = next
+		it.Total, it.TotalUnit = run, acc.UnitName()
+	}
 }
 
 type budgeter struct {
@@ -60,7 +94,7 @@ func (b *budgeter) walk(q *engine.Quantity, sign, depth int) bool {
 			if !ok || v.K != units.Level {
 				return false
 			}
-			b.items = append(b.items, Contribution{Item: t.Quantity.Name, Quantity: t.Quantity.Name, Value: float64(s) * engine.Number(t.Quantity, v), Unit: engine.UnitName(t.Quantity)})
+			b.items = append(b.items, Contribution{Item: t.Quantity.Name, Quantity: t.Quantity.Name, Value: float64(s) * engine.Number(t.Quantity, v), Unit: engine.UnitName(t.Quantity), ref: v, Sign: s})
 			continue
 		}
 		v, ok := b.sc.Term(t)
@@ -71,7 +105,7 @@ func (b *budgeter) walk(q *engine.Quantity, sign, depth int) bool {
 		if u, _ := units.ParseUnit(v.UnitName()); u != nil {
 			x, _ = v.In(u)
 		}
-		b.items = append(b.items, Contribution{Item: q.Name + ": " + t.Text, Quantity: q.Name, Value: float64(s) * x, Unit: v.UnitName()})
+		b.items = append(b.items, Contribution{Item: q.Name + ": " + t.Text, Quantity: q.Name, Value: float64(s) * x, Unit: v.UnitName(), ref: v, Sign: s})
 	}
 	return true
 }

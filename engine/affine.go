@@ -19,11 +19,13 @@ type Linear struct {
 }
 
 // Linear returns the affine form of the given quantities in the given inputs around r's
-// values, and with requires set that of every node a requirement reads as well, so that
-// Scenario.Holds can follow RunLinear; ok is false when one of them is not affine in the
-// inputs (a function of one of them, a condition, a chain, a product of two of them) or
-// could not be evaluated in r.
-func (r *Result) Linear(inputs, of []*Quantity, requires bool) (*Linear, bool) {
+// values; ok is false when one of them is not affine in the inputs (a function of one of
+// them, a condition, a chain, a product of two of them) or could not be evaluated in r.
+// With trials set, as for Monte Carlo trials, the form covers every node a requirement
+// reads as well, so that Scenario.Holds can follow RunLinear, and ok is also false when
+// anything the inputs reach calls a function: recomputing it would count the function's
+// validity warnings at each point (Scenario.Point), which RunLinear does not.
+func (r *Result) Linear(inputs, of []*Quantity, trials bool) (*Linear, bool) {
 	s := r.sh
 	l := &Linear{}
 	varying := make([]bool, len(s.nodes))
@@ -40,6 +42,9 @@ func (r *Result) Linear(inputs, of []*Quantity, requires bool) (*Linear, bool) {
 	}
 	for _, id := range s.coneOf(from) {
 		varying[id] = true
+		if n := s.nodes[id]; trials && (n.chain != nil || hasCall(n.code)) {
+			return nil, false
+		}
 	}
 	sinks := make([]int, 0, len(of))
 	seen := map[int]bool{}
@@ -52,7 +57,7 @@ func (r *Result) Linear(inputs, of []*Quantity, requires bool) (*Linear, bool) {
 	for _, q := range of {
 		add(q.node)
 	}
-	if requires {
+	if trials {
 		for _, rq := range s.Requires {
 			for _, d := range rq.deps {
 				add(d)
@@ -178,6 +183,22 @@ func (lz *linearizer) terms(x *inode, m float64) bool {
 		if b := x.kids[1]; !lz.varies(b) {
 			c, ok := lz.value(b)
 			return ok && c != 0 && lz.terms(x.kids[0], m/c)
+		}
+	}
+	return false
+}
+
+// hasCall reports whether subtree x calls a function.
+func hasCall(x *inode) bool {
+	if x == nil {
+		return false
+	}
+	if x.op == opCall {
+		return true
+	}
+	for _, k := range x.kids {
+		if hasCall(k) {
+			return true
 		}
 	}
 	return false

@@ -18,8 +18,8 @@ const NominalName = "nominal"
 // Case is a named operating point of the budget ([[case]]): the sheet evaluated with some
 // inputs replaced, as --set replaces them. The nominal evaluation is a Case too, with no Set.
 type Case struct {
-	Name     string
-	Note     string
+	Name     string     // the case's name, as --case selects it
+	Note     string     // the note written with it, "" for none
 	Set      []Override // in file order, each an input of the sheet with a value of its kind
 	Focus    string     // the quantity this case centres on; "" means the sheet's focus
 	Analyses bool       // run the analyses for this case even without --all-cases

@@ -21,6 +21,7 @@ type Range struct {
 	Start, End Pos
 }
 
+// String writes the range's start as FILE:LINE:COL, or only FILE when it has no position.
 func (r Range) String() string {
 	if r.Start.Line == 0 {
 		return r.File
@@ -40,11 +41,11 @@ const (
 
 // Diagnostic is one problem found in a worksheet, with where it is and what to do about it.
 type Diagnostic struct {
-	Severity Severity
-	Quantity string // full name of the quantity concerned, "" when none
-	Summary  string // what is wrong, lower case
-	Hint     string // what to do about it, "" when there is nothing to add
-	Range    Range
+	Severity Severity // Error or Warning
+	Quantity string   // full name of the quantity concerned, "" when none
+	Summary  string   // what is wrong, lower case
+	Hint     string   // what to do about it, "" when there is nothing to add
+	Range    Range    // where in which file
 }
 
 // String renders the diagnostic as FILE:LINE:COL: NAME: message; hint.
@@ -70,6 +71,8 @@ func (d Diagnostic) String() string {
 // Diagnostics is a list of problems. It implements error; Err returns nil when it holds no errors.
 type Diagnostics []Diagnostic
 
+// Error writes every diagnostic, errors and warnings, one a line as [Diagnostic.String]
+// writes it.
 func (ds Diagnostics) Error() string {
 	var lines []string
 	for _, d := range ds {

@@ -20,39 +20,39 @@ const (
 
 // FreqPlans holds the worksheet's [[spurs]] and [[products]] blocks in file order.
 type FreqPlans struct {
-	Spurs    []*SpurBlock
-	Products []*ProductBlock
+	Spurs    []*SpurBlock    // the [[spurs]] blocks: mixer spurious responses in a passband
+	Products []*ProductBlock // the [[products]] blocks: tone products in protected bands
 }
 
 // SpurBlock is a [[spurs]] block: one mixer's LO, IF passband and preselector passband, the
 // largest order m + n to consider and the mixer's rejection table.
 type SpurBlock struct {
-	Name   string
-	Note   string
-	LO     *Quantity // "spurs[1].lo": an input or a formula, evaluated with the sheet
-	IF, RF [2]units.Q
-	Order  int
+	Name   string      // the block's name, as the page shows it
+	Note   string      // the note written with it, "" for none
+	LO     *Quantity   // "spurs[1].lo": an input or a formula, evaluated with the sheet
+	IF, RF [2]units.Q  // the IF passband and the preselector's RF passband, low and high edge
+	Order  int         // the largest m + n considered
 	Reject []Reject    // in file order
 	Unit   *units.Unit // the unit the rf band was written in, for display
-	Range  Range
+	Range  Range       // where the [[spurs]] table is written
 }
 
 // Reject is one entry of a rejection table: the level of the m×n response relative to the
 // wanted (1×1) conversion.
 type Reject struct {
-	M, N  int
+	M, N  int     // the LO harmonic m and the RF harmonic n of the m×n response
 	Level units.Q // a ratio in dB (dBc)
 }
 
 // ProductBlock is a [[products]] block: known tones, protected bands and the largest order.
 type ProductBlock struct {
-	Name    string
-	Note    string
-	Tones   []units.Q
-	Protect [][2]units.Q
-	Order   int
-	Unit    *units.Unit // the unit the first tone was written in, for display
-	Range   Range
+	Name    string       // the block's name, as the page shows it
+	Note    string       // the note written with it, "" for none
+	Tones   []units.Q    // the known tones' frequencies, in file order
+	Protect [][2]units.Q // the protected bands, each low and high edge
+	Order   int          // the largest order of the products considered
+	Unit    *units.Unit  // the unit the first tone was written in, for display
+	Range   Range        // where the [[products]] table is written
 }
 
 var (

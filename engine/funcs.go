@@ -27,11 +27,11 @@ const (
 // wanted; the engine checks them before the call and converts between linear and decibel forms
 // when Form allows both, so a function receives its arguments in the form it declares.
 type Arg struct {
-	Name     string
-	Kind     ArgKind
-	Dim      units.Dim
-	Form     Form
-	Optional bool
+	Name     string    // as the signature shows it
+	Kind     ArgKind   // a quantity, a text or a chain
+	Dim      units.Dim // the dimension a quantity argument must have
+	Form     Form      // the form a quantity argument is taken in
+	Optional bool      // may be left out (Value.Given is then false); optional arguments come last
 	// Angle says the argument is an angle: a plain number must carry deg or rad, since a
 	// bare 30 could mean either.
 	Angle bool
@@ -59,11 +59,11 @@ const (
 // argument's dimension, form and display family, and Const says whether Q.V is its value too
 // (a literal such as 3 dB or 2).
 type Value struct {
-	Q     units.Q
-	Text  string
-	Chain *ChainValue
-	Given bool
-	Const bool
+	Q     units.Q     // a quantity argument, in the form its Arg declares
+	Text  string      // a text argument, without its quotes
+	Chain *ChainValue // a chain argument
+	Given bool        // the argument was written (false for an optional one left out)
+	Const bool        // Q.V is a literal's value, when the checker asks Infer
 }
 
 // Func is a built-in function: its name, arguments, the unit of its result, documentation,
@@ -78,14 +78,14 @@ type Value struct {
 // It reports out-of-validity inputs with c.Warn and impossible ones as errors. Its result
 // must have the declared unit's dimension and form.
 type Func struct {
-	Name      string
-	Args      []Arg
-	Variadic  bool
-	Result    string
-	Infer     func(args []Value) (units.Q, error)
-	ResultDoc string
-	Doc       string
-	Source    string
+	Name      string                              // what formulas call it by
+	Args      []Arg                               // in call order
+	Variadic  bool                                // the last argument repeats
+	Result    string                              // the result's fixed unit, when Infer is nil
+	Infer     func(args []Value) (units.Q, error) // the result's type from the arguments' types
+	ResultDoc string                              // the result's unit for the signature, with Infer
+	Doc       string                              // one line: what it computes, with the formula
+	Source    string                              // the published source it follows
 	Call      func(c *Call, args []Value) (units.Q, error)
 }
 
@@ -117,11 +117,18 @@ func resultUnit(sym string) (units.Q, error) {
 type Call struct {
 	warnings []string
 	quiet    bool
+	tally    *tally // a scenario's count of the warnings at its points (see Scenario.Point)
 }
 
 // Warn records that the call went outside its model's validity; the report shows it against the quantity.
 func (c *Call) Warn(format string, args ...any) {
-	if c == nil || c.quiet {
+	if c == nil {
+		return
+	}
+	if c.tally != nil {
+		c.tally.add(format, args)
+	}
+	if c.quiet {
 		return
 	}
 	c.warnings = append(c.warnings, fmt.Sprintf(format, args...))

@@ -14,7 +14,7 @@ type demoInputs struct {
 	frequency, distance, ref, exponent, clutter                          float64
 	rxAntenna, rxCableRate, rxCableLength, bandwidth, bitrate, berTarget float64
 	stages                                                               [3]rfmath.Stage
-	oip3LNA                                                              float64
+	oip3LNA, op1dbLNA                                                    float64
 	packetBits                                                           float64
 }
 
@@ -23,6 +23,7 @@ type demoValues struct {
 	in                                                     demoInputs
 	match, eirp, loss, rxCable, ebn0Req, snrReq, nf, floor float64
 	level, sensitivity, margin, per                        float64
+	chainInput, chainBandwidth                             float64
 	marginOK, eirpOK                                       bool
 }
 
@@ -34,9 +35,10 @@ func demoIn() demoInputs {
 		stages: [3]rfmath.Stage{
 			{Name: "band filter", GainDB: -1.5, NFDB: 1.5, IIP3: 35, HasIIP3: true},
 			{Name: "LNA", GainDB: 16, NFDB: 1.2, HasIIP3: true},
-			{Name: "radio", GainDB: 10, NFDB: 7, IIP3: -12, HasIIP3: true},
+			{Name: "radio", GainDB: 10, NFDB: 7, IIP3: -12, HasIIP3: true, IP1dB: -22, HasIP1dB: true},
 		},
 		oip3LNA:    20,
+		op1dbLNA:   8,
 		packetBits: 256,
 	}
 }
@@ -57,6 +59,7 @@ func handDemo(in *demoInputs, v *demoValues) {
 	v.floor = rfmath.DBm(rfmath.Thermal(in.bandwidth, rfmath.T0)) + v.nf
 	v.level = v.eirp - v.loss + in.rxAntenna - v.rxCable
 	v.sensitivity = v.floor + v.snrReq
+	v.chainInput, v.chainBandwidth = v.level, in.bandwidth
 	v.margin = v.level - v.sensitivity
 	v.per = rfmath.PER(in.berTarget, in.packetBits)
 	v.marginOK = v.margin >= 10
@@ -84,7 +87,9 @@ func (v *demoValues) expected() map[string]struct {
 		"rx.level": {v.level, "dBm"}, "rx.sensitivity": {v.sensitivity, "dBm"},
 		"rx.chain[1].loss": {-in.stages[0].GainDB, "dB"}, "rx.chain[1].iip3": {in.stages[0].IIP3, "dBm"},
 		"rx.chain[2].gain": {in.stages[1].GainDB, "dB"}, "rx.chain[2].nf": {in.stages[1].NFDB, "dB"},
-		"rx.chain[2].oip3": {in.oip3LNA, "dBm"},
+		"rx.chain[2].oip3": {in.oip3LNA, "dBm"}, "rx.chain[2].op1db": {in.op1dbLNA, "dBm"},
+		"rx.chain[3].ip1db": {in.stages[2].IP1dB, "dBm"},
+		"rx.chain_input":    {v.chainInput, "dBm"}, "rx.chain_bandwidth": {v.chainBandwidth, "Hz"},
 		"rx.chain[3].gain": {in.stages[2].GainDB, "dB"}, "rx.chain[3].nf": {in.stages[2].NFDB, "dB"},
 		"rx.chain[3].iip3": {in.stages[2].IIP3, "dBm"},
 		"link.margin":      {v.margin, "dB"}, "link.packet_bits": {in.packetBits, "bit"}, "link.per": {v.per, ""},

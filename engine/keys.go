@@ -10,7 +10,7 @@ import (
 
 // Key is one key of the worksheet format.
 type Key struct {
-	Name     string
+	Name     string // the key as written in the worksheet
 	Doc      string // what the key holds, in a sentence or two
 	Required bool   // whether its table must have it
 }
@@ -24,6 +24,7 @@ type KeySet struct {
 	Quantity   []Key // a quantity's long form, { is = "14 dBm", tol = "1 dB" }
 	StageText  []Key // a chain stage's texts
 	StageValue []Key // a chain stage's values: each a quantity, short or long form
+	ChainGroup []Key // quantities of a group that holds a chain, which its cascade table reads
 	Require    []Key // a [[require]] table
 	Sweep      []Key // a [[sweep]] table
 	Solve      []Key // a [[solve]] table
@@ -50,6 +51,7 @@ func WorksheetKeys() KeySet {
 		Quantity:      slices.Clone(quantityKeyDocs),
 		StageText:     slices.Clone(stageTextDocs),
 		StageValue:    slices.Clone(stageValueDocs),
+		ChainGroup:    slices.Clone(chainGroupKeyDocs),
 		Require:       slices.Clone(requireKeyDocs),
 		Sweep:         slices.Clone(sweepKeyDocs),
 		Solve:         slices.Clone(solveKeyDocs),
@@ -70,6 +72,7 @@ var (
 	quantityKeys = keyNames(quantityKeyDocs) // "is" first: longForm looks at the others
 	stageKeys    = keyNames(stageValueDocs)  // in the order StageValue stores them
 	stageAllKeys = append(keyNames(stageTextDocs), stageKeys...)
+	chainKeys    = keyNames(chainGroupKeyDocs)
 	requireKeys  = keyNames(requireKeyDocs)
 	sweepKeys    = keyNames(sweepKeyDocs)
 	solveKeys    = keyNames(solveKeyDocs)
@@ -145,6 +148,15 @@ var stageValueDocs = []Key{
 	{Name: "oip2", Doc: "The stage's output second-order intercept point, in place of iip2."},
 }
 
+// The keys of a group that holds a chain ([rx] above [[rx.chain]]). Each is a quantity like
+// any other of the group (a value, a formula, the long form), which every chain of the group
+// reads; without them the cascade table shows no levels.
+var chainGroupKeyDocs = []Key{
+	{Name: "chain_input", Doc: `The signal level entering the group's chains, a power ("-90 dBm", or "= level" to use a quantity of the group): the cascade table then shows the level after each stage and checks it against each stage's 1 dB compression point. Default: none, and no levels are shown.`},
+	{Name: "chain_bandwidth", Doc: `The noise bandwidth of the group's chains, a frequency ("125 kHz", or "= bandwidth"): the cascade table then shows the thermal noise (k·T0·B) after each stage. Default: none, and no noise levels are shown.`},
+	{Name: "chain_backoff", Doc: `How far under each stage's output 1 dB compression point the level from chain_input must stay before the page warns, in dB. Default: 10 dB.`},
+}
+
 var requireKeyDocs = []Key{
 	{Name: "that", Required: true, Doc: `A true/false formula that must hold, e.g. "= link.margin >= 10 dB".`},
 	{Name: "note", Doc: "Why the requirement is there, shown beside it on the page."},
@@ -154,7 +166,7 @@ var sweepKeyDocs = []Key{
 	{Name: "vary", Required: true, Doc: `The full name of the input to vary ("path.distance").`},
 	{Name: "from", Required: true, Doc: `The first value, with its unit ("200 m").`},
 	{Name: "to", Required: true, Doc: `The last value, with its unit ("10 km").`},
-	{Name: "steps", Doc: "How many points, from 2 to 10000 (default 20)."},
+	{Name: "steps", Doc: "How many intervals the range is cut into, from 2 to 10000 (default 20): a sweep evaluates steps + 1 points, both ends included."},
 	{Name: "scale", Doc: `How the points are spaced: "lin" (the default) or "log" (needs positive linear from and to).`},
 	{Name: "plot", Doc: `The quantities to tabulate and chart against the swept input: a full name or a list of them.`},
 }

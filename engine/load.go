@@ -672,10 +672,8 @@ func (l *loader) chain(f *sheetFile, g *Group, path, key string, tables []map[st
 				l.errAt(kr, qname, didYouMean(k, stageAllKeys, "a stage's keys are stage, gain, nf, te, loss, iip3, oip3, iip2, oip2, ip1db, op1db, note"), "unknown stage key %q", k)
 			}
 		}
-		if _, hasGain := st.Values["gain"]; hasGain {
-			if _, hasLoss := st.Values["loss"]; hasLoss {
-				l.errAt(st.Range, full, "a passive stage has loss; an active one gain", "stage %q has both gain and loss", st.Label)
-			}
+		if !l.checkStageKeys(full, st) {
+			ch.broken = true
 		}
 		ch.Stages = append(ch.Stages, st)
 	}

@@ -23,6 +23,8 @@ func (l *loader) checkMistakes() {
 	l.checkShows()
 	l.convertedDisplay()
 	l.checkSolveUnits()
+	l.checkStageKinds()
+	l.chainGroupKeys()
 }
 
 // checkEmpty refuses a worksheet with no quantity at all (an empty file, a file of comments,

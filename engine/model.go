@@ -13,16 +13,16 @@ import (
 // it gives a [Result].
 type Sheet struct {
 	File    string // the worksheet's path as given
-	Title   string
-	Summary string
+	Title   string // the worksheet's title, "" when it has none
+	Summary string // the worksheet's summary paragraph, "" when it has none
 	Focus   string // full name of the quantity the analyses centre on ("" when none)
 	Hash    string // hash of the worksheet's and its parts' bytes, for the report footer
 
-	Groups   []*Group
-	Requires []*Require
-	Sweeps   []*Sweep
-	Solves   []*Solve
-	Parts    []string // files brought in with `use`, in load order
+	Groups   []*Group   // every group in load order, each file's top level first
+	Requires []*Require // the [[require]] tables in file order
+	Sweeps   []*Sweep   // the [[sweep]] tables in file order (those that name what exists)
+	Solves   []*Solve   // the [[solve]] tables in file order (those that name what exists)
+	Parts    []string   // files brought in with `use`, in load order
 
 	FreqPlans FreqPlans // [[spurs]] and [[products]] blocks (freqplan.go)
 
@@ -47,28 +47,28 @@ type Sheet struct {
 
 // Group is a TOML table of the worksheet: quantities and chains under one dotted name.
 type Group struct {
-	Name       string // full dotted name, "" for the sheet's top level
-	Quantities []*Quantity
-	Chains     []*Chain
-	Range      Range
+	Name       string      // full dotted name, "" for the sheet's top level
+	Quantities []*Quantity // the group's own quantities, in file order
+	Chains     []*Chain    // the group's own chains, in file order
+	Range      Range       // where the group's table header is written
 }
 
 // Quantity is one line item: an input ("14 dBm") or a derived value ("= power - cable").
 type Quantity struct {
-	Name    string // full dotted name, e.g. "rx.floor"
-	Group   string
+	Name    string      // full dotted name, e.g. "rx.floor"
+	Group   string      // full name of the group it belongs to, "" for the top level
 	Formula string      // the formula without its leading "=", "" for inputs
 	Text    string      // an input as written, e.g. "14 dBm"
 	Unit    *units.Unit // the unit an input was written in (nil for derived quantities)
 	Show    *units.Unit // display unit asked for with `show`, or nil
 	Tol     *Tol        // tolerance, or nil
-	Note    string
-	Source  string
-	Export  bool
+	Note    string      // the note written with it, "" for none
+	Source  string      // where the number came from (source = "…"), "" for none
+	Export  bool        // export = true or export = "NAME": the C header carries it
 	// ExportName is the macro name chosen with export = "NAME" ("" for export = true: the
 	// header derives one from the quantity's name and unit).
 	ExportName string
-	Range      Range
+	Range      Range // where the quantity's key is written
 
 	node int
 	sh   *Sheet
@@ -109,15 +109,15 @@ func (q *Quantity) DisplayUnit() *units.Unit {
 // (limits are 3σ), "uniform" or "triangular". Sigma says it was written as a standard
 // deviation (sigma = "8 dB"): the limits are then ±3σ.
 type Tol struct {
-	Text        string
-	Minus, Plus units.Q
-	Relative    bool
-	RelMinus    float64
-	RelPlus     float64
-	Decibel     bool
-	Sigma       bool
-	Dist        string
-	key         string // the key it was written under: "tol" or "sigma"
+	Text        string  // the tolerance as written: "1 dB", "5 %", "-3 dB / +1 dB" for a pair
+	Minus, Plus units.Q // how far below and above the nominal value, both not negative
+	Relative    bool    // written in % or ppm: RelMinus and RelPlus apply, not Minus and Plus
+	RelMinus    float64 // fraction of the linear value below nominal (0.05 for 5 %)
+	RelPlus     float64 // fraction of the linear value above nominal
+	Decibel     bool    // in dB of a linear value (tol = "1 dB" on "25 mW")
+	Sigma       bool    // written as a standard deviation (sigma = "…")
+	Dist        string  // "normal", "uniform" or "triangular"
+	key         string  // the key it was written under: "tol" or "sigma"
 }
 
 // Limits returns the low and high values of a quantity with nominal value nom.
@@ -146,28 +146,34 @@ func (t *Tol) Limits(nom units.Q) (lo, hi units.Q, err error) {
 	return lo, hi, err
 }
 
-// Chain is a cascade of stages in signal order ([[rx.chain]]).
+// Chain is a cascade of stages in signal order ([[rx.chain]]). Input, Bandwidth and Backoff
+// are its group's chain_input, chain_bandwidth and chain_backoff (nil when the group has
+// none; the back-off is then DefaultBackoffDB).
 type Chain struct {
-	Name   string
-	Stages []*Stage
-	Range  Range
-	node   int
+	Name      string    // full dotted name, e.g. "rx.chain"
+	Stages    []*Stage  // in signal order
+	Range     Range     // where the chain's first table is written
+	Input     *Quantity // the level entering the chain, a power
+	Bandwidth *Quantity // the noise bandwidth, a frequency
+	Backoff   *Quantity // the least distance from each stage's output P1dB, a ratio in dB
+	node      int
+	broken    bool // a stage's keys contradict each other or are of the wrong kind (reported at load)
 }
 
 // Stage is one stage of a chain. Values holds its keys (gain, nf, te, loss, iip3, oip3, ip1db,
 // op1db) as quantities named like "rx.chain[2].gain".
 type Stage struct {
-	Label  string
-	Note   string
-	Values map[string]*Quantity
-	Keys   []string // the value keys in the order written
-	Range  Range
+	Label  string               // the stage's name (stage = "LNA")
+	Note   string               // the note written with it, "" for none
+	Values map[string]*Quantity // the stage's values by key
+	Keys   []string             // the value keys in the order written
+	Range  Range                // where the stage's table is written
 }
 
 // ChainValue is what a function receives for a chain argument: the evaluated stages in signal order.
 type ChainValue struct {
-	Name   string
-	Stages []StageValue
+	Name   string       // the chain's full name
+	Stages []StageValue // in signal order
 	// Memo, when not nil, lets the function library keep what it derives from the stages (a
 	// cascade) so that several functions of one chain work it out once per evaluation.
 	Memo *ChainMemo
@@ -177,13 +183,13 @@ type ChainValue struct {
 // time the stage values change; Data belongs to the library and is kept from one evaluation
 // to the next, so that its buffers are reused. Each evaluation result has its own.
 type ChainMemo struct {
-	Valid bool
-	Data  any
+	Valid bool // Data describes the current stage values
+	Data  any  // the library's own, kept between evaluations
 }
 
 // StageValue is one evaluated stage.
 type StageValue struct {
-	Label string
+	Label string // the stage's name
 	vals  [10]units.Q
 	has   uint16
 }
@@ -228,8 +234,8 @@ func (s *StageValue) set(key string, q units.Q) {
 // Require is a requirement: a true/false formula and a note.
 type Require struct {
 	That  string // the formula without "="
-	Note  string
-	Range Range
+	Note  string // why it is required, "" for no note
+	Range Range  // where the [[require]] table is written
 
 	// When the requirement is a plain bound on one quantity ("x >= 8 dB"), Subject names the
 	// quantity, Op is the comparison as written with the quantity on the left, and Bound the limit.
@@ -247,22 +253,22 @@ type Require struct {
 
 // Sweep varies one input over a range and records chosen quantities at each step.
 type Sweep struct {
-	Vary     string
-	From, To units.Q
-	Steps    int
-	Log      bool
-	Plot     []string
-	Range    Range
+	Vary     string   // full name of the input varied
+	From, To units.Q  // the range, in the input's kind
+	Steps    int      // intervals between From and To: Steps+1 points, both ends included
+	Log      bool     // points evenly spaced on a logarithmic scale (scale = "log")
+	Plot     []string // full names of the quantities recorded at each point
+	Range    Range    // where the [[sweep]] table is written
 }
 
 // Solve finds the value of an input at which a quantity equals a target.
 type Solve struct {
-	Name   string
-	Vary   string
-	SoThat string
-	Equals units.Q
-	Within [2]units.Q
-	Range  Range
+	Name   string     // the solve's name, as the page shows it
+	Vary   string     // full name of the input to find
+	SoThat string     // full name of the quantity to bring to Equals
+	Equals units.Q    // the target value of SoThat
+	Within [2]units.Q // the range of Vary to search, low and high
+	Range  Range      // where the [[solve]] table is written
 
 	equalsAt, withinAt Range
 }

@@ -25,7 +25,8 @@ type Options struct {
 
 // Override replaces the value of an input quantity.
 type Override struct {
-	Name, Value string
+	Name  string // the input's full name, e.g. "path.distance"
+	Value string // its new value as a worksheet writes it, e.g. "5 km"
 }
 
 // Load reads, checks and compiles a worksheet and the parts it uses. It always returns a

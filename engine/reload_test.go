@@ -67,17 +67,18 @@ func TestEditRecomputesOnlyTheCone(t *testing.T) {
 	if n := engine.Parsed(sh); n != 0 {
 		t.Errorf("input edit: %d formulas parsed again, want 0", n)
 	}
-	if n := engine.Evaluated(inc); n != 4 { // path.clutter, path.loss, rx.level, link.margin
-		t.Errorf("input edit: %d nodes evaluated, want 4", n)
+	if n := engine.Evaluated(inc); n != 5 { // path.clutter, path.loss, rx.level, rx.chain_input, link.margin
+		t.Errorf("input edit: %d nodes evaluated, want 5", n)
 	}
-	// One formula: rx.level gains a term; rx.level and link.margin are evaluated again.
+	// One formula: rx.level gains a term; rx.level, rx.chain_input and link.margin are
+	// evaluated again.
 	text2 := strings.Replace(text, `"= tx.eirp - path.loss + antenna - cable"`, `"= tx.eirp - path.loss + antenna - cable - 0.5 dB"`, 1)
 	inc2, fresh2, sh2 := reload(t, inc, text2)
 	sameValues(t, "formula edit", inc2, fresh2)
 	if n := engine.Parsed(sh2); n != 1 {
 		t.Errorf("formula edit: %d formulas parsed, want 1", n)
 	}
-	if n := engine.Evaluated(inc2); n != 2 {
-		t.Errorf("formula edit: %d nodes evaluated, want 2", n)
+	if n := engine.Evaluated(inc2); n != 3 {
+		t.Errorf("formula edit: %d nodes evaluated, want 3", n)
 	}
 }

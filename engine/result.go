@@ -280,12 +280,18 @@ func (r *Result) evalNode(id int) {
 	}
 	switch {
 	case n.chain != nil:
-		r.fillChain(n)
+		if !r.fillChain(n) {
+			r.known[id] = false
+			return
+		}
 	case n.code == nil:
 		// an input: its value is in place
 	default:
 		if !r.quiet {
 			r.call.warnings = r.call.warnings[:0]
+		}
+		if r.call.tally != nil {
+			r.call.tally.node = id
 		}
 		v, err := n.code.eval(r)
 		if err == nil && (math.IsNaN(v) || math.IsInf(v, 0)) {
@@ -332,10 +338,13 @@ func runtimeDiag(err error, name, formula string, rng Range, st site) Diagnostic
 	return Diagnostic{Severity: Error, Quantity: name, Summary: msg, Hint: hint, Range: rng}
 }
 
-// fillChain gathers a chain's stage values from its stage quantities.
-func (r *Result) fillChain(n *node) {
+// fillChain gathers a chain's stage values from its stage quantities, and reports whether
+// every stage is one a physical part can be (each problem is an error at the stage's key,
+// unless the result is quiet).
+func (r *Result) fillChain(n *node) bool {
 	cv := &r.chains[n.chainIdx]
 	cv.Memo.Valid = false
+	sound := true
 	for i, st := range n.chain.Stages {
 		sv := &cv.Stages[i]
 		sv.has = 0
@@ -348,7 +357,15 @@ func (r *Result) fillChain(n *node) {
 			v.V = r.vals[q.node]
 			sv.set(k, v)
 		}
+		for _, p := range stageProblems(st, sv) {
+			sound = false
+			if !r.quiet {
+				q := st.Values[p.key]
+				r.diags = append(r.diags, Diagnostic{Severity: Error, Quantity: q.Name, Summary: p.msg, Hint: p.hint, Range: q.Range})
+			}
+		}
 	}
+	return sound && !n.chain.broken
 }
 
 // requirements evaluates every requirement.

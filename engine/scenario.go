@@ -91,11 +91,17 @@ func (sc *Scenario) Reset(c *Cone) {
 	sc.r.restore(sc.nom, c.ids)
 }
 
+// Pass returns whether a requirement holds in the scenario as Holds last evaluated it.
+func (sc *Scenario) Pass(rq *Require) (pass, known bool) { return sc.r.Pass(rq) }
+
 // Value returns a quantity's value in the scenario.
 func (sc *Scenario) Value(q *Quantity) (units.Q, bool) { return sc.r.Value(q) }
 
 // Holds evaluates every requirement in the scenario and reports whether all of them hold.
 func (sc *Scenario) Holds() bool {
+	if t := sc.r.call.tally; t != nil {
+		t.node = -1 // a requirement's own formula belongs to no quantity
+	}
 	sc.r.requirements()
 	return sc.r.allPass()
 }
@@ -104,9 +110,9 @@ func (sc *Scenario) Holds() bool {
 // quantity the formula names (Quantity is set), or another expression, shown as Text and
 // computed by Scenario.Term.
 type Term struct {
-	Sign     int
-	Quantity *Quantity
-	Text     string // the term in worksheet syntax, names relative to the formula's group
+	Sign     int       // +1 or −1
+	Quantity *Quantity // the quantity the term names, nil for another expression
+	Text     string    // the term in worksheet syntax, names relative to the formula's group
 	x        *inode
 }
 

@@ -58,18 +58,7 @@ func Bars(w io.Writer, s BarSpec) error {
 		hi += 0.35 * span
 	}
 
-	p := newPlot(s.Title, s.Unit, "")
-	ticks := make([]plot.Tick, n)
-	for i, l := range s.Labels {
-		ticks[i] = plot.Tick{Value: float64(n - 1 - i), Label: l}
-	}
-	p.Y.Tick.Marker = plot.ConstantTicks(ticks)
-	p.Y.Tick.Length = 0
-	p.Y.Width = 0
-	p.Y.Min, p.Y.Max = -0.6, float64(n)-0.4
-	p.X.Min, p.X.Max = lo, hi
-
-	p.Add(grid(true, false))
+	p := rowPlot(s.Title, s.Unit, s.Labels, lo, hi)
 	units := make([]string, n)
 	for i := range units {
 		units[i] = s.Unit
@@ -78,7 +67,30 @@ func Bars(w io.Writer, s BarSpec) error {
 		}
 	}
 	p.Add(&signedBars{values: s.Values, units: units, text: smallText(p, 9)})
-	return render(w, p, Width, max(Height, 2.2*vg.Centimeter+vg.Length(n)*0.5*vg.Centimeter))
+	return render(w, p, Width, rowHeight(n))
+}
+
+// rowPlot returns a plot with one row per label, the first at the top (row i at y = n−1−i),
+// the value axis from lo to hi, and vertical grid lines.
+func rowPlot(title, xlabel string, labels []string, lo, hi float64) *plot.Plot {
+	n := len(labels)
+	p := newPlot(title, xlabel, "")
+	ticks := make([]plot.Tick, n)
+	for i, l := range labels {
+		ticks[i] = plot.Tick{Value: float64(n - 1 - i), Label: l}
+	}
+	p.Y.Tick.Marker = plot.ConstantTicks(ticks)
+	p.Y.Tick.Length = 0
+	p.Y.Width = 0
+	p.Y.Min, p.Y.Max = -0.6, float64(n)-0.4
+	p.X.Min, p.X.Max = lo, hi
+	p.Add(grid(true, false))
+	return p
+}
+
+// rowHeight is the height of a chart of n rows: Height, or about 5 mm per row.
+func rowHeight(n int) vg.Length {
+	return max(Height, 2.2*vg.Centimeter+vg.Length(n)*0.5*vg.Centimeter)
 }
 
 // signedBars draws bar i at y = n−1−i from zero to values[i], with its

@@ -83,6 +83,24 @@ func sampleLevels() LevelSpec {
 	}
 }
 
+// sampleWaterfall is a short link in signal order: a transmitter's power, its antenna, the
+// path, the received level, the sensitivity it is compared with and the margin.
+func sampleWaterfall() WaterfallSpec {
+	return WaterfallSpec{
+		Title: "Link in signal order",
+		Unit:  "dBm",
+		Steps: []Step{
+			{Label: "transmit power", Kind: StepLevel, To: 20, Text: "20.00 dBm"},
+			{Label: "transmit antenna", Kind: StepChange, From: 20, To: 35, Text: "+15.00 dBi", Good: true},
+			{Label: "free space", Kind: StepChange, From: 35, To: -85, Text: "-120.00 dB"},
+			{Label: "received level", Kind: StepLevel, To: -85, Text: "-85.00 dBm"},
+			{Label: "sensitivity", Kind: StepLevel, To: -99, Text: "-99.00 dBm"},
+			{Label: "margin", Kind: StepGap, From: -99, To: -85, Text: "14.00 dB", Good: true},
+			{Label: "no value", Kind: StepChange, From: math.NaN(), To: 1},
+		},
+	}
+}
+
 type chartCase struct {
 	name   string
 	draw   func(io.Writer) error
@@ -91,7 +109,7 @@ type chartCase struct {
 }
 
 func cases() []chartCase {
-	l, h, b, v := sampleLine(), sampleHist(), sampleBars(), sampleLevels()
+	l, h, b, v, wf := sampleLine(), sampleHist(), sampleBars(), sampleLevels(), sampleWaterfall()
 	return []chartCase{
 		{"line", func(w io.Writer) error { return Line(w, l) }, []string{l.Title, l.XLabel, l.YLabel},
 			[]string{"free space", "exponent 3.5", "range 3.16 km", "10", "100", "1k", "10k", "100k"}},
@@ -101,6 +119,8 @@ func cases() []chartCase {
 			append(append([]string(nil), b.Labels...), "+14.5 dB", "+3.00 dB", "-18.7 dB", "n/a")},
 		{"levels", func(w io.Writer) error { return Levels(w, v) }, []string{v.Title, "stage", "level (dBm)"},
 			append(append([]string(nil), v.Stages...), "signal", "noise")},
+		{"waterfall", func(w io.Writer) error { return Waterfall(w, wf) }, []string{wf.Title, "level (dBm)"},
+			[]string{"transmit power", "free space", "margin", "+15.00 dBi", "-120.00 dB", "-99.00 dBm", "14.00 dB"}},
 	}
 }
 
@@ -246,6 +266,8 @@ func TestEmptyAndBadInput(t *testing.T) {
 		"bars NaN":        Bars(io.Discard, BarSpec{Labels: []string{"a"}, Values: []float64{nan}}),
 		"levels empty":    Levels(io.Discard, LevelSpec{}),
 		"levels NaN":      Levels(io.Discard, LevelSpec{Stages: []string{"a"}, Noise: []float64{nan}}),
+		"waterfall empty": Waterfall(io.Discard, WaterfallSpec{}),
+		"waterfall NaN":   Waterfall(io.Discard, WaterfallSpec{Steps: []Step{{Kind: StepChange, From: 1, To: nan}, {To: math.Inf(1)}}}),
 	}
 	for name, err := range errs {
 		if !errors.Is(err, ErrEmpty) {
@@ -276,11 +298,32 @@ func TestDegenerateInput(t *testing.T) {
 		"bars zeros":     Bars(io.Discard, BarSpec{Labels: []string{"a", "b"}, Values: []float64{0, inf}}),
 		"levels no sig":  Levels(io.Discard, LevelSpec{Stages: []string{"a", "b"}, Noise: []float64{-100, nan}}),
 		"levels one":     Levels(io.Discard, LevelSpec{Stages: []string{"only"}, Signal: []float64{-50}, Noise: []float64{-90}}),
+		"waterfall one":  Waterfall(io.Discard, WaterfallSpec{Steps: []Step{{Label: "only", To: -174}}}),
+		"waterfall flat": Waterfall(io.Discard, WaterfallSpec{Steps: []Step{{To: 3}, {Kind: StepChange, From: 3, To: 3}, {Kind: StepGap, From: 3, To: 3}}}),
 		"levels crowded": Levels(io.Discard, LevelSpec{Stages: strings.Fields("preselector-filter low-noise-amplifier image-filter first-mixer first-IF-filter IF-amplifier second-mixer baseband-filter"), Noise: make([]float64, 8)}),
 	}
 	for name, err := range ok {
 		if err != nil {
 			t.Errorf("%s: %v", name, err)
 		}
+	}
+}
+
+// TestWaterfallBarsOnlyForChanges: levels are marks and only gains and losses are bars, each
+// from the level before it to the level after it, so a level (a thermal noise at −174 dBm/Hz,
+// say) never becomes a bar from zero.
+func TestWaterfallBarsOnlyForChanges(t *testing.T) {
+	var buf bytes.Buffer
+	if err := Waterfall(&buf, sampleWaterfall()); err != nil {
+		t.Fatal(err)
+	}
+	s := buf.String()
+	// Two changes: the antenna's gain (blue) and the free space loss (vermillion); the gap is
+	// a stroked bracket, the levels are glyphs.
+	if got := strings.Count(s, "fill:#0072B2") + strings.Count(s, "fill:#D55E00"); got != 2 {
+		t.Errorf("%d filled bars, want 2 (one per change)", got)
+	}
+	if !strings.Contains(s, "stroke:#0072B2") {
+		t.Error("the margin is not drawn as a bracket")
 	}
 }

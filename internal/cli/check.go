@@ -2,6 +2,7 @@ package cli
 
 import (
 	"fmt"
+	"math"
 
 	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/engine"
@@ -19,7 +20,7 @@ var checkFormats = map[string]func([]report.CheckInput) []byte{
 func cmdCheck(e *Env, args []string) int {
 	fs := newFlags(e, "check")
 	format := fs.String("format", "text", "output `text|json|junit|github`: for people, scripts, CI test reporters, GitHub Actions annotations")
-	trials := fs.Int("trials", 0, "also run `N` Monte Carlo trials for the chance that the requirements hold (0: none)")
+	trials := fs.Int("trials", analysis.DefaultTrials, "Monte Carlo trials `N` for each requirement's chance of holding and the at-risk verdict (0: none)")
 	seed := fs.Uint64("seed", 1, "Monte Carlo seed `N`")
 	var set setFlag
 	fs.Var(&set, "set", "replace an input for this run, as `name=value` (repeatable)")
@@ -118,8 +119,17 @@ func checkText(e *Env, c report.CheckInput) {
 		}
 	}
 	verdict := "PASS"
-	if len(fails) > 0 {
+	var risky []report.Case
+	for _, k := range cases {
+		if analysis.AtRisk(k.Result, k.Analysis) {
+			risky = append(risky, k)
+		}
+	}
+	switch {
+	case len(fails) > 0:
 		verdict = "FAIL"
+	case len(risky) > 0:
+		verdict = "PASS at nominal but AT RISK"
 	}
 	first := cases[0]
 	r := first.Result
@@ -135,10 +145,22 @@ func checkText(e *Env, c report.CheckInput) {
 			fmt.Fprintf(e.Stdout, "; %s = %s", f.Name, r.Display(f))
 		}
 	}
-	if c.Analysis != nil && c.Analysis.Tolerance != nil {
-		fmt.Fprintf(e.Stdout, "; all hold in %.1f %% of %d trials", 100*c.Analysis.Tolerance.PPass, c.Analysis.Tolerance.Trials)
+	if t := first.Analysis; t != nil && t.Tolerance != nil && t.Tolerance.Trials > 0 && len(sh.Requires) > 0 {
+		in := ""
+		if len(cases) > 1 {
+			in = fmt.Sprintf(" in %q", first.Case.Name)
+		}
+		fmt.Fprintf(e.Stdout, ";%s all hold together in %s of %s Monte Carlo trials", in, report.ChanceText(t.Tolerance.PPass, t.Tolerance.PPassSE, t.Tolerance.Trials), analysis.Count(t.Tolerance.Trials))
+		if analysis.AtRisk(first.Result, first.Analysis) {
+			fmt.Fprintf(e.Stdout, " (below %.0f %%)", 100*analysis.AtRiskBelow)
+		}
 	}
 	fmt.Fprintln(e.Stdout)
+	if len(fails) == 0 {
+		for _, k := range risky {
+			checkRisk(e, sh, k, len(cases) > 1)
+		}
+	}
 	for _, f := range fails {
 		fmt.Fprintf(e.Stdout, "  failed: %s", f.rq.That)
 		if len(cases) > 1 {
@@ -146,6 +168,27 @@ func checkText(e *Env, c report.CheckInput) {
 		}
 		if q, ok := sh.Quantity(f.rq.Subject); ok {
 			fmt.Fprintf(e.Stdout, " (%s = %s)", q.Name, f.c.Result.Display(q))
+		}
+		fmt.Fprintln(e.Stdout)
+	}
+}
+
+// checkRisk writes why a case that passes at nominal is at risk: the requirements that hold
+// in fewer than analysis.AtRiskBelow of its trials, with their worst case.
+func checkRisk(e *Env, sh *engine.Sheet, k report.Case, named bool) {
+	t := k.Analysis.Tolerance
+	in := ""
+	if named {
+		in = fmt.Sprintf(" in case %q", k.Case.Name)
+		fmt.Fprintf(e.Stdout, "  at risk%s: every requirement holds, but all of them together in only %s of %s trials\n", in, report.ChanceText(t.PPass, t.PPassSE, t.Trials), analysis.Count(t.Trials))
+	}
+	for _, rs := range t.Requires {
+		if rs.Chance >= analysis.AtRiskBelow {
+			continue
+		}
+		fmt.Fprintf(e.Stdout, "  at risk%s: %s holds in %s of trials", in, rs.Require.That, report.ChanceText(rs.Chance, rs.ChanceSE, t.Trials))
+		if !math.IsNaN(rs.Worst) {
+			fmt.Fprintf(e.Stdout, " (%s = %s at the worst case)", rs.Require.Subject, report.WorstValue(sh, rs))
 		}
 		fmt.Fprintln(e.Stdout)
 	}

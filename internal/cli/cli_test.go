@@ -5,7 +5,6 @@ import (
 	"encoding/json"
 	"flag"
 	"os"
-	"os/exec"
 	"path/filepath"
 	"regexp"
 	"runtime"
@@ -407,17 +406,7 @@ func TestReadmeWorksheet(t *testing.T) {
 
 // TestDiffRev compares a worksheet as committed with the working file.
 func TestDiffRev(t *testing.T) {
-	if _, err := exec.LookPath("git"); err != nil {
-		t.Skip("git not installed")
-	}
-	dir := t.TempDir()
-	git := func(args ...string) {
-		t.Helper()
-		cmd := exec.Command("git", append([]string{"-C", dir, "-c", "user.name=t", "-c", "user.email=t@example.invalid"}, args...)...)
-		if out, err := cmd.CombinedOutput(); err != nil {
-			t.Fatalf("git %v: %v\n%s", args, err, out)
-		}
-	}
+	dir, git := gitRepo(t)
 	sheet := filepath.Join(dir, "s.toml")
 	os.WriteFile(sheet, []byte("focus = \"m\"\np = \"10 dBm\"\nm = \"= p - 3 dB\"\n"), 0o644)
 	git("init", "-q")

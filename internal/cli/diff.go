@@ -9,6 +9,7 @@ import (
 	"strings"
 	"testing/fstest"
 
+	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/engine"
 	"github.com/rfledger/rfledger/units"
 )
@@ -19,6 +20,8 @@ func cmdDiff(e *Env, args []string) int {
 	format := fs.String("format", "markdown", "output `markdown|json`")
 	exitCode := fs.Bool("exit-code", false, "exit 1 when a requirement flips from pass to fail or the focus gets worse by more than --tolerance")
 	tolText := fs.String("tolerance", "0", "with --exit-code, how much worse the focus may get: `X` such as 0.5dB, a plain number in the focus's unit (default 0)")
+	trials := fs.Int("trials", analysis.DefaultTrials, "run `N` Monte Carlo trials on each side (0: compare the worst cases and solves only)")
+	seed := fs.Uint64("seed", 1, "Monte Carlo seed `N`, the same for both sides")
 	pos, err := parse(fs, args)
 	if err != nil {
 		return flagErr(e, fs, err)
@@ -26,6 +29,10 @@ func cmdDiff(e *Env, args []string) int {
 	if *format != "markdown" && *format != "json" {
 		return usageErr(e, "diff", "--format is markdown or json, not %q", *format)
 	}
+	if *trials < 0 || *trials > analysis.MaxTrials {
+		return usageErr(e, "diff", "--trials must be between 0 and %d", analysis.MaxTrials)
+	}
+	ao := &analysis.Options{Trials: *trials, Seed: *seed, SkipMonteCarlo: *trials == 0}
 	tol, _, err := units.Parse(*tolText)
 	if err != nil || tol.V < 0 {
 		return usageErr(e, "diff", "--tolerance wants a non-negative amount such as 0.5dB, not %q", *tolText)
@@ -41,12 +48,12 @@ func cmdDiff(e *Env, args []string) int {
 			return ExitBadSheet
 		}
 		oldName, newName = pos[0]+" at "+*rev, pos[0]
-		oldEv, oldFS = evaluate(name, nil, gfs, nil), gfs
-		newEv = evaluate(pos[0], nil, nil, nil)
+		oldEv, oldFS = evaluate(name, nil, gfs, ao), gfs
+		newEv = evaluate(pos[0], nil, nil, ao)
 	case *rev == "" && len(pos) == 2:
 		oldName, newName = pos[0], pos[1]
-		oldEv = evaluate(pos[0], nil, nil, nil)
-		newEv = evaluate(pos[1], nil, nil, nil)
+		oldEv = evaluate(pos[0], nil, nil, ao)
+		newEv = evaluate(pos[1], nil, nil, ao)
 	default:
 		return usageErr(e, "diff", "want OLD NEW, or SHEET --rev REV")
 	}
@@ -66,9 +73,13 @@ func cmdDiff(e *Env, args []string) int {
 	if *format == "json" {
 		doc := diffDocOf(oldName, newName, oldEv.result, newEv.result, reg)
 		doc.Cases = cases
+		doc.Solves, doc.Tolerance = solvesDiff(oldEv.analysis, newEv.analysis), toleranceDiff(oldEv.analysis, newEv.analysis)
 		_, _ = e.Stdout.Write(encode(doc))
 	} else {
-		_, _ = e.Stdout.Write(append(diffMarkdown(oldName, newName, oldEv.result, newEv.result), casesMarkdown(cases)...))
+		md := diffMarkdown(oldName, newName, oldEv.result, newEv.result)
+		md = append(md, solvesMarkdown(solvesDiff(oldEv.analysis, newEv.analysis))...)
+		md = append(md, toleranceMarkdown(toleranceDiff(oldEv.analysis, newEv.analysis))...)
+		_, _ = e.Stdout.Write(append(md, casesMarkdown(cases)...))
 	}
 	if *exitCode && (reg.focusWorse || len(reg.flipped) > 0) {
 		for _, that := range reg.flipped {
@@ -125,7 +136,9 @@ func diffMarkdown(oldName, newName string, ra, rb *engine.Result) []byte {
 	}
 	fmt.Fprintf(&w, "# Changes in %s\n\nOld: `%s` (hash `%s`). New: `%s` (hash `%s`).\n\n", title, oldName, a.Hash, newName, b.Hash)
 	fmt.Fprintf(&w, "## Verdict\n\n| | old | new |\n| --- | --- | --- |\n")
-	if f, ok := b.Quantity(b.Focus); ok {
+	if renamed, _ := focusRedefined(a, b); renamed {
+		fmt.Fprintf(&w, "| focus | %s | %s |\n", focusValue(ra), focusValue(rb))
+	} else if f, ok := b.Quantity(b.Focus); ok {
 		old := "—"
 		if g, ok := a.Quantity(b.Focus); ok {
 			old = ra.Display(g)
@@ -136,22 +149,20 @@ func diffMarkdown(oldName, newName string, ra, rb *engine.Result) []byte {
 		}
 		fmt.Fprintf(&w, "| focus `%s` | %s | %s%s |\n", f.Name, old, rb.Display(f), ch)
 	}
-	reqs := map[string]string{}
-	for _, rq := range a.Requires {
-		reqs[rq.That] = passText(ra, rq)
-	}
-	for _, rq := range b.Requires {
-		old, ok := reqs[rq.That]
-		if !ok {
-			old = "(new)"
+	for _, p := range pairRequires(a, b) {
+		switch {
+		case p.new == nil:
+			fmt.Fprintf(&w, "| `%s` | %s | (removed) |\n", p.old.That, passText(ra, p.old))
+		case p.old == nil:
+			fmt.Fprintf(&w, "| `%s` | (new) | %s |\n", p.new.That, passText(rb, p.new))
+		case p.old.That != p.new.That:
+			fmt.Fprintf(&w, "| `%s` (was `%s`) | %s | %s |\n", p.new.That, p.old.That, passText(ra, p.old), passText(rb, p.new))
+		default:
+			fmt.Fprintf(&w, "| `%s` | %s | %s |\n", p.new.That, passText(ra, p.old), passText(rb, p.new))
 		}
-		delete(reqs, rq.That)
-		fmt.Fprintf(&w, "| `%s` | %s | %s |\n", rq.That, old, passText(rb, rq))
 	}
-	for _, rq := range a.Requires {
-		if old, ok := reqs[rq.That]; ok {
-			fmt.Fprintf(&w, "| `%s` | %s | (removed) |\n", rq.That, old)
-		}
+	if f := focusMarkdown(ra, rb); f != "" {
+		fmt.Fprintf(&w, "\n%s", f)
 	}
 	var rows []string
 	for _, q := range b.Quantities() {
@@ -179,6 +190,15 @@ func diffMarkdown(oldName, newName string, ra, rb *engine.Result) []byte {
 	}
 	fmt.Fprintf(&w, "| quantity | old | new | change |\n| --- | ---: | ---: | ---: |\n%s\n", strings.Join(rows, "\n"))
 	return w.Bytes()
+}
+
+// focusValue is a sheet's focus and its value, for a verdict row.
+func focusValue(r *engine.Result) string {
+	sh := r.Sheet()
+	if q, ok := sh.Quantity(sh.Focus); ok {
+		return "`" + q.Name + "` = " + r.Display(q)
+	}
+	return "none"
 }
 
 func passText(r *engine.Result, rq *engine.Require) string {

@@ -25,15 +25,18 @@ type regression struct {
 func regressions(ra, rb *engine.Result, tol units.Q) (regression, error) {
 	a, b := ra.Sheet(), rb.Sheet()
 	var r regression
-	old := map[string]bool{}
-	for _, rq := range a.Requires {
-		if pass, _ := ra.Pass(rq); pass {
-			old[rq.That] = true
+	for _, p := range pairRequires(a, b) {
+		if p.old == nil || p.new == nil {
+			continue
 		}
-	}
-	for _, rq := range b.Requires {
-		if pass, _ := rb.Pass(rq); old[rq.That] && !pass {
-			r.flipped = append(r.flipped, rq.That)
+		was, _ := ra.Pass(p.old)
+		now, _ := rb.Pass(p.new)
+		if was && !now {
+			that := p.new.That
+			if p.old.That != p.new.That {
+				that += " (edited from " + p.old.That + ")"
+			}
+			r.flipped = append(r.flipped, that)
 		}
 	}
 	r.lowerWorse = lowerIsWorse(b)
@@ -62,6 +65,72 @@ func regressions(ra, rb *engine.Result, tol units.Q) (regression, error) {
 		r.focusWorse = d.V > limit
 	}
 	return r, nil
+}
+
+// reqPair is a requirement of the old sheet and its counterpart in the new one; old or new
+// is nil for one that was added or removed.
+type reqPair struct{ old, new *engine.Require }
+
+// pairRequires matches the requirements of two sheets: by their text, then an unmatched one
+// with an unmatched one that bounds the same quantity from the same side (an edited bound:
+// "m >= 5 dBm" become "m >= 8 dBm"), in order. The new sheet's come first, in its order, then
+// the removed ones.
+func pairRequires(a, b *engine.Sheet) []reqPair {
+	byText := map[string]*engine.Require{}
+	for _, rq := range a.Requires {
+		if _, dup := byText[rq.That]; !dup {
+			byText[rq.That] = rq
+		}
+	}
+	used := map[*engine.Require]bool{}
+	out := make([]reqPair, len(b.Requires))
+	for i, rq := range b.Requires {
+		out[i].new = rq
+		if o := byText[rq.That]; o != nil && !used[o] {
+			out[i].old, used[o] = o, true
+		}
+	}
+	for i := range out {
+		if out[i].old != nil || out[i].new.Subject == "" {
+			continue
+		}
+		for _, o := range a.Requires {
+			if !used[o] && o.Subject == out[i].new.Subject && sameSide(o.Op, out[i].new.Op) && byThat(b, o.That) == nil {
+				out[i].old, used[o] = o, true
+				break
+			}
+		}
+	}
+	for _, o := range a.Requires {
+		if !used[o] {
+			out = append(out, reqPair{old: o})
+		}
+	}
+	return out
+}
+
+// sameSide reports whether two comparisons bound a quantity from the same side.
+func sameSide(a, b string) bool {
+	side := func(op string) int {
+		switch op {
+		case ">=", ">":
+			return 1
+		case "<=", "<":
+			return -1
+		}
+		return 0
+	}
+	return side(a) == side(b)
+}
+
+// byThat is the requirement of sh written as that, nil when there is none.
+func byThat(sh *engine.Sheet, that string) *engine.Require {
+	for _, rq := range sh.Requires {
+		if rq.That == that {
+			return rq
+		}
+	}
+	return nil
 }
 
 // toleranceLike returns the tolerance as a number comparable with the change d (dB for a
@@ -113,6 +182,10 @@ type diffDoc struct {
 	Regression   bool       `json:"regression"` // what --exit-code exits 1 on
 	Flipped      []string   `json:"flipped"`
 	Cases        []diffCase `json:"cases,omitempty"` // case by case, when either sheet has [[case]] entries (cases.go)
+	// The solves' answers and the spread of each side's focus (diffanalysis.go); tolerance is
+	// null when neither focus depends on an input with a tolerance.
+	Solves    []diffSolve    `json:"solves"`
+	Tolerance *diffTolerance `json:"tolerance"`
 }
 
 type diffSide struct {
@@ -127,6 +200,14 @@ type diffFocus struct {
 	Change string     `json:"change"` // new − old, "" when they cannot be compared
 	Worse  bool       `json:"worse"`  // moved the wrong way by more than --tolerance
 	Lower  bool       `json:"lower_is_worse"`
+
+	// The focus's definition, old and new: another quantity (renamed), or the same one
+	// obtained by another formula ("" for an input).
+	OldName        string `json:"old_name"`
+	Formula        string `json:"formula"`
+	OldFormula     string `json:"old_formula"`
+	Renamed        bool   `json:"renamed"`
+	FormulaChanged bool   `json:"formula_changed"`
 }
 
 type diffValue struct {
@@ -141,6 +222,8 @@ type diffReq struct {
 	That string `json:"that"`
 	Old  string `json:"old"` // pass, fail, unknown (cannot be evaluated) or absent
 	New  string `json:"new"`
+
+	Was string `json:"was,omitempty"` // the old text of a bound that was edited
 }
 
 type diffQ struct {
@@ -194,27 +277,28 @@ func diffJSON(oldName, newName string, ra, rb *engine.Result, reg regression) []
 func diffDocOf(oldName, newName string, ra, rb *engine.Result, reg regression) diffDoc {
 	a, b := ra.Sheet(), rb.Sheet()
 	doc := diffDoc{Format: 1, Old: diffSide{oldName, a.Hash}, New: diffSide{newName, b.Hash},
-		Requirements: []diffReq{}, Quantities: []diffQ{}, Flipped: append([]string{}, reg.flipped...),
+		Requirements: []diffReq{}, Quantities: []diffQ{}, Flipped: append([]string{}, reg.flipped...), Solves: []diffSolve{},
 		Regression: reg.focusWorse || len(reg.flipped) > 0}
 	if f, ok := b.Quantity(b.Focus); ok {
 		old, _ := a.Quantity(b.Focus)
-		doc.Focus = &diffFocus{Name: f.Name, New: valueOf(rb, f), Change: reg.focusChange, Worse: reg.focusWorse, Lower: reg.lowerWorse}
+		doc.Focus = &diffFocus{Name: f.Name, New: valueOf(rb, f), Change: reg.focusChange, Worse: reg.focusWorse, Lower: reg.lowerWorse,
+			OldName: a.Focus, Formula: f.Formula}
+		doc.Focus.Renamed, doc.Focus.FormulaChanged = focusRedefined(a, b)
 		if old != nil {
 			doc.Focus.Old = valueOf(ra, old)
 		}
+		if of, ok := a.Quantity(a.Focus); ok {
+			doc.Focus.OldFormula = of.Formula
+		}
 	}
-	oldReq := map[string]*engine.Require{}
-	for _, rq := range a.Requires {
-		oldReq[rq.That] = rq
-	}
-	seen := map[string]bool{}
-	for _, rq := range b.Requires {
-		seen[rq.That] = true
-		doc.Requirements = append(doc.Requirements, diffReq{That: rq.That, Old: reqState(ra, oldReq[rq.That]), New: reqState(rb, rq)})
-	}
-	for _, rq := range a.Requires {
-		if !seen[rq.That] {
-			doc.Requirements = append(doc.Requirements, diffReq{That: rq.That, Old: reqState(ra, rq), New: "absent"})
+	for _, p := range pairRequires(a, b) {
+		switch {
+		case p.new == nil:
+			doc.Requirements = append(doc.Requirements, diffReq{That: p.old.That, Old: reqState(ra, p.old), New: "absent"})
+		case p.old != nil && p.old.That != p.new.That:
+			doc.Requirements = append(doc.Requirements, diffReq{That: p.new.That, Was: p.old.That, Old: reqState(ra, p.old), New: reqState(rb, p.new)})
+		default:
+			doc.Requirements = append(doc.Requirements, diffReq{That: p.new.That, Old: reqState(ra, p.old), New: reqState(rb, p.new)})
 		}
 	}
 	for _, q := range b.Quantities() {

@@ -75,6 +75,7 @@ func valueSchemas(ks engine.KeySet) map[string]map[string]obj {
 			"export": {"type": []any{"boolean", "string"}, "pattern": ks.MacroPattern},
 		},
 		"stage":   stage,
+		"group":   {"chain_input": ref("quantity"), "chain_bandwidth": ref("quantity"), "chain_backoff": ref("quantity")},
 		"require": {"that": text(), "note": text()},
 		"sweep": {
 			"vary": text(), "from": value, "to": value,
@@ -116,6 +117,7 @@ func tableKeys(ks engine.KeySet) map[string][]engine.Key {
 	return map[string][]engine.Key{
 		"top": ks.Top, "quantity": ks.Quantity, "stage": append(append([]engine.Key{}, ks.StageText...), ks.StageValue...),
 		"require": ks.Require, "sweep": ks.Sweep, "solve": ks.Solve, "spurs": ks.Spurs, "products": ks.Products, "case": ks.Case,
+		"group": ks.ChainGroup,
 	}
 }
 
@@ -156,6 +158,7 @@ func worksheetSchema() ([]byte, error) {
 	for _, b := range ks.Builtins {
 		top[b] = obj{"not": obj{}, "description": b + " is built in (pi, c0 the speed of light, kB Boltzmann's constant, T0 = 290 K) and cannot be redefined; choose another name."}
 	}
+	groupKeys, _ := properties(ks.ChainGroup, values["group"])
 	var qkeys []any
 	for _, k := range ks.Quantity {
 		qkeys = append(qkeys, k.Name)
@@ -177,8 +180,9 @@ func worksheetSchema() ([]byte, error) {
 		},
 		"table": obj{"if": obj{"required": []any{"is"}}, "then": ref("longForm"), "else": ref("group")},
 		"group": obj{
-			"description":          "A group: its keys name quantities, nested groups and chains.",
+			"description":          "A group: its keys name quantities, nested groups and chains; a group that holds a chain may give it chain_input, chain_bandwidth and chain_backoff.",
 			"type":                 "object",
+			"properties":           groupKeys,
 			"propertyNames":        obj{"pattern": ks.NamePattern},
 			"additionalProperties": ref("member"),
 			// A table of nothing but long-form keys is a long form that lacks is, as the loader reads it.

@@ -8,6 +8,7 @@ import (
 
 	"go.lsp.dev/protocol"
 
+	"github.com/rfledger/rfledger/engine"
 	"github.com/rfledger/rfledger/units"
 )
 
@@ -71,8 +72,18 @@ func keyContext(sp spot) []string {
 	case sp.array:
 		return stageKeys
 	}
-	return nil
+	return chainGroupKeys // a group's other keys are names of its own
 }
+
+// chainGroupKeys are the keys a group that holds a chain may give it (engine.WorksheetKeys).
+var chainGroupKeys = func() []string {
+	var out []string
+	for _, k := range engine.WorksheetKeys().ChainGroup {
+		out = append(out, k.Name)
+		keyDocs[k.Name] = k.Doc
+	}
+	return out
+}()
 
 func contains(list []string, s string) bool {
 	for _, x := range list {

@@ -184,6 +184,10 @@ func TestProtocol(t *testing.T) {
 	if items := complete(at(t, text, "gain  = \"10", "gain")); items["iip3"].Label == "" || items["loss"].Label == "" {
 		t.Errorf("completion in a chain stage: %v", items)
 	}
+	// At a group's key place: the keys a group that holds a chain may give it.
+	if items := complete(at(t, text, "a ", "a")); items["chain_input"].Label == "" || items["chain_backoff"].Detail == "" {
+		t.Errorf("completion at a group's key: %v", items)
+	}
 
 	// Definition across a part, and of a name in the same file; references of an input.
 	var locs []protocol.Location

@@ -69,19 +69,48 @@ func requirementCell(sh *engine.Sheet, c Case, rq *engine.Require) string {
 	default:
 		parts = append(parts, "PASS")
 	}
-	if ch := caseChance(sh, c, rq); ch != nil {
-		parts = append(parts, "("+pct(*ch)+" of trials)")
+	out := strings.Join(parts, " ")
+	if rs, ok := spreadOf(c.Analysis, rq); ok {
+		if w := worstText(sh, rs); w != "" {
+			out += "; worst " + w
+		}
+		if t := c.Analysis.Tolerance; t.Trials > 0 {
+			out += "; holds in " + chanceText(rs.Chance, rs.ChanceSE, t.Trials) + " of trials"
+		}
 	}
-	return strings.Join(parts, " ")
+	return out
 }
 
-// caseChance is the Monte Carlo chance that a bound on the case's focus holds, when computed.
-func caseChance(sh *engine.Sheet, c Case, rq *engine.Require) *float64 {
-	if c.Analysis == nil || c.Analysis.Tolerance == nil || c.Analysis.Focus == nil || rq.Subject != c.Analysis.Focus.Name {
-		return nil
+// caseVerdictCell writes a case's verdict: PASS, PASS but at risk, or FAIL.
+func caseVerdictCell(c Case) string {
+	switch {
+	case !casePass(c):
+		return "**FAIL**"
+	case analysis.AtRisk(c.Result, c.Analysis):
+		return "PASS at nominal, **AT RISK**"
 	}
-	q, _ := sh.Quantity(rq.Subject)
-	return chance(c.Analysis.Tolerance, rq.Op, engine.Number(q, rq.Bound))
+	return "PASS"
+}
+
+// caseSpreads writes, for every case whose Monte Carlo trials were run, the chance that all
+// its requirements hold together, and which cases are at risk.
+func (p *page) caseSpreads() {
+	var lines []string
+	for _, c := range p.in.Cases {
+		a := c.Analysis
+		if a == nil || a.Tolerance == nil || a.Tolerance.Trials == 0 || len(c.Result.Sheet().Requires) == 0 {
+			continue
+		}
+		t := a.Tolerance
+		line := fmt.Sprintf("- “%s”: every requirement holds together in %s of %s Monte Carlo trials", text(c.Case.Name), chanceText(t.PPass, t.PPassSE, t.Trials), analysis.Count(t.Trials))
+		if analysis.AtRisk(c.Result, a) {
+			line += fmt.Sprintf(": **at risk** (below %.0f %%)", 100*analysis.AtRiskBelow)
+		}
+		lines = append(lines, line+".")
+	}
+	if len(lines) > 0 {
+		p.f("%s\n\n", strings.Join(lines, "\n"))
+	}
 }
 
 // solveCell writes a case's answer to a solve.
@@ -107,21 +136,26 @@ func solveCell(c Case, i int) string {
 func (p *page) caseVerdict() {
 	sh := p.in.Sheet
 	p.f("## Verdict\n\n")
-	var failing []string
+	var failing, risky []string
 	for _, c := range p.in.Cases {
 		if !casePass(c) {
 			failing = append(failing, "“"+text(c.Case.Name)+"”")
+		} else if analysis.AtRisk(c.Result, c.Analysis) {
+			risky = append(risky, "“"+text(c.Case.Name)+"”")
 		}
 	}
 	n := len(p.in.Cases)
 	switch {
 	case len(sh.Requires) == 0:
 		p.f("No requirements are set; add `[[require]]` entries to have the page check them in each of the %d cases.\n\n", n)
+	case len(failing) == 0 && len(risky) > 0:
+		p.f("**PASS at nominal in all %d cases, but AT RISK in %s:** its requirements hold together in fewer than %.0f %% of the Monte Carlo trials.\n\n", n, strings.Join(risky, ", "), 100*analysis.AtRiskBelow)
 	case len(failing) == 0:
 		p.f("**PASS: every requirement holds in all %d cases.**\n\n", n)
 	default:
 		p.f("**FAIL: requirements do not hold in %d of %d cases** (%s).\n\n", len(failing), n, strings.Join(failing, ", "))
 	}
+	p.caseSpreads()
 	if p.wideCases() {
 		p.caseColumns()
 	} else {
@@ -174,12 +208,7 @@ func (p *page) caseColumns() {
 	for i, so := range sh.Solves {
 		p.caseRow("solve "+code(so.Name), func(c Case) string { return solveCell(c, i) })
 	}
-	p.caseRow("verdict", func(c Case) string {
-		if casePass(c) {
-			return "PASS"
-		}
-		return "**FAIL**"
-	})
+	p.caseRow("verdict", caseVerdictCell)
 	p.f("\n")
 }
 
@@ -207,12 +236,11 @@ func (p *page) caseRows() {
 				fv = code(f.Name) + " " + fv
 			}
 		}
-		verdict := "PASS"
+		verdict := caseVerdictCell(c)
 		var fails []string
 		for _, rq := range sh.Requires {
 			if !passes(c.Result, rq) {
 				fails = append(fails, code(rq.That))
-				verdict = "**FAIL**"
 			}
 		}
 		p.f("| [%s](#%s) | %s | %s | %s |\n", text(c.Case.Name), caseAnchor(c.Case.Name), fv, verdict, strings.Join(fails, ", "))
@@ -484,7 +512,7 @@ func casesJSON(in Input) []jsonCase {
 		}
 		for _, rq := range sh.Requires {
 			pass, evaluated := c.Result.Pass(rq)
-			jr := jsonCaseReq{That: rq.That, Pass: pass, Evaluated: evaluated, Chance: caseChance(sh, c, rq)}
+			jr := jsonCaseReq{That: rq.That, Pass: pass, Evaluated: evaluated, Chance: reqChance(c.Analysis, rq)}
 			if q, ok := sh.Quantity(rq.Subject); ok && c.Result.Known(q) {
 				v, unit := c.Result.Number(q)
 				jr.Value, jr.Unit = num(v), unit

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"strconv"
+	"strings"
 
 	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/internal/chart"
@@ -51,15 +52,27 @@ func (p *page) levelChart(ci analysis.Cascade) {
 	p.addChart("levels-"+ci.Chain.Name, "level diagram of "+ci.Chain.Name, func(b *bytes.Buffer) error { return chart.Levels(b, spec) })
 }
 
+// budgetChart draws a focus that is not in signal order as a waterfall of its running total
+// (the units of which the table gives), in the order of the table.
 func (p *page) budgetChart() {
 	a := p.in.Analysis
-	spec := chart.BarSpec{Title: "Where the budget goes: " + a.Focus.Name, Unit: "dB"}
-	for _, c := range a.Budget {
-		spec.Labels = append(spec.Labels, shorten(c.Item, 34))
-		spec.Values = append(spec.Values, c.Value)
-		spec.Units = append(spec.Units, c.Unit)
+	var axis []string
+	spec := chart.WaterfallSpec{Title: "Where the budget goes: " + a.Focus.Name}
+	prev, up := 0.0, p.focusUp()
+	for i, c := range a.Budget {
+		st := chart.Step{Label: shorten(c.Item, 34), Kind: chart.StepChange, From: prev, To: c.Total, Text: contribution(c), Good: up*c.Value > 0}
+		if i == 0 {
+			st.Kind, st.Text = chart.StepLevel, fmtNum(c.Total, c.TotalUnit)
+		}
+		spec.Steps = append(spec.Steps, st)
+		prev = c.Total
+		if len(axis) == 0 || axis[len(axis)-1] != c.TotalUnit {
+			axis = append(axis, c.TotalUnit)
+		}
 	}
-	p.addChart("budget", "contributions to "+a.Focus.Name, func(b *bytes.Buffer) error { return chart.Bars(b, spec) })
+	spec.Steps = append(spec.Steps, chart.Step{Label: shorten(a.Focus.Name, 34), Kind: chart.StepLevel, To: prev, Text: fmtNum(prev, a.Unit)})
+	spec.Axis = "running total (" + strings.Join(axis, ", then ") + ")"
+	p.addChart("budget", "running total of "+a.Focus.Name, func(b *bytes.Buffer) error { return chart.Waterfall(b, spec) })
 }
 
 func (p *page) histChart() {

@@ -42,12 +42,14 @@ type checkSheet struct {
 	Title        string       `json:"title"`
 	Hash         string       `json:"hash"`
 	Verdict      string       `json:"verdict"`
+	AtRisk       bool         `json:"at_risk"` // passes at nominal, holds in fewer than 90 % of the trials
 	Focus        *checkValue  `json:"focus"`
 	Requirements []checkReq   `json:"requirements"`
 	MonteCarlo   *checkMC     `json:"monte_carlo,omitempty"`
 	Diagnostics  []checkDiag  `json:"diagnostics"`
 	Cases        []checkCase  `json:"cases,omitempty"` // with [[case]]: every case checked, the first as above
 	counts       checkCounted // for the JUnit totals
+	risk         []string     // why the sheet is at risk, for the writers
 }
 
 type checkCounted struct{ failed, errors int }
@@ -56,6 +58,7 @@ type checkCounted struct{ failed, errors int }
 type checkCase struct {
 	Name         string      `json:"name"`
 	Verdict      string      `json:"verdict"` // pass or fail
+	AtRisk       bool        `json:"at_risk"`
 	Focus        *checkValue `json:"focus"`
 	Requirements []checkReq  `json:"requirements"`
 }
@@ -78,16 +81,22 @@ type checkReq struct {
 	Value     *float64 `json:"value"` // the quantity's value, in unit
 	Limit     *float64 `json:"limit"` // the bound, in unit
 	Unit      string   `json:"unit"`
-	Chance    *float64 `json:"chance,omitempty"` // Monte Carlo chance that it holds, where computed
+	Chance    *float64 `json:"chance,omitempty"`     // Monte Carlo chance that it holds, where computed
+	ChanceSE  *float64 `json:"chance_se,omitempty"`  // its binomial standard error
+	Worst     *float64 `json:"worst,omitempty"`      // the bounded quantity at the worst case against its bound, in unit
+	WorstPass *bool    `json:"worst_pass,omitempty"` // whether the bound holds at the worst case
+	trials    int      // the Monte Carlo trials behind Chance
+	worst     string   // Worst as the page writes it
 	File      string   `json:"file"`
 	Line      int      `json:"line"`
 	Column    int      `json:"column"`
 }
 
 type checkMC struct {
-	Trials int     `json:"trials"`
-	Seed   uint64  `json:"seed"`
-	PPass  float64 `json:"p_pass"` // chance that every requirement holds
+	Trials  int     `json:"trials"`
+	Seed    uint64  `json:"seed"`
+	PPass   float64 `json:"p_pass"`    // chance that every requirement holds
+	PPassSE float64 `json:"p_pass_se"` // its binomial standard error
 }
 
 type checkDiag struct {
@@ -128,8 +137,11 @@ func checkOf(c CheckInput) checkSheet {
 	var tol *analysis.Tolerance
 	if c.Analysis != nil && c.Analysis.Tolerance != nil {
 		tol = c.Analysis.Tolerance
-		cs.MonteCarlo = &checkMC{Trials: tol.Trials, Seed: tol.Seed, PPass: tol.PPass}
+		if tol.Trials > 0 {
+			cs.MonteCarlo = &checkMC{Trials: tol.Trials, Seed: tol.Seed, PPass: tol.PPass, PPassSE: tol.PPassSE}
+		}
 	}
+	cs.AtRisk = !c.Diags.HasErrors() && analysis.AtRisk(res, c.Analysis)
 	focusName := sh.Focus
 	if len(c.Cases) > 0 {
 		focusName = c.Cases[0].Case.FocusName(sh)
@@ -142,7 +154,7 @@ func checkOf(c CheckInput) checkSheet {
 	}
 	if len(c.Cases) > 1 {
 		for _, k := range c.Cases {
-			cc := checkCase{Name: k.Case.Name, Verdict: VerdictPass}
+			cc := checkCase{Name: k.Case.Name, Verdict: VerdictPass, AtRisk: analysis.AtRisk(k.Result, k.Analysis)}
 			cc.Focus, cc.Requirements = checkResult(k.Result, k.Case.FocusName(sh), k.Analysis)
 			for _, r := range cc.Requirements {
 				if !r.Pass {
@@ -163,26 +175,63 @@ func checkOf(c CheckInput) checkSheet {
 	if cs.counts.failed > 0 && cs.Verdict == VerdictPass {
 		cs.Verdict = VerdictFail
 	}
+	for _, cc := range cs.Cases {
+		cs.AtRisk = cs.AtRisk || cc.AtRisk
+	}
+	cs.AtRisk = cs.AtRisk && cs.Verdict == VerdictPass
+	if cs.AtRisk {
+		cs.risk = riskNotes(c)
+	}
 	return cs
+}
+
+// riskNotes says, for a sheet at risk, which case (when there are several) holds in fewer
+// than 90 % of the Monte Carlo trials.
+func riskNotes(c CheckInput) []string {
+	cases := c.Cases
+	if len(cases) == 0 {
+		cases = []Case{{Result: c.Result, Analysis: c.Analysis}}
+	}
+	var out []string
+	for _, k := range cases {
+		if !analysis.AtRisk(k.Result, k.Analysis) {
+			continue
+		}
+		t := k.Analysis.Tolerance
+		note := fmt.Sprintf("at risk: passes at nominal, but every requirement holds together in only %s of %s Monte Carlo trials (below %.0f %%)",
+			chanceText(t.PPass, t.PPassSE, t.Trials), analysis.Count(t.Trials), 100*analysis.AtRiskBelow)
+		if len(c.Cases) > 1 {
+			note = fmt.Sprintf("case %q: %s", k.Case.Name, note)
+		}
+		out = append(out, note)
+	}
+	return out
+}
+
+// reqRisk says that a requirement holding at nominal holds in fewer than 90 % of the trials,
+// or "" when it does not.
+func reqRisk(r checkReq) string {
+	if !r.Pass || r.Chance == nil || *r.Chance >= analysis.AtRiskBelow {
+		return ""
+	}
+	s := fmt.Sprintf("requirement holds at nominal but only in %s of the Monte Carlo trials: %s", chanceText(*r.Chance, *r.ChanceSE, r.trials), r.That)
+	if r.Worst != nil {
+		s += fmt.Sprintf(" (%s = %s at the worst case)", r.Quantity, r.worst)
+	}
+	return s
 }
 
 // checkResult works out the focus and every requirement's outcome of one evaluation.
 func checkResult(res *engine.Result, focusName string, a *analysis.Analysis) (*checkValue, []checkReq) {
 	sh := res.Sheet()
 	var fv *checkValue
-	var focus *engine.Quantity
 	if q, ok := sh.Quantity(focusName); ok {
-		focus = q
 		fv = &checkValue{Name: q.Name, Unit: unitName(q)}
 		if qv, known := res.Value(q); known {
 			v, _ := res.Number(q)
 			fv.Value = num(v)
 			fv.SI, fv.SIUnit = SI(qv)
 		}
-	}
-	var tol *analysis.Tolerance
-	if a != nil && a.Tolerance != nil && a.Focus == focus {
-		tol = a.Tolerance
 	}
 	reqs := []checkReq{}
 	for _, rq := range sh.Requires {
@@ -196,42 +245,18 @@ func checkResult(res *engine.Result, focusName string, a *analysis.Analysis) (*c
 				r.Value = num(v)
 			}
 			r.Limit = num(engine.Number(q, rq.Bound))
-			if tol != nil && q == focus && r.Limit != nil {
-				r.Chance = chance(tol, rq.Op, *r.Limit)
+		}
+		if rs, ok := spreadOf(a, rq); ok {
+			if r.Worst = num(rs.Worst); r.Worst != nil {
+				r.WorstPass, r.worst = &rs.WorstHolds, worstValue(sh, rs)
+			}
+			if a.Tolerance.Trials > 0 {
+				r.Chance, r.ChanceSE, r.trials = num(rs.Chance), num(rs.ChanceSE), a.Tolerance.Trials
 			}
 		}
 		reqs = append(reqs, r)
 	}
 	return fv, reqs
-}
-
-// chance is the share of Monte Carlo trials in which the focus meets a bound on itself; trials
-// that could not be evaluated count as failing, as they do for the chance that all requirements hold.
-func chance(t *analysis.Tolerance, op string, limit float64) *float64 {
-	if t.Trials == 0 {
-		return nil
-	}
-	n := 0
-	for _, v := range t.Samples {
-		var ok bool
-		switch op {
-		case ">=":
-			ok = v >= limit
-		case ">":
-			ok = v > limit
-		case "<=":
-			ok = v <= limit
-		case "<":
-			ok = v < limit
-		default:
-			return nil // == and != of a continuous value: not a useful chance
-		}
-		if ok {
-			n++
-		}
-	}
-	p := float64(n) / float64(t.Trials)
-	return &p
 }
 
 // CheckJSON writes check's verdicts as JSON ("format": 1 of the check output).
@@ -264,11 +289,12 @@ type junitSuites struct {
 }
 
 type junitSuite struct {
-	Name     string      `xml:"name,attr"`
-	Tests    int         `xml:"tests,attr"`
-	Failures int         `xml:"failures,attr"`
-	Errors   int         `xml:"errors,attr"`
-	Cases    []junitCase `xml:"testcase"`
+	Name      string      `xml:"name,attr"`
+	Tests     int         `xml:"tests,attr"`
+	Failures  int         `xml:"failures,attr"`
+	Errors    int         `xml:"errors,attr"`
+	Cases     []junitCase `xml:"testcase"`
+	SystemErr string      `xml:"system-err,omitempty"` // why a passing sheet is at risk
 }
 
 type junitCase struct {
@@ -303,6 +329,8 @@ func CheckJUnit(in []CheckInput) []byte {
 				msg := cr.prefix + requirementMessage(r)
 				jc.Failure = &junitProblem{Message: msg, Type: "requirement", Text: fmt.Sprintf("%s:%d:%d: %s", r.File, r.Line, r.Column, msg)}
 				su.Failures++
+			} else if risk := reqRisk(r); risk != "" {
+				jc.SystemErr = fmt.Sprintf("%s:%d:%d: %s%s", r.File, r.Line, r.Column, cr.prefix, risk)
 			}
 			su.Cases = append(su.Cases, jc)
 		}
@@ -317,6 +345,7 @@ func CheckJUnit(in []CheckInput) []byte {
 			}
 			su.Cases = append(su.Cases, jc)
 		}
+		su.SystemErr = strings.Join(s.risk, "\n")
 		su.Tests = len(su.Cases)
 		doc.Tests += su.Tests
 		doc.Failures += su.Failures
@@ -411,9 +440,18 @@ func CheckGitHub(in []CheckInput) []byte {
 		for _, cr := range caseReqs(s) {
 			if !cr.req.Pass {
 				ghLine(&b, "error", cr.req.File, cr.req.Line, cr.req.Column, cr.prefix+requirementMessage(cr.req))
+			} else if risk := reqRisk(cr.req); risk != "" && s.AtRisk {
+				ghLine(&b, "warning", cr.req.File, cr.req.Line, cr.req.Column, cr.prefix+risk)
 			}
 		}
-		fmt.Fprintf(&b, "%s: %s\n", s.File, strings.ToUpper(s.Verdict))
+		for _, note := range s.risk {
+			ghLine(&b, "warning", s.File, 0, 0, note)
+		}
+		verdict := strings.ToUpper(s.Verdict)
+		if s.AtRisk {
+			verdict += " at nominal, AT RISK"
+		}
+		fmt.Fprintf(&b, "%s: %s\n", s.File, verdict)
 	}
 	return b.Bytes()
 }

@@ -21,12 +21,14 @@ type jsonDoc struct {
 	Summary      string               `json:"summary,omitempty"`
 	Focus        string               `json:"focus"`
 	Pass         bool                 `json:"pass"`
+	AtRisk       bool                 `json:"at_risk"` // passes, but holds in fewer than 90 % of the trials
 	Quantities   map[string]jsonQ     `json:"quantities"`
 	Requirements []jsonReq            `json:"requirements"`
 	Chains       map[string]jsonChain `json:"chains"`
 	Sensitivity  []jsonSens           `json:"sensitivity"`
 	Budget       []jsonContribution   `json:"budget"`
-	Tolerance    any                  `json:"tolerance"` // *jsonTol, or an empty object
+	SignalFlow   []jsonFlowRow        `json:"signal_flow"` // the budget in signal order (flow.go); empty when the focus is not a level in signal order
+	Tolerance    any                  `json:"tolerance"`   // *jsonTol, or an empty object
 	Sweeps       []jsonSweep          `json:"sweeps"`
 	Solves       []jsonSolve          `json:"solves"`
 	Warnings     []string             `json:"warnings"`
@@ -51,9 +53,14 @@ type jsonQ struct {
 }
 
 type jsonReq struct {
-	That string `json:"that"`
-	Pass bool   `json:"pass"`
-	Note string `json:"note,omitempty"`
+	That      string   `json:"that"`
+	Pass      bool     `json:"pass"`
+	Note      string   `json:"note,omitempty"`
+	Worst     *float64 `json:"worst,omitempty"` // the bounded quantity at the worst case against the bound
+	WorstUnit string   `json:"worst_unit,omitempty"`
+	WorstPass *bool    `json:"worst_pass,omitempty"`
+	Chance    *float64 `json:"chance,omitempty"` // Monte Carlo chance that it holds
+	ChanceSE  *float64 `json:"chance_se,omitempty"`
 }
 
 type jsonStage struct {
@@ -69,6 +76,13 @@ type jsonStage struct {
 	OutDBm     *float64 `json:"signal_out_dbm,omitempty"`
 	IIP2DBm    *float64 `json:"iip2_dbm,omitempty"`
 	CumIIP2DBm *float64 `json:"cum_iip2_dbm,omitempty"`
+	OIP3DBm    *float64 `json:"oip3_dbm,omitempty"`
+	CumOIP3DBm *float64 `json:"cum_oip3_dbm,omitempty"`
+	IP1dBDBm   *float64 `json:"ip1db_dbm,omitempty"`
+	OP1dBDBm   *float64 `json:"op1db_dbm,omitempty"`
+	CumIP1dB   *float64 `json:"cum_ip1db_dbm,omitempty"`
+	CumOP1dB   *float64 `json:"cum_op1db_dbm,omitempty"`
+	BelowOP1dB *float64 `json:"below_op1db_db,omitempty"` // headroom at the chain input level
 }
 
 type jsonChain struct {
@@ -79,6 +93,10 @@ type jsonChain struct {
 	IIP3DBm *float64    `json:"iip3_dbm,omitempty"`
 	OIP3DBm *float64    `json:"oip3_dbm,omitempty"`
 	IIP2DBm *float64    `json:"iip2_dbm,omitempty"`
+	IP1dB   *float64    `json:"ip1db_dbm,omitempty"`
+	OP1dB   *float64    `json:"op1db_dbm,omitempty"`
+	InDBm   *float64    `json:"input_dbm,omitempty"`  // chain_input, when the group gives it
+	Backoff *float64    `json:"backoff_db,omitempty"` // with input_dbm
 	Error   string      `json:"error,omitempty"`
 }
 
@@ -96,14 +114,15 @@ type jsonContribution struct {
 }
 
 type jsonMC struct {
-	Trials int      `json:"trials"`
-	Seed   uint64   `json:"seed"`
-	PPass  float64  `json:"p_pass"`
-	P01    float64  `json:"p01"`
-	P50    float64  `json:"p50"`
-	P99    float64  `json:"p99"`
-	Failed int      `json:"failed"`
-	Shares []jShare `json:"variance_shares"`
+	Trials  int      `json:"trials"`
+	Seed    uint64   `json:"seed"`
+	PPass   float64  `json:"p_pass"`
+	PPassSE float64  `json:"p_pass_se"`
+	P01     float64  `json:"p01"`
+	P50     float64  `json:"p50"`
+	P99     float64  `json:"p99"`
+	Failed  int      `json:"failed"`
+	Shares  []jShare `json:"variance_shares"`
 }
 
 type jShare struct {
@@ -118,6 +137,31 @@ type jsonTol struct {
 	RSSSigma   float64 `json:"rss_sigma"`
 	Unit       string  `json:"unit"`
 	MonteCarlo jsonMC  `json:"monte_carlo"`
+	// Where each toleranced input sits in the worst case low and high, largest effect first.
+	WorstLowCorner  []jsonCorner `json:"worst_low_corner"`
+	WorstHighCorner []jsonCorner `json:"worst_high_corner"`
+}
+
+// jsonCorner is one input at a worst case: which limit, its value there, and the change of
+// the focus (in the tolerance's change unit: dB for a decibel focus) with it alone moved there.
+type jsonCorner struct {
+	Input  string   `json:"input"`
+	Limit  string   `json:"limit"` // low, high or nominal
+	Value  *float64 `json:"value"`
+	Unit   string   `json:"unit"`
+	SI     *float64 `json:"si"`
+	SIUnit string   `json:"si_unit"`
+	Effect *float64 `json:"effect"`
+}
+
+func cornersJSON(cs []analysis.Corner) []jsonCorner {
+	out := []jsonCorner{}
+	for _, c := range cs {
+		jc := jsonCorner{Input: c.Input, Limit: c.Limit, Value: num(c.Value), Unit: c.Unit, Effect: num(c.Effect)}
+		jc.SI, jc.SIUnit = siOfNumber(c.Value, c.Unit)
+		out = append(out, jc)
+	}
+	return out
 }
 
 type jsonSweep struct {
@@ -153,6 +197,8 @@ type jsonSolve struct {
 	SIUnit string   `json:"si_unit"`
 	Found  bool     `json:"found"`
 	Note   string   `json:"note,omitempty"`
+	// Warnings are the validity warnings of the models at the answer.
+	Warnings []string `json:"warnings,omitempty"`
 }
 
 func num(v float64) *float64 {
@@ -168,13 +214,23 @@ func JSON(in Input) []byte {
 	sh, r := in.Sheet, in.Result
 	doc := jsonDoc{Format: 2, Tolerance: struct{}{}, Title: sh.Title, Summary: sh.Summary, Focus: sh.Focus, Hash: sh.Hash, Pass: true,
 		Quantities: map[string]jsonQ{}, Chains: map[string]jsonChain{},
-		Requirements: []jsonReq{}, Sensitivity: []jsonSens{}, Sweeps: []jsonSweep{}, Solves: []jsonSolve{}, Warnings: []string{}, Budget: []jsonContribution{}}
+		Requirements: []jsonReq{}, Sensitivity: []jsonSens{}, Sweeps: []jsonSweep{}, Solves: []jsonSolve{}, Warnings: []string{}, Budget: []jsonContribution{}, SignalFlow: []jsonFlowRow{}}
 	doc.Quantities = quantitiesJSON(sh, r)
 	for _, rq := range sh.Requires {
 		pass := passes(r, rq)
 		doc.Pass = doc.Pass && pass
-		doc.Requirements = append(doc.Requirements, jsonReq{That: rq.That, Pass: pass, Note: rq.Note})
+		jr := jsonReq{That: rq.That, Pass: pass, Note: rq.Note}
+		if rs, ok := spreadOf(in.Analysis, rq); ok {
+			if jr.Worst = num(rs.Worst); jr.Worst != nil {
+				jr.WorstUnit, jr.WorstPass = rs.Unit, &rs.WorstHolds
+			}
+			if jr.Chance = reqChance(in.Analysis, rq); jr.Chance != nil {
+				jr.ChanceSE = num(rs.ChanceSE)
+			}
+		}
+		doc.Requirements = append(doc.Requirements, jr)
 	}
+	doc.AtRisk = analysis.AtRisk(r, in.Analysis)
 	for _, ci := range analysis.Cascades(r) {
 		doc.Chains[ci.Chain.Name] = chainJSON(ci)
 	}
@@ -228,7 +284,13 @@ func chainJSON(ci analysis.Cascade) jsonChain {
 	if c.HasIIP2 {
 		jc.IIP2DBm = num(c.IIP2)
 	}
+	if c.HasIP1dB {
+		jc.IP1dB, jc.OP1dB = num(c.IP1dB), num(c.OP1dB)
+	}
 	in, hasIn := inputDBm(ci)
+	if hasIn {
+		jc.InDBm, jc.Backoff = num(in), num(ci.BackoffDB)
+	}
 	for i, st := range ci.Stages {
 		r := c.Stages[i]
 		js := jsonStage{Stage: st.Name, GainDB: st.GainDB, NFDB: st.NFDB, CumGainDB: r.CumGainDB, CumNFDB: r.CumNFDB, NoiseShare: r.NoiseShare}
@@ -247,6 +309,7 @@ func chainJSON(ci analysis.Cascade) jsonChain {
 		if hasIn {
 			js.OutDBm = num(in + r.CumGainDB)
 		}
+		stageLinearityJSON(&js, ci, i)
 		jc.Stages = append(jc.Stages, js)
 	}
 	return jc
@@ -259,12 +322,14 @@ func analysisJSON(doc *jsonDoc, a *analysis.Analysis, sh *engine.Sheet) {
 	for _, c := range a.Budget {
 		doc.Budget = append(doc.Budget, jsonContribution{Item: c.Item, Value: c.Value, Unit: c.Unit})
 	}
+	doc.SignalFlow = flowJSON(a.Flow)
 	if t := a.Tolerance; t != nil {
 		jt := &jsonTol{Nominal: t.Nominal, WorstLow: t.WorstLow, WorstHigh: t.WorstHigh, RSSSigma: t.RSSSigma, Unit: a.Unit,
-			MonteCarlo: jsonMC{Trials: t.Trials, Seed: t.Seed, PPass: t.PPass, P01: t.P01, P50: t.P50, P99: t.P99, Failed: t.Failed, Shares: []jShare{}}}
+			MonteCarlo: jsonMC{Trials: t.Trials, Seed: t.Seed, PPass: t.PPass, PPassSE: t.PPassSE, P01: t.P01, P50: t.P50, P99: t.P99, Failed: t.Failed, Shares: []jShare{}}}
 		for _, s := range t.Shares {
 			jt.MonteCarlo.Shares = append(jt.MonteCarlo.Shares, jShare{Input: s.Input, Share: s.Share})
 		}
+		jt.WorstLowCorner, jt.WorstHighCorner = cornersJSON(t.LowCorner), cornersJSON(t.HighCorner)
 		doc.Tolerance = jt
 	}
 	for _, sw := range a.Sweeps {
@@ -295,7 +360,7 @@ func analysisJSON(doc *jsonDoc, a *analysis.Analysis, sh *engine.Sheet) {
 func solvesJSON(a *analysis.Analysis) []jsonSolve {
 	out := []jsonSolve{}
 	for _, r := range a.Solves {
-		js := jsonSolve{Name: r.Solve.Name, Unit: r.Unit, Found: r.Found, Note: r.Note}
+		js := jsonSolve{Name: r.Solve.Name, Unit: r.Unit, Found: r.Found, Note: r.Note, Warnings: r.Warnings}
 		_, js.SIUnit = siOfNumber(1, r.Unit)
 		if r.Found {
 			js.Value = num(r.Value)

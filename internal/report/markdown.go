@@ -38,9 +38,11 @@ func Markdown(in Input) ([]byte, []File) {
 	}
 	if p.multiCase() {
 		p.caseVerdict()
+		p.warnings()
 		p.caseLineItems()
 	} else {
 		p.verdict()
+		p.warnings()
 		p.lineItems()
 	}
 	p.cascades()
@@ -53,7 +55,6 @@ func Markdown(in Input) ([]byte, []File) {
 	p.sweeps()
 	p.solves()
 	p.freqPlans()
-	p.warnings()
 	p.cautions()
 	p.footer()
 	return p.b.Bytes(), p.files
@@ -118,6 +119,8 @@ func (p *page) verdict() {
 	switch {
 	case len(sh.Requires) == 0:
 		p.f("No requirements are set; add `[[require]]` entries to have the page check them.\n\n")
+	case fails == 0 && unknown == 0 && atRiskLine(p.r, p.in.Analysis) != "":
+		p.f("%s\n\n", atRiskLine(p.r, p.in.Analysis))
 	case fails == 0 && unknown == 0:
 		p.f("**PASS: every requirement holds** (%d of %d).\n\n", len(sh.Requires), len(sh.Requires))
 	default:
@@ -126,6 +129,9 @@ func (p *page) verdict() {
 			p.f(" (%d could not be evaluated)", unknown)
 		}
 		p.f(".**\n\n")
+	}
+	if line := spreadLine(p.r, p.in.Analysis); line != "" {
+		p.f("%s\n\n", line)
 	}
 	if f, ok := sh.Quantity(sh.Focus); ok {
 		p.f("Focus: %s = **%s**.\n\n", code(f.Name), p.r.Display(f))
@@ -141,7 +147,12 @@ func (p *page) verdict() {
 	if len(sh.Requires) == 0 {
 		return
 	}
-	p.f("| requirement | value | result | note |\n| --- | --- | --- | --- |\n")
+	tol := p.in.Analysis != nil && p.in.Analysis.Tolerance != nil
+	if tol {
+		p.f("| requirement | nominal | worst case | chance it holds | result | note |\n| --- | --- | --- | --- | --- | --- |\n")
+	} else {
+		p.f("| requirement | value | result | note |\n| --- | --- | --- | --- |\n")
+	}
 	for _, rq := range sh.Requires {
 		value := ""
 		if q, ok := sh.Quantity(rq.Subject); ok {
@@ -154,9 +165,16 @@ func (p *page) verdict() {
 		case !passes(p.r, rq):
 			result = "**FAIL**"
 		}
-		p.f("| %s | %s | %s | %s |\n", code(rq.That), value, result, text(rq.Note))
+		if rs, ok := spreadOf(p.in.Analysis, rq); ok {
+			p.f("| %s | %s | %s | %s | %s | %s |\n", code(rq.That), value, worstText(sh, rs), requireChance(p.in.Analysis.Tolerance, rs), result, text(rq.Note))
+		} else {
+			p.f("| %s | %s | %s | %s |\n", code(rq.That), value, result, text(rq.Note))
+		}
 	}
 	p.f("\n")
+	if tol {
+		p.f("Worst case: every toleranced input at the limit that moves the value against its bound. Chance: the share of Monte Carlo trials in which the requirement holds, ± its standard error sqrt(p(1 − p)/n).\n\n")
+	}
 }
 
 func solveSentence(sh *engine.Sheet, r analysis.SolveResult) string {
@@ -168,7 +186,15 @@ func solveSentence(sh *engine.Sheet, r analysis.SolveResult) string {
 		}
 		return fmt.Sprintf("%s: %s does not reach %s for %s between %s and %s: %s.", code(so.Name), code(so.SoThat), inUnitOf(sh, so.SoThat, so.Equals), code(so.Vary), inUnitOf(sh, so.Vary, so.Within[0]), inUnitOf(sh, so.Vary, so.Within[1]), text(why))
 	}
-	return fmt.Sprintf("%s: %s reaches %s at %s = **%s**.", code(so.Name), code(so.SoThat), inUnitOf(sh, so.SoThat, so.Equals), code(so.Vary), fmtNum(r.Value, r.Unit))
+	return fmt.Sprintf("%s: %s reaches %s at %s = **%s**%s.", code(so.Name), code(so.SoThat), inUnitOf(sh, so.SoThat, so.Equals), code(so.Vary), fmtNum(r.Value, r.Unit), solveWarnings(r))
+}
+
+// solveWarnings says, beside a solve's answer, that a model is outside its range there.
+func solveWarnings(r analysis.SolveResult) string {
+	if len(r.Warnings) == 0 {
+		return ""
+	}
+	return "; a model is outside its range there: " + text(strings.Join(r.Warnings, "; "))
 }
 
 func tolText(t *engine.Tol) string {
@@ -286,13 +312,14 @@ func (p *page) cascades() {
 			p.f(", OIP3 %s dBm", db2(c.OIP3))
 		}
 		if c.HasIP1dB {
-			p.f(", input P1dB %s dBm", db2(c.IP1dB))
+			p.f(", input P1dB %s dBm, output P1dB %s dBm", db2(c.IP1dB), db2(c.OP1dB))
 		}
 		if c.HasIIP2 {
 			p.f(", IIP2 %s dBm (stages added in phase, a worst case)", db2(c.IIP2))
 		}
 		p.f(".\n\n")
 		p.f("%s\n\n", dominantStages(ci))
+		p.linearity(ci)
 		for _, n := range ci.Notes {
 			p.f("- Note: %s.\n", text(n))
 		}
@@ -344,16 +371,19 @@ func (p *page) budget() {
 		p.chainShares()
 		return
 	}
+	if a.Flow != nil {
+		p.signalFlow()
+		p.chainShares()
+		return
+	}
 	abs := 0.0
 	for _, c := range a.Budget {
 		abs += math.Abs(c.Value)
 	}
-	p.f("%s = %s is the sum of these terms, largest first (followed through the quantities its formula names):\n\n", code(a.Focus.Name), p.r.Display(a.Focus))
+	p.f("%s = %s is not one level carried along a signal path by gains and losses in dB, so its terms are listed as a sum (followed through the quantities its formula names): those with a reference (dBW, dBHz, dB/K) as the formula writes them, then the gains and losses in dB, largest first:\n\n", code(a.Focus.Name), p.r.Display(a.Focus))
 	p.f("| # | item | contribution | running total | share of the total swing |\n| ---: | --- | ---: | ---: | ---: |\n")
-	run := 0.0
 	for i, c := range a.Budget {
-		run += c.Value
-		p.f("| %d | %s | %s %s | %s | %s |\n", i+1, code(c.Item), signed(c.Value), c.Unit, db2(run), pct(math.Abs(c.Value)/abs))
+		p.f("| %d | %s | %s | %s | %s |\n", i+1, code(c.Item), contribution(c), fmtNum(c.Total, c.TotalUnit), pct(math.Abs(c.Value)/abs))
 	}
 	p.f("| | **total** | | **%s %s** | |\n\n", db2(engine.Number(a.Focus, a.FocusValue)), a.Unit)
 	p.budgetChart()
@@ -373,21 +403,6 @@ func (p *page) chainShares() {
 	}
 }
 
-func (p *page) sensitivity() {
-	a := p.in.Analysis
-	p.f("## Sensitivity\n\n")
-	if len(a.Sensitivity) == 0 {
-		p.f("%s depends on no input.\n\n", code(a.Focus.Name))
-		return
-	}
-	p.f("Change of %s when one input rises by 1 dB (decibel inputs) or 10 %% (linear inputs), every other input at its nominal value; largest first:\n\n", code(a.Focus.Name))
-	p.f("| input | step | change of %s |\n| --- | ---: | ---: |\n", text(a.Focus.Name))
-	for _, s := range a.Sensitivity {
-		p.f("| %s | +%s | %s |\n", p.inputName(s.Input), s.Per, signedIn(s.Change, a.ChangeUnit))
-	}
-	p.f("\n")
-}
-
 func (p *page) tolerance() {
 	a := p.in.Analysis
 	t := a.Tolerance
@@ -405,12 +420,16 @@ func (p *page) tolerance() {
 	p.f("| root-sum-square σ | %s |\n", fmtNum(t.RSSSigma, a.ChangeUnit))
 	if t.Trials == 0 {
 		p.f("\nMonte Carlo: being computed; the page is completed when the trials are done.\n\n")
+		p.worstCorners()
 		return
 	}
 	p.f("| Monte Carlo 1 %% point | %s |\n", fmtNum(t.P01, u))
 	p.f("| Monte Carlo median | %s |\n", fmtNum(t.P50, u))
 	p.f("| Monte Carlo 99 %% point | %s |\n", fmtNum(t.P99, u))
-	p.f("| chance that every requirement holds | **%s** |\n\n", pct(t.PPass))
+	if len(p.in.Sheet.Requires) > 0 {
+		p.f("| chance that every requirement holds | **%s** |\n", chanceText(t.PPass, t.PPassSE, t.Trials))
+	}
+	p.f("\n")
 	p.f("Monte Carlo: %d trials, seed %d", t.Trials, t.Seed)
 	if t.Failed > 0 {
 		p.f("; %d trials could not be evaluated and count as failing", t.Failed)
@@ -429,6 +448,7 @@ func (p *page) tolerance() {
 		}
 		p.f("\n")
 	}
+	p.worstCorners()
 	p.histChart()
 }
 
@@ -491,7 +511,7 @@ func (p *page) solves() {
 		so := r.Solve
 		res := "no crossing in range"
 		if r.Found {
-			res = "**" + fmtNum(r.Value, r.Unit) + "**"
+			res = "**" + fmtNum(r.Value, r.Unit) + "**" + solveWarnings(r)
 		} else if r.Note != "" {
 			res = text(r.Note)
 		}

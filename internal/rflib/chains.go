@@ -29,12 +29,19 @@ var chains = []*engine.Func{
 			}
 			return result(c.OIP3, uDBm, "OIP3")
 		}),
-	cascadeFunc("cascade_ip1db", "dBm", "Input 1 dB compression point of a chain, cascaded like the intercepts (a common approximation).", "common practice, no source",
+	cascadeFunc("cascade_ip1db", "dBm", "Input 1 dB compression point of a chain, cascaded like the intercepts (a common approximation); stages without ip1db or op1db count as never compressing, so it is then an upper bound (the cascade table names them).", "common practice, no source",
 		func(c rfmath.Cascade) (units.Q, error) {
 			if !c.HasIP1dB {
 				return units.Q{}, fmt.Errorf("no stage has ip1db or op1db")
 			}
 			return result(c.IP1dB, uDBm, "IP1dB")
+		}),
+	cascadeFunc("cascade_op1db", "dBm", "Output 1 dB compression point of a chain: the cascaded input P1dB plus the total gain less 1 dB (the gain is 1 dB compressed there); stages without ip1db or op1db count as never compressing, as in cascade_ip1db.", "1 dB compression point definition (Razavi, RF Microelectronics, §2.2.2); cascade: common practice, no source",
+		func(c rfmath.Cascade) (units.Q, error) {
+			if !c.HasIP1dB {
+				return units.Q{}, fmt.Errorf("no stage has ip1db or op1db")
+			}
+			return result(c.OP1dB, uDBm, "OP1dB")
 		}),
 }
 

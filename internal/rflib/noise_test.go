@@ -76,6 +76,7 @@ te3   = "= cascade_te(chain3)"
 iip3  = "= cascade_iip3(chain3)"
 oip3  = "= cascade_oip3(chain3)"
 p1    = "= cascade_ip1db(chain3)"
+op1   = "= cascade_op1db(chain3)"
 pnf   = "= cascade_nf(passive)"
 pgain = "= cascade_gain(passive)"
 
@@ -127,6 +128,7 @@ loss  = "3 dB"
 		{"rx.iip3", "dBm", iip3Cascade([2]float64{-2, 50}, [2]float64{20, 30 - 20}, [2]float64{-6, 15}), 1e-9, "intercept cascade, LNA IIP3 = OIP3 − gain"},
 		{"rx.oip3", "dBm", iip3Cascade([2]float64{-2, 50}, [2]float64{20, 10}, [2]float64{-6, 15}) + 12, 1e-9, "OIP3 = IIP3 + total gain"},
 		{"rx.p1", "dBm", iip3Cascade([2]float64{-2, 40}, [2]float64{20, 18 - 20 + 1}, [2]float64{-6, 5}), 1e-9, "IP1dB cascade (common practice, no source); input P1dB = OP1dB − gain + 1 dB"},
+		{"rx.op1", "dBm", iip3Cascade([2]float64{-2, 40}, [2]float64{20, 18 - 20 + 1}, [2]float64{-6, 5}) + 12 - 1, 1e-9, "output P1dB = input P1dB + gain − 1 dB (Razavi, RF Microelectronics, §2.2.2)"},
 		{"rx.pnf", "dB", 3, 1e-9, "passive loss at T0: NF = loss (IEEE T0 = 290 K)"},
 		{"rx.pgain", "dB", -3, 1e-9, "passive loss: gain = −loss"},
 	}

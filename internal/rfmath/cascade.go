@@ -15,6 +15,14 @@ type Stage struct {
 	HasIIP2  bool
 }
 
+// OIP3 is the stage's output third-order intercept, dBm: IIP3 + gain (valid when HasIIP3).
+func (s Stage) OIP3() float64 { return s.IIP3 + s.GainDB }
+
+// OP1dB is the stage's output 1 dB compression point, dBm: IP1dB + gain − 1 dB, since at
+// that point the gain has fallen 1 dB (the definition of the 1 dB compression point;
+// Razavi, RF Microelectronics, 2nd ed., §2.2.2, gain compression; section recalled from memory). Valid when HasIP1dB.
+func (s Stage) OP1dB() float64 { return s.IP1dB + s.GainDB - 1 }
+
 // StageResult holds the cascade figures from the chain input up to and
 // including one stage, plus that stage's contributions to the whole chain.
 type StageResult struct {
@@ -25,10 +33,16 @@ type StageResult struct {
 	CumIIP3 float64
 	HasIIP3 bool
 
+	// CumOIP3 is the output third-order intercept (dBm) of the cascade up to
+	// and including this stage: CumIIP3 + CumGainDB (valid when HasIIP3).
+	CumOIP3 float64
+
 	// CumIP1dB is the input-referred 1 dB compression point (dBm) of the
-	// cascade up to and including this stage.
-	CumIP1dB float64
-	HasIP1dB bool
+	// cascade up to and including this stage, and CumOP1dB the output one
+	// (CumIP1dB + CumGainDB − 1 dB). Stages without a P1dB count as never
+	// compressing, so both are upper bounds when a stage lacks one.
+	CumIP1dB, CumOP1dB float64
+	HasIP1dB           bool
 
 	// CumIIP2 is the input-referred IIP2 (dBm) of the cascade up to and
 	// including this stage; HasIIP2 is false while no stage so far has one.
@@ -55,8 +69,8 @@ type Cascade struct {
 	IIP3, OIP3 float64 // input / output third-order intercept, dBm
 	HasIIP3    bool
 
-	IP1dB    float64 // input-referred 1 dB compression point, dBm
-	HasIP1dB bool
+	IP1dB, OP1dB float64 // input- / output-referred 1 dB compression point, dBm
+	HasIP1dB     bool
 
 	IIP2, OIP2 float64 // input / output second-order intercept, dBm
 	HasIIP2    bool
@@ -85,8 +99,10 @@ type Cascade struct {
 // product is not taken into account, so this is a bound).
 //
 // The 1 dB compression points are cascaded with the same expression, a
-// common approximation. Stages without an IIP3 (or IP1dB) are treated as
-// perfectly linear. An empty chain has 0 dB gain and 0 dB noise figure.
+// common approximation (common practice, no source: it holds when each stage
+// compresses like a memoryless cubic, whose P1dB sits a fixed 9.6 dB under its
+// IIP3, Razavi, RF Microelectronics, §2.2). Stages without an IIP3 (or IP1dB)
+// are treated as perfectly linear, so the cascade is then an upper bound. An empty chain has 0 dB gain and 0 dB noise figure.
 func CascadeChain(stages []Stage) Cascade {
 	var res Cascade
 	res.Compute(stages)
@@ -142,9 +158,11 @@ func (res *Cascade) Compute(stages []Stage) {
 		r.CumTeK = T0 * sumN
 		if haveIP3 {
 			r.CumIIP3, r.HasIIP3 = -10*math.Log10(sumIP3), true
+			r.CumOIP3 = r.CumIIP3 + gainDB
 		}
 		if haveP1 {
 			r.CumIP1dB, r.HasIP1dB = -10*math.Log10(sumP1), true
+			r.CumOP1dB = r.CumIP1dB + gainDB - 1
 		}
 		if haveIP2 {
 			r.CumIIP2, r.HasIIP2 = -20*math.Log10(sumIP2), true
@@ -172,12 +190,20 @@ func (res *Cascade) Compute(stages []Stage) {
 	}
 	if haveP1 {
 		res.IP1dB, res.HasIP1dB = -10*math.Log10(sumP1), true
+		res.OP1dB = res.IP1dB + gainDB - 1
 	}
 	if haveIP2 {
 		res.IIP2, res.HasIIP2 = -20*math.Log10(sumIP2), true
 		res.OIP2 = res.IIP2 + gainDB
 	}
 }
+
+// CubicIP3OverP1dB is how far, in dB, the input intercept IIP3 lies above the input 1 dB
+// compression point of a memoryless stage y = a1·x + a3·x³ (a3 of opposite sign to a1):
+// the gain falls by 1 dB at A² = (1 − 10^(−1/20))·(4/3)·|a1/a3| and the intercept is at
+// A² = (4/3)·|a1/a3|, so the ratio is −10·log10(1 − 10^(−1/20)) ≈ 9.64 dB (Razavi, RF
+// Microelectronics, §2.2: "IP3 is about 9.6 dB above the 1-dB compression point").
+var CubicIP3OverP1dB = -10 * math.Log10(1-math.Pow(10, -1.0/20))
 
 // IM3 returns the output level in dBm of each two-tone third-order
 // intermodulation product for a per-tone output power pout (dBm) and output

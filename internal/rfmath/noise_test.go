@@ -1,6 +1,7 @@
 package rfmath
 
 import (
+	"fmt"
 	"math"
 	"testing"
 )
@@ -121,4 +122,36 @@ func TestIntermodRefs(t *testing.T) {
 		{"SFDR geometry", SFDR(-5, -110), sfdrGeo(-5, -110), 1e-12, false}, // intercept geometry (Pozar)
 		{"SFDR geometry 2", SFDR(12, -95), sfdrGeo(12, -95), 1e-12, false}, // intercept geometry (Pozar)
 	})
+}
+
+// TestCascadeOutputReferred checks the output-referred points against the output form of the
+// cascade, computed here independently stage by stage: for a stage of gain G following a
+// cascade with output intercept OIP3', the new output intercept is
+// 1/OIP3 = 1/(G·OIP3') + 1/OIP3_stage in mW (Pozar, Microwave Engineering, 4th ed., §10.3,
+// the third-order intercept of a cascade; the formula recalled from memory).
+func TestCascadeOutputReferred(t *testing.T) {
+	stages := []Stage{
+		{GainDB: -2, NFDB: 2, IIP3: 35, HasIIP3: true, IP1dB: 25, HasIP1dB: true},
+		{GainDB: 18, NFDB: 0.9, IIP3: 12, HasIIP3: true, IP1dB: 2, HasIP1dB: true},
+		{GainDB: 6, NFDB: 9, IIP3: 12, HasIIP3: true},
+		{GainDB: 20, NFDB: 3.5, IIP3: 15, HasIIP3: true, IP1dB: 5, HasIP1dB: true},
+	}
+	c := CascadeChain(stages)
+	mw := func(dbm float64) float64 { return math.Pow(10, dbm/10) }
+	oip3 := math.Inf(1) // the cascade before the first stage adds no distortion
+	var refs []ref
+	for i, s := range stages {
+		g := mw(s.GainDB)
+		oip3 = 1 / (1/(g*oip3) + 1/mw(s.IIP3+s.GainDB))
+		refs = append(refs, ref{fmt.Sprintf("cum OIP3 after stage %d", i+1), c.Stages[i].CumOIP3, db(oip3), 1e-9, false}) // Pozar §10.3, output form
+	}
+	refs = append(refs,
+		ref{"chain OIP3", c.OIP3, db(oip3), 1e-9, false},                                                      // Pozar §10.3, output form
+		ref{"stage OIP3 = IIP3 + G", stages[1].OIP3(), 30, 1e-12, false},                                      // intercept definition (Pozar §10.3)
+		ref{"stage OP1dB = IP1dB + G − 1 dB", stages[1].OP1dB(), 19, 1e-12, false},                            // 1 dB compression definition (Razavi §2.2.2)
+		ref{"chain OP1dB = IP1dB + G − 1 dB", c.OP1dB, c.IP1dB + c.GainDB - 1, 1e-12, false},                  // 1 dB compression definition (Razavi §2.2.2)
+		ref{"cum OP1dB after stage 2", c.Stages[1].CumOP1dB, c.Stages[1].CumIP1dB + 16 - 1, 1e-12, false},     // 1 dB compression definition (Razavi §2.2.2)
+		ref{"cum IP1dB passes the P1dB-less mixer", c.Stages[2].CumIP1dB, c.Stages[1].CumIP1dB, 1e-12, false}, // a stage without P1dB is taken as never compressing (model assumption, stated on the page)
+	)
+	checkRefs(t, refs)
 }
