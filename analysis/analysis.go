@@ -12,6 +12,7 @@ import (
 	"math/rand/v2"
 	"runtime"
 	"sort"
+	"sync"
 
 	"github.com/rfledger/rfledger/engine"
 	"github.com/rfledger/rfledger/engine/numeric"
@@ -231,6 +232,10 @@ type focusAt struct {
 	fu    *units.Unit // the focus's report unit
 }
 
+// perturbOnly makes the analyses recompute cones even where the focus has an affine form
+// (the tests compare the two ways).
+var perturbOnly bool
+
 func newFocusAt(r *engine.Result, focus *engine.Quantity) *focusAt {
 	return &focusAt{nom: r, sc: r.Scenario(), focus: focus, fu: reportUnit(focus)}
 }
@@ -250,6 +255,38 @@ func (fa *focusAt) at(ins []*engine.Quantity, vals []units.Q, cone *engine.Cone)
 	return x, ok && !math.IsNaN(x)
 }
 
+// linearThreshold is the number of inputs from which an analysis takes each input's effect
+// on the focus from the focus's affine form, when it has one, rather than recomputing the
+// input's cone: one backward pass over the formulas instead of inputs × cone. Below it the
+// cones are small and recomputing keeps the figures exactly as evaluating gives them (the
+// two agree to within rounding; see TestLinearMatchesPerturbation).
+const linearThreshold = 64
+
+// linear returns the focus's affine form in the inputs, or nil when there are few inputs or
+// the focus is not affine in them.
+func (fa *focusAt) linear(ins []*engine.Quantity) *engine.Linear {
+	if len(ins) < linearThreshold || perturbOnly {
+		return nil
+	}
+	l, ok := fa.nom.Linear(ins, []*engine.Quantity{fa.focus}, false)
+	if !ok {
+		return nil
+	}
+	return l
+}
+
+// linearAt is at for input i of l alone set to x.
+func (fa *focusAt) linearAt(l *engine.Linear, i int, x float64) (float64, bool) {
+	y, ok := l.At(0, i, x)
+	if !ok {
+		return math.NaN(), false
+	}
+	v, _ := fa.nom.Value(fa.focus)
+	v.V = y
+	f := numberIn(fa.fu, v)
+	return f, !math.IsNaN(f)
+}
+
 // step returns an input raised by 1 dB (decibel inputs) or by 10 % (linear inputs).
 func step(q units.Q) (units.Q, string) {
 	if q.K == units.Level || q.K == units.Rate {
@@ -265,10 +302,18 @@ func (fa *focusAt) sensitivity() []Sensitivity {
 	fv, _ := fa.nom.Value(fa.focus)
 	f0 := numberIn(fa.fu, fv)
 	var out []Sensitivity
-	for _, q := range s.Inputs(fa.focus) {
+	ins := s.Inputs(fa.focus)
+	lin := fa.linear(ins)
+	for i, q := range ins {
 		nv, _ := fa.nom.Value(q)
 		up, per := step(nv)
-		v, ok := fa.at([]*engine.Quantity{q}, []units.Q{up}, s.Cone(q))
+		var v float64
+		var ok bool
+		if lin != nil {
+			v, ok = fa.linearAt(lin, i, up.V)
+		} else {
+			v, ok = fa.at([]*engine.Quantity{q}, []units.Q{up}, s.Cone(q))
+		}
 		change := v - f0
 		if !ok {
 			change = math.NaN()
@@ -330,9 +375,19 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 	var rss float64
 	for i, in := range ins {
 		qs[i] = in.q
-		cone := s.Cone(in.q)
-		fl, okl := fa.at(qs[i:i+1], []units.Q{in.lo}, cone)
-		fh, okh := fa.at(qs[i:i+1], []units.Q{in.hi}, cone)
+	}
+	lin := fa.linear(qs)
+	for i, in := range ins {
+		var fl, fh float64
+		var okl, okh bool
+		if lin != nil {
+			fl, okl = fa.linearAt(lin, i, in.lo.V)
+			fh, okh = fa.linearAt(lin, i, in.hi.V)
+		} else {
+			cone := s.Cone(in.q)
+			fl, okl = fa.at(qs[i:i+1], []units.Q{in.lo}, cone)
+			fh, okh = fa.at(qs[i:i+1], []units.Q{in.hi}, cone)
+		}
 		lowCorner[i], highCorner[i] = in.nom, in.nom
 		low, high := corner(in.q, "nominal", in.nom, math.NaN()), corner(in.q, "nominal", in.nom, math.NaN())
 		if okl && okh {
@@ -383,21 +438,41 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 		workers[w] = nom.Scenario()
 		holds[w] = make([]int, len(s.Requires))
 	}
+	// When the focus and what the requirements read are affine in the toleranced inputs, a
+	// trial computes them from their affine form (a multiply-add per input) instead of
+	// recomputing the whole cone.
+	var mcLin *engine.Linear
+	if len(ins) >= linearThreshold && !perturbOnly {
+		if l, ok := nom.Linear(qs, []*engine.Quantity{focus}, true); ok {
+			mcLin = l
+		}
+	}
 	var progress func(int)
 	if opt.Progress != nil {
 		progress = func(done int) { opt.Progress("Monte Carlo", done, n) }
 	}
+	samplers := make([]numeric.Sampler, len(ins))
+	for i, in := range ins {
+		samplers[i] = numeric.NewSampler(in.dist, in.nom.V, in.lo.V, in.hi.V)
+	}
 	numeric.Trials(n, opt.Workers, opt.Seed, func(w, trial int, r *rand.Rand) {
 		sc := workers[w]
 		row := draws[trial*len(ins) : (trial+1)*len(ins)]
-		for i, in := range ins {
-			v := in.nom
-			v.V = numeric.Draw(r, in.dist, in.nom.V, in.lo.V, in.hi.V)
-			row[i] = v.V
-			sc.Set(in.q, v)
+		if mcLin != nil {
+			for i := range samplers {
+				row[i] = samplers[i].Draw(r)
+			}
+			sc.RunLinear(mcLin, row)
+		} else {
+			for i, in := range ins {
+				v := in.nom
+				v.V = samplers[i].Draw(r)
+				row[i] = v.V
+				sc.Set(in.q, v)
+			}
+			sc.Point(trial)
+			sc.Run(union)
 		}
-		sc.Point(trial)
-		sc.Run(union)
 		focusVals[trial] = math.NaN()
 		v, ok := sc.Value(focus)
 		if ok {
@@ -445,7 +520,7 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 		t.P50 = numeric.Quantile(samples, 0.50)
 		t.P99 = numeric.Quantile(samples, 0.99)
 	}
-	t.Shares = varianceShares(focusVals, draws, len(ins), func(i int) string { return ins[i].q.Name })
+	t.Shares = varianceShares(focusVals, draws, len(ins), opt.Workers, func(i int) string { return ins[i].q.Name })
 	return t
 }
 
@@ -459,52 +534,33 @@ func sortCorners(cs []Corner) {
 
 // varianceShares estimates each input's share of the focus variance as its squared
 // correlation with the focus, normalised to sum to 1 (exact for a focus linear in
-// independent inputs).
-func varianceShares(f, draws []float64, k int, name func(int) string) []Share {
+// independent inputs). The inputs' sums are split among workers by blocks of inputs; each
+// input's sums run over the trials in order whatever the split, so the shares do not
+// depend on the number of workers.
+func varianceShares(f, draws []float64, k, workers int, name func(int) string) []Share {
 	n := len(f)
 	// Two passes (means, then centred sums): the one-pass formula cancels catastrophically
 	// when the focus barely moves.
-	var my float64
+	var my, vy float64
 	var m int
-	mx := make([]float64, k)
 	for t := range n {
-		if math.IsNaN(f[t]) {
-			continue
+		if !math.IsNaN(f[t]) {
+			my += f[t]
+			m++
 		}
-		my += f[t]
-		for i := range k {
-			mx[i] += draws[t*k+i]
-		}
-		m++
 	}
 	corr2 := make([]float64, k)
 	if m >= 2 {
 		my /= float64(m)
-		for i := range k {
-			mx[i] /= float64(m)
-		}
-		var vy float64
-		vx := make([]float64, k)
-		cov := make([]float64, k)
 		for t := range n {
-			if math.IsNaN(f[t]) {
-				continue
-			}
-			dy := f[t] - my
-			vy += dy * dy
-			for i := range k {
-				dx := draws[t*k+i] - mx[i]
-				vx[i] += dx * dx
-				cov[i] += dx * dy
+			if !math.IsNaN(f[t]) {
+				dy := f[t] - my
+				vy += dy * dy
 			}
 		}
 		// A focus that moves by less than rounding noise has no variance to share out.
 		if vy > float64(m)*1e-24*max(1, my*my) {
-			for i := range k {
-				if vx[i] > 0 {
-					corr2[i] = cov[i] * cov[i] / (vx[i] * vy)
-				}
-			}
+			columns(k, workers, func(lo, hi int) { inputShares(f, draws, k, lo, hi, my, vy, m, corr2) })
 		}
 	}
 	total := 0.0
@@ -521,6 +577,58 @@ func varianceShares(f, draws []float64, k int, name func(int) string) []Share {
 	}
 	sort.SliceStable(out, func(i, j int) bool { return out[i].Share > out[j].Share })
 	return out
+}
+
+// inputShares fills corr2[lo:hi], the squared correlations of inputs lo..hi-1 with the
+// focus f of mean my and centred sum of squares vy over m trials.
+func inputShares(f, draws []float64, k, lo, hi int, my, vy float64, m int, corr2 []float64) {
+	w := hi - lo
+	mx, vx, cov := make([]float64, w), make([]float64, w), make([]float64, w)
+	for t := range len(f) {
+		if math.IsNaN(f[t]) {
+			continue
+		}
+		row := draws[t*k+lo : t*k+hi]
+		for i, x := range row {
+			mx[i] += x
+		}
+	}
+	for i := range mx {
+		mx[i] /= float64(m)
+	}
+	for t := range len(f) {
+		if math.IsNaN(f[t]) {
+			continue
+		}
+		dy := f[t] - my
+		row := draws[t*k+lo : t*k+hi]
+		for i, x := range row {
+			dx := x - mx[i]
+			vx[i] += dx * dx
+			cov[i] += dx * dy
+		}
+	}
+	for i := range w {
+		if vx[i] > 0 {
+			corr2[lo+i] = cov[i] * cov[i] / (vx[i] * vy)
+		}
+	}
+}
+
+// columns runs fn over blocks [lo, hi) of 0..k-1, on up to workers goroutines when there is
+// enough to share.
+func columns(k, workers int, fn func(lo, hi int)) {
+	const minBlock = 256
+	if workers <= 1 || k < 2*minBlock {
+		fn(0, k)
+		return
+	}
+	var wg sync.WaitGroup
+	size := (k + workers - 1) / workers
+	for lo := 0; lo < k; lo += size {
+		wg.Go(func() { fn(lo, min(lo+size, k)) })
+	}
+	wg.Wait()
 }
 
 // sweepPoints returns the values of a sweep's input, evenly spaced (or log-spaced):

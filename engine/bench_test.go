@@ -123,7 +123,8 @@ func BenchmarkEvalDemo(b *testing.B) {
 // BenchmarkMonteCarloDemo runs the demo's analyses (10,000 Monte Carlo trials, with the
 // sensitivity, worst case, sweep and solve, which take a few per cent of the time) with
 // GOMAXPROCS 1 and then 2: one op is both runs. speed-up is the 1-core time over the 2-core
-// time; allocs/trial counts every allocation of both runs over their 20,000 trials.
+// time; allocs/trial counts every allocation of both runs over their 20,000 trials, and
+// allocs/extra-trial what one more trial allocates (the setup left out).
 func BenchmarkMonteCarloDemo(b *testing.B) {
 	const trials = 10_000
 	ops := opsFor(b, readDemo(b))
@@ -149,6 +150,19 @@ func BenchmarkMonteCarloDemo(b *testing.B) {
 	b.ReportMetric(t2.Seconds()*1e3/n, "ms-2cpu")
 	b.ReportMetric(float64(t1)/float64(t2), "speed-up")
 	b.ReportMetric(float64(after.Mallocs-before.Mallocs)/(2*trials*n), "allocs/trial")
+	// What a trial itself allocates, without the setup: the allocations of a run of twice the
+	// trials less those of a run of trials, per extra trial (on two cores).
+	b.StopTimer()
+	runtime.GOMAXPROCS(2)
+	mallocs := func(k int) uint64 {
+		var m0, m1 runtime.MemStats
+		runtime.ReadMemStats(&m0)
+		ops.analyze(k, 0)
+		runtime.ReadMemStats(&m1)
+		return m1.Mallocs - m0.Mallocs
+	}
+	one, two := mallocs(trials), mallocs(2*trials)
+	b.ReportMetric((float64(two)-float64(one))/trials, "allocs/extra-trial")
 }
 
 // BenchmarkLoad loads generated farm-network sheets (internal/gen) of 1k, 10k and 100k

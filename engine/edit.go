@@ -4,7 +4,6 @@ import (
 	"reflect"
 	"strconv"
 	"strings"
-	"sync"
 
 	"github.com/BurntSushi/toml"
 )
@@ -18,22 +17,19 @@ import (
 // maxPatchedLines is the number of changed lines an edit may have to be patched in.
 const maxPatchedLines = 16
 
-// lineKeys lists, for each line of a file, the index paths of the keys written on it.
-type lineKeys struct {
-	once  sync.Once
-	paths map[int][]string
-}
-
+// keysOnLine returns the index paths of the keys written on the given line. It looks
+// through the index rather than building a map of every line: an edit asks about a line or
+// two, once per reload, and a map of 10,000 lines cost more than the rest of the patch.
 func (f *sheetFile) keysOnLine(line int) []string {
-	f.lines.once.Do(func() {
-		m := map[int][]string{}
-		for path, i := range f.ix.pos {
-			kp := f.ix.kps.at(i)
-			m[kp.Key.Line] = append(m[kp.Key.Line], path)
+	var out []string
+	for c, chunk := range f.ix.kps.chunks {
+		for i := range chunk {
+			if chunk[i].Key.Line == line {
+				out = append(out, f.ix.order[c*chunkLen+i])
+			}
 		}
-		f.lines.paths = m
-	})
-	return f.lines.paths[line]
+	}
+	return out
 }
 
 // patchDoc returns the decoded document of src, made from old's when src differs from old's

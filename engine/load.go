@@ -67,7 +67,6 @@ type sheetFile struct {
 	prefix string // part prefix, "" for the worksheet
 	src    string
 	doc    map[string]any // the decoded text (shared with later loads, never changed)
-	lines  lineKeys       // the keys on each line, found on first use
 }
 
 // rangeOf returns where the key at an index path (see keyJoin) is written, or its nearest
@@ -151,6 +150,12 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 		_, err = toml.Decode(src, &doc)
 	}
 	f := &sheetFile{name: display, fsPath: fsPath, ix: <-ixc, prefix: prefix, src: src, doc: doc}
+	if len(l.sh.byName) == 0 && len(l.sh.nodes) == 0 && cap(l.sh.nodes) == 0 {
+		// nothing loaded yet: every quantity has a key in the file
+		l.sh.byName = make(map[string]int, len(f.ix.pos))
+		l.sh.nodes = make([]*node, 0, len(f.ix.pos))
+		l.formulaSites = make([]site, 0, len(f.ix.pos))
+	}
 	if err == nil {
 		l.sh.files = append(l.sh.files, f)
 	}
@@ -379,18 +384,26 @@ func isPath(m map[string]any) string {
 	return ".is"
 }
 
-// quantityFields reads the long form of a quantity and returns an input's value; it reports
-// whether the quantity is usable.
-func (l *loader) quantityFields(f *sheetFile, q *Quantity, path string, m map[string]any) (value units.Q, ok bool) {
-	q.sh = l.sh
-	ok = true
+// quantityKeysOK reports the keys of a quantity's long form that are not its keys, and
+// whether there were none.
+func (l *loader) quantityKeysOK(f *sheetFile, q *Quantity, path string, m map[string]any) bool {
+	ok := true
 	for _, k := range l.ordered(f, path, m) {
 		if !contains(quantityKeys, k) {
 			l.errAt(f.rangeOf(keyJoin(path, k)), q.Name, didYouMean(k, quantityKeys, "a quantity's keys are is, tol, sigma, dist, note, show, source, export"), "unknown key %q", k)
 			ok = false
 		}
 	}
+	return ok
+}
+
+// quantityFields reads the long form of a quantity and returns an input's value; it reports
+// whether the quantity is usable.
+func (l *loader) quantityFields(f *sheetFile, q *Quantity, path string, m map[string]any) (value units.Q, ok bool) {
+	q.sh = l.sh
+	// the short form (and a long form of "is" alone) has no key to check
 	isv, has := m["is"]
+	ok = (has && len(m) == 1) || l.quantityKeysOK(f, q, path, m)
 	if !has {
 		l.errAt(f.rangeOf(path), q.Name, "add is = \"<value>\"", "the long form needs \"is\"")
 		return value, false

@@ -43,6 +43,14 @@ func Load(path string, opt Options) (*Sheet, Diagnostics) {
 	fsPath = filepath.ToSlash(fsPath)
 	sh := &Sheet{File: path, byName: map[string]int{}, lib: opt.Library}
 	l := &loader{sh: sh, fsys: fsys, prev: opt.Previous}
+	// A reload is about the size of the earlier load: sizing the name map, the node list and
+	// the formula sites from it spares their growth (rehashing 10,000 names a few times
+	// over); a first load sizes them from the main file's keys (see loader.load).
+	if p := opt.Previous; p != nil {
+		sh.byName = make(map[string]int, len(p.byName))
+		sh.nodes = make([]*node, 0, len(p.nodes))
+		l.formulaSites = make([]site, 0, len(p.nodes))
+	}
 	l.load(fsPath, path, "", Range{File: path})
 	sh.Hash = hashHex(l.hash)
 	l.compile(opt.Previous)

@@ -5,6 +5,7 @@ import (
 	"math"
 	"slices"
 	"strings"
+	"unsafe"
 
 	"github.com/rfledger/rfledger/units"
 )
@@ -132,22 +133,51 @@ func (s *Sheet) newResult() *Result {
 }
 
 // clone returns a copy of r that can be changed on its own (for an analysis scenario).
+// Scenarios are made one after another and then written by different goroutines on every
+// trial; what a scenario writes (the result itself, its values, flags, outcomes and chain
+// stages) is kept a cache line's room away from its neighbours (see apart), or the two
+// cores pass the shared lines back and forth on every node and the second core gains
+// little.
 func (r *Result) clone() *Result {
-	c := &Result{
+	box := &struct {
+		_ [cacheRoom]byte
+		r Result
+		_ [cacheRoom]byte
+	}{}
+	c := &box.r
+	*c = Result{
 		sh:     r.sh,
-		vals:   append([]float64(nil), r.vals...),
-		known:  append([]bool(nil), r.known...),
+		vals:   apart[float64](len(r.vals)),
+		known:  apart[bool](len(r.known)),
 		warn:   make([][]string, len(r.warn)),
-		pass:   append([]int8(nil), r.pass...),
-		chains: make([]ChainValue, len(r.chains)),
+		pass:   apart[int8](len(r.pass)),
+		chains: apart[ChainValue](len(r.chains)),
 		set:    r.set,
 		quiet:  true,
 	}
+	copy(c.vals, r.vals)
+	copy(c.known, r.known)
+	copy(c.pass, r.pass)
 	for i, cv := range r.chains {
-		c.chains[i] = ChainValue{Name: cv.Name, Stages: append([]StageValue(nil), cv.Stages...), Memo: &chainMemo{}}
+		st := apart[StageValue](len(cv.Stages))
+		copy(st, cv.Stages)
+		c.chains[i] = ChainValue{Name: cv.Name, Stages: st, Memo: &apart[chainMemo](1)[0]}
 	}
 	c.call.quiet = true
 	return c
+}
+
+// cacheRoom is the room kept around what one goroutine writes: two cache lines, since
+// processors fetch lines in pairs.
+const cacheRoom = 128
+
+// apart returns a slice of n elements with cacheRoom bytes of unused room on either side,
+// so that writes to it never share a cache line with another allocation's.
+func apart[T any](n int) []T {
+	var z T
+	pad := cacheRoom/max(int(unsafe.Sizeof(z)), 1) + 1
+	s := make([]T, n+2*pad)
+	return s[pad : pad+n : pad+n]
 }
 
 // applyAll replaces inputs by overrides; it returns what could not be applied.

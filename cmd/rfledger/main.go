@@ -9,5 +9,6 @@ import (
 )
 
 func main() {
+	tuneGC()
 	os.Exit(cli.Main(os.Args[1:], &cli.Env{Stdin: os.Stdin, Stdout: os.Stdout, Stderr: os.Stderr, Terminal: cli.IsTerminal(os.Stderr)}))
 }

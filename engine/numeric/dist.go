@@ -62,29 +62,57 @@ func halfWidths(nom, lo, hi float64) (below, above float64) {
 //
 // lo == hi == nom returns nom. An unknown Dist is drawn as Normal.
 func Draw(r *rand.Rand, d Dist, nom, lo, hi float64) float64 {
+	s := NewSampler(d, nom, lo, hi)
+	return s.Draw(r)
+}
+
+// Sampler draws the samples Draw gives for one input, bit for bit and from the same
+// random numbers, with the arithmetic on its limits done once rather than per sample (a
+// Monte Carlo run draws each input thousands of times).
+type Sampler struct {
+	d                Dist
+	nom, low         float64 // low = nom − below
+	below, above     float64
+	s1, s2, s12, pLo float64 // normal: σ₁, σ₂, σ₁+σ₂; triangular: below/(below+above)
+	w                float64 // below + above
+	fixed            bool    // lo == hi == nom
+}
+
+// NewSampler returns the sampler of Draw(·, d, nom, lo, hi).
+func NewSampler(d Dist, nom, lo, hi float64) Sampler {
 	below, above := halfWidths(nom, lo, hi)
-	if below == 0 && above == 0 {
-		return nom
+	s := Sampler{d: d, nom: nom, low: nom - below, below: below, above: above, w: below + above}
+	s.fixed = below == 0 && above == 0
+	s.s1, s.s2 = below/3, above/3
+	s.s12 = s.s1 + s.s2
+	if !s.fixed {
+		s.pLo = below / s.w
 	}
-	switch d {
+	return s
+}
+
+// Draw returns one sample.
+func (s *Sampler) Draw(r *rand.Rand) float64 {
+	if s.fixed {
+		return s.nom
+	}
+	switch s.d {
 	case Uniform:
-		return (nom - below) + (below+above)*r.Float64()
+		return s.low + s.w*r.Float64()
 	case Triangular:
 		// Inverse CDF of the triangular distribution with a = nom−below,
 		// c = nom, b = nom+above.
-		w := below + above
 		u := r.Float64()
-		if u < below/w {
-			return nom - below + math.Sqrt(u*w*below)
+		if u < s.pLo {
+			return s.low + math.Sqrt(u*s.w*s.below)
 		}
-		return nom + above - math.Sqrt((1-u)*w*above)
+		return s.nom + s.above - math.Sqrt((1-u)*s.w*s.above)
 	default:
-		s1, s2 := below/3, above/3
 		z := math.Abs(r.NormFloat64())
-		if r.Float64()*(s1+s2) < s1 {
-			return nom - s1*z
+		if r.Float64()*s.s12 < s.s1 {
+			return s.nom - s.s1*z
 		}
-		return nom + s2*z
+		return s.nom + s.s2*z
 	}
 }
 
