@@ -373,6 +373,7 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 	highCorner := make([]units.Q, len(ins))
 	qs := make([]*engine.Quantity, len(ins))
 	var rss float64
+	sds := make([]float64, len(ins)) // each input's slope × σ: its part of the RSS
 	for i, in := range ins {
 		qs[i] = in.q
 	}
@@ -403,6 +404,7 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 				slope := (fh - fl) / span
 				sd := slope * numeric.Sigma(in.dist, in.nom.V, in.lo.V, in.hi.V)
 				rss += sd * sd
+				sds[i] = sd
 			}
 		}
 		t.LowCorner, t.HighCorner = append(t.LowCorner, low), append(t.HighCorner, high)
@@ -431,7 +433,6 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 	n := opt.Trials
 	focusVals := make([]float64, n)
 	pass := make([]bool, n)
-	draws := make([]float64, n*len(ins))
 	workers := make([]*engine.Scenario, opt.Workers)
 	holds := make([][]int, opt.Workers) // per worker, trials in which each requirement holds
 	for w := range workers {
@@ -447,6 +448,20 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 			mcLin = l
 		}
 	}
+	// The draws are kept for the variance shares, except where the focus is affine in the
+	// inputs and shown in a unit linear in its value: each input's share is then exactly
+	// its part of the variance, (slope × σ)² over their sum (the variance of a sum of
+	// independent terms), and the trials need only a row of scratch per worker.
+	exactShares := mcLin != nil && linearIn(fa.fu, fv)
+	var draws []float64
+	rows := make([][]float64, opt.Workers)
+	if exactShares {
+		for w := range rows {
+			rows[w] = make([]float64, len(ins))
+		}
+	} else {
+		draws = make([]float64, n*len(ins))
+	}
 	var progress func(int)
 	if opt.Progress != nil {
 		progress = func(done int) { opt.Progress("Monte Carlo", done, n) }
@@ -457,7 +472,10 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 	}
 	numeric.Trials(n, opt.Workers, opt.Seed, func(w, trial int, r *rand.Rand) {
 		sc := workers[w]
-		row := draws[trial*len(ins) : (trial+1)*len(ins)]
+		row := rows[w]
+		if !exactShares {
+			row = draws[trial*len(ins) : (trial+1)*len(ins)]
+		}
 		if mcLin != nil {
 			for i := range samplers {
 				row[i] = samplers[i].Draw(r)
@@ -520,8 +538,48 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 		t.P50 = numeric.Quantile(samples, 0.50)
 		t.P99 = numeric.Quantile(samples, 0.99)
 	}
-	t.Shares = varianceShares(focusVals, draws, len(ins), opt.Workers, func(i int) string { return ins[i].q.Name })
+	name := func(i int) string { return ins[i].q.Name }
+	if exactShares {
+		t.Shares = exactVarianceShares(sds, name)
+	} else {
+		t.Shares = varianceShares(focusVals, draws, len(ins), opt.Workers, name)
+	}
 	return t
+}
+
+// linearIn reports whether showing values near v in unit u is a linear map of their
+// numbers (a scale such as m to km, or a decibel value in dB), not a change between a
+// decibel and a linear form.
+func linearIn(u *units.Unit, v units.Q) bool {
+	if u == nil {
+		return true
+	}
+	d := max(1, math.Abs(v.V)) * 1e-3
+	a, b, c := v, v, v
+	b.V += d
+	c.V += 2 * d
+	fa, fb, fc := numberIn(u, a), numberIn(u, b), numberIn(u, c)
+	step := fb - fa
+	return !math.IsNaN(fa+fb+fc) && step != 0 && math.Abs((fc-fb)-step) <= 1e-9*math.Abs(step)
+}
+
+// exactVarianceShares gives each input its part of the variance of a focus affine in
+// independent inputs: sd[i]² over the sum of them, sd[i] being the input's slope × σ.
+// Like varianceShares, a focus that does not move has no variance to share out.
+func exactVarianceShares(sd []float64, name func(int) string) []Share {
+	total := 0.0
+	for _, x := range sd {
+		total += x * x
+	}
+	out := make([]Share, len(sd))
+	for i, x := range sd {
+		out[i] = Share{Input: name(i)}
+		if total > 0 {
+			out[i].Share = x * x / total
+		}
+	}
+	sort.SliceStable(out, func(i, j int) bool { return out[i].Share > out[j].Share })
+	return out
 }
 
 func corner(q *engine.Quantity, limit string, v units.Q, effect float64) Corner {

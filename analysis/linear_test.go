@@ -62,12 +62,27 @@ func sameAnalysis(t *testing.T, lin, per *analysis.Analysis, abs float64) {
 			t.Fatalf("sample %d: %v, perturbation %v", i, a.Samples[i], b.Samples[i])
 		}
 	}
-	shares := map[string]float64{}
-	for _, s := range b.Shares {
-		shares[s.Input] = s.Share
+	// The variance shares differ by design: the affine form gives them exactly, the
+	// recomputation estimates them from the draws; the tests check the exact ones.
+	if len(a.Shares) != len(b.Shares) {
+		t.Errorf("%d shares, perturbation %d", len(a.Shares), len(b.Shares))
 	}
-	for _, s := range a.Shares {
-		near(t, "share of "+s.Input, s.Share, shares[s.Input], 1e-9)
+}
+
+// exactShares checks each input's share of the variance against want (by input name): for
+// a focus affine in independent inputs, Var(Σ aᵢXᵢ) = Σ aᵢ²σᵢ² (Bienaymé's formula, any
+// probability text), so input i's share is aᵢ²σᵢ² over that sum.
+func exactShares(t *testing.T, got []analysis.Share, want map[string]float64) {
+	t.Helper()
+	if len(got) != len(want) {
+		t.Fatalf("%d shares, want %d", len(got), len(want))
+	}
+	total := 0.0
+	for _, w := range want {
+		total += w
+	}
+	for _, s := range got {
+		near(t, "share of "+s.Input, s.Share, want[s.Input]/total, 1e-9)
 	}
 }
 
@@ -92,6 +107,7 @@ func TestLinearSumChain(t *testing.T) {
 	sameAnalysis(t, lin, per, 1e-9)
 
 	var tolSum, varSum float64
+	parts := map[string]float64{} // each input's aᵢ²σᵢ²
 	s := r.Sheet()
 	for i := 1; i <= k; i++ {
 		q, _ := s.Quantity(fmt.Sprintf("feeder.loss%03d", i))
@@ -108,6 +124,7 @@ func TestLinearSumChain(t *testing.T) {
 		}
 		tolSum += (hi.V - lo.V) / 2
 		varSum += math.Pow((hi.V-lo.V)/6, 2)
+		parts[q.Name] = math.Pow((hi.V-lo.V)/6, 2) // a coefficient of ±1
 	}
 	for _, x := range lin.Sensitivity {
 		if strings.Contains(x.Input, "loss") {
@@ -120,6 +137,7 @@ func TestLinearSumChain(t *testing.T) {
 	near(t, "worst low", tol.WorstLow, tol.Nominal-tolSum, 1e-9)
 	near(t, "worst high", tol.WorstHigh, tol.Nominal+tolSum, 1e-9)
 	near(t, "RSS σ", tol.RSSSigma, math.Sqrt(varSum), 1e-9)
+	exactShares(t, tol.Shares, parts)
 }
 
 // TestLinearScaledAndRequired: products and quotients by quantities the tolerances do not
@@ -146,6 +164,16 @@ func TestLinearScaledAndRequired(t *testing.T) {
 			near(t, "sensitivity to "+x.Input, x.Change, 0.15, 1e-9)
 		}
 	}
+	// The shares: ∂m/∂xᵢ = 1.5 and ∂m/∂y = −1; a tolerance ±a read as 3σ of a normal spread
+	// (common practice, no source), as a uniform spread of standard deviation a/√3, and as a
+	// symmetric triangular one of a/√6 (the textbook variances of those distributions).
+	parts := map[string]float64{"s.y": math.Pow(0.1/3, 2)}
+	for i := range n {
+		a := float64(1+i%5) / 10
+		sigma := []float64{a / 3, a / math.Sqrt(3), a / math.Sqrt(6)}[i%3]
+		parts[fmt.Sprintf("s.x%02d", i)] = math.Pow(1.5*sigma, 2)
+	}
+	exactShares(t, lin.Tolerance.Shares, parts)
 	if p := lin.Tolerance.PPass; p <= 0 || p >= 1 {
 		t.Errorf("P(pass) = %v, want strictly between 0 and 1 for these requirements", p)
 	}
