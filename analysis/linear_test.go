@@ -62,6 +62,16 @@ func sameAnalysis(t *testing.T, lin, per *analysis.Analysis, abs float64) {
 			t.Fatalf("sample %d: %v, perturbation %v", i, a.Samples[i], b.Samples[i])
 		}
 	}
+	if len(a.Requires) != len(b.Requires) {
+		t.Fatalf("%d requirement spreads, perturbation %d", len(a.Requires), len(b.Requires))
+	}
+	for i := range a.Requires {
+		ra, rb := a.Requires[i], b.Requires[i]
+		near(t, "worst case of "+ra.Require.That, ra.Worst, rb.Worst, abs)
+		if ra.WorstHolds != rb.WorstHolds || ra.Holds != rb.Holds {
+			t.Errorf("%s: worst holds %v, %d trials hold; perturbation %v, %d", ra.Require.That, ra.WorstHolds, ra.Holds, rb.WorstHolds, rb.Holds)
+		}
+	}
 	// The variance shares differ by design: the affine form gives them exactly, the
 	// recomputation estimates them from the draws; the tests check the exact ones.
 	if len(a.Shares) != len(b.Shares) {

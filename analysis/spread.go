@@ -90,10 +90,18 @@ func (fa *focusAt) requireWorst(qs []*engine.Quantity, lo, hi []units.Q, cone *e
 		}
 		down := rq.Op == ">=" || rq.Op == ">" // the bound fails when q falls
 		sub := &focusAt{nom: fa.nom, sc: fa.sc, focus: q, fu: reportUnit(q)}
+		lin := sub.linear(qs) // the affine form when q has one: no cone per input
 		corner := make([]units.Q, len(qs))
 		for j := range qs {
-			vl, okl := sub.at(qs[j:j+1], lo[j:j+1], s.Cone(qs[j]))
-			vh, okh := sub.at(qs[j:j+1], hi[j:j+1], s.Cone(qs[j]))
+			var vl, vh float64
+			var okl, okh bool
+			if lin != nil {
+				vl, okl = sub.linearAt(lin, j, lo[j].V)
+				vh, okh = sub.linearAt(lin, j, hi[j].V)
+			} else {
+				vl, okl = sub.at(qs[j:j+1], lo[j:j+1], s.Cone(qs[j]))
+				vh, okh = sub.at(qs[j:j+1], hi[j:j+1], s.Cone(qs[j]))
+			}
 			corner[j], _ = fa.nom.Value(qs[j])
 			if okl && okh && vl != vh {
 				if (vl < vh) == down {
