@@ -32,48 +32,77 @@ func (f *sheetFile) keysOnLine(line int) []string {
 	return out
 }
 
+// lineEdit is one line an edit changed: its number (from 1), the change of its length in
+// bytes, and whether it holds a key (false for a blank or comment line).
+type lineEdit struct {
+	line, delta int
+	keyed       bool
+}
+
 // patchDoc returns the decoded document of src, made from old's when src differs from old's
-// text only in the values of keys that keep their place (or in comments and blank lines);
-// ok is false when the edit is of another kind, and src must be decoded in full.
-func patchDoc(old *sheetFile, src string) (doc map[string]any, ok bool) {
+// text only in the values of keys that keep their place (or in comments and blank lines),
+// and the lines that changed; ok is false when the edit is of another kind, and src must be
+// decoded in full.
+func patchDoc(old *sheetFile, src string) (doc map[string]any, edits []lineEdit, ok bool) {
 	if old == nil || old.doc == nil {
-		return nil, false
+		return nil, nil, false
 	}
 	was, now := strings.Split(old.src, "\n"), strings.Split(src, "\n")
 	if len(was) != len(now) {
-		return nil, false
+		return nil, nil, false
 	}
 	var changed []int
 	for i := range was {
 		if was[i] != now[i] {
 			if changed = append(changed, i); len(changed) > maxPatchedLines {
-				return nil, false
+				return nil, nil, false
 			}
 		}
 	}
 	doc = old.doc
 	copied := map[any]bool{} // maps and slices of doc already copied for this edit
 	for _, i := range changed {
+		e := lineEdit{line: i + 1, delta: len(now[i]) - len(was[i])}
 		if blankOrComment(was[i]) && blankOrComment(now[i]) {
+			if old.spanned(i + 1) {
+				return nil, nil, false // a line of a multi-line value that reads like a comment
+			}
+			edits = append(edits, e)
 			continue
 		}
+		e.keyed = true
+		edits = append(edits, e)
 		path, valAt, ok := old.valueOnLine(i+1, was[i])
 		if !ok || len(now[i]) < valAt || now[i][:valAt] != was[i][:valAt] {
-			return nil, false
+			return nil, nil, false
 		}
 		var m map[string]any
 		if _, err := toml.Decode("v = "+now[i][valAt:], &m); err != nil {
-			return nil, false // a broken value: a full decode reports it where it stands
+			return nil, nil, false // a broken value: a full decode reports it where it stands
 		}
 		v, isValue := m["v"]
 		if _, table := v.([]map[string]any); !isValue || table {
-			return nil, false
+			return nil, nil, false
 		}
 		if doc, ok = setPath(doc, splitPath(path), v, copied); !ok {
-			return nil, false
+			return nil, nil, false
 		}
 	}
-	return doc, true
+	return doc, edits, true
+}
+
+// spanned reports whether a value written over several lines (a multi-line string or
+// array) covers the given line after its first: what reads there like a comment is part of
+// the value.
+func (f *sheetFile) spanned(line int) bool {
+	for _, chunk := range f.ix.kps.chunks {
+		for i := range chunk {
+			if kp := &chunk[i]; kp.Val.Line < line && kp.ValEnd.Line >= line {
+				return true
+			}
+		}
+	}
+	return false
 }
 
 func blankOrComment(line string) bool {

@@ -44,7 +44,7 @@ func TestPatchedReloadEqualsFullLoad(t *testing.T) {
 	valid, _ := filepath.Glob("../testdata/valid/*.toml")
 	files = append(files, valid...)
 	rng := rand.New(rand.NewPCG(1, 2))
-	patched := 0
+	patched, indexPatched := 0, 0
 	for _, path := range files {
 		src, err := os.ReadFile(path)
 		if err != nil {
@@ -88,7 +88,11 @@ func TestPatchedReloadEqualsFullLoad(t *testing.T) {
 			if a, b := describe(inc, incDiags), describe(full, fullDiags); a != b {
 				t.Fatalf("%s, line %d edited to %q: the reload differs from a full load:\n%s", path, i+1, line, firstDiff(a, b))
 			}
+			if d := engine.IndexDiff(inc); d != "" {
+				t.Fatalf("%s, line %d edited to %q: the position index differs from one built in full: %s", path, i+1, line, d)
+			}
 			patched += engine.Patched(inc)
+			indexPatched += engine.IndexPatched(inc)
 			if trial == 11 && engine.Patched(inc) != 0 {
 				t.Errorf("%s: an added line was patched", path)
 			}
@@ -98,6 +102,10 @@ func TestPatchedReloadEqualsFullLoad(t *testing.T) {
 	}
 	if patched < 20 {
 		t.Errorf("only %d reloads were patched; the edits do not exercise the patch", patched)
+	}
+	t.Logf("%d reloads patched, %d with the index patched too", patched, indexPatched)
+	if indexPatched < patched*3/4 {
+		t.Errorf("the position index was patched in only %d of %d patched reloads", indexPatched, patched)
 	}
 }
 
@@ -109,4 +117,88 @@ func firstDiff(a, b string) string {
 		}
 	}
 	return fmt.Sprintf("%d lines against %d", len(la), len(lb))
+}
+
+// TestPatchedIndexEdits: edits of the kinds a patched reload takes — a value with escapes,
+// a quoted key, an inline table, an array element on its own line, a line of non-ASCII
+// text, a comment — give the position index a full scan gives and the sheet a full load
+// gives, each one after the other; a line inside a multi-line string that reads like a
+// comment is not taken for one.
+func TestPatchedIndexEdits(t *testing.T) {
+	base := `title = "edits"
+focus = "g.m"
+[g]
+p = { is = "14 dBm", tol = "1 dB", note = "tab\there" }
+"odd" = "3 dB"
+loss = "= 2 dB + 1 dB"  # a comment
+band = "868 MHz"
+long = { is = "1 dB", note = """
+first line
+# not a comment
+""" }
+m = "= p - loss - odd"
+[[sweep]]
+vary = "g.p"
+from = "0 dBm"
+to = "20 dBm"
+plot = [
+  "g.m",
+]
+`
+	edits := []struct {
+		line int
+		text string
+	}{
+		{4, `p = { is = "15 dBm", tol = "1 dB", note = "tab\there, é" }`},
+		{5, `"odd" = "3.5 dB"`},
+		{6, `loss = "= 2 dB + 1.25 dB"  # a longer comment than before`},
+		{7, `band = "915 MHz" # ümlaut in a comment`},
+		{10, `# still not a comment, longer`},
+		{1, `title = "edits, with a longer title"`},
+		{18, `  "g.p",`},
+		{2, `focus = "g.p"`},
+	}
+	dir := t.TempDir()
+	sheet := filepath.Join(dir, "s.toml")
+	write := func(text string) {
+		if err := os.WriteFile(sheet, []byte(text), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	write(base)
+	prev, diags := engine.Load(sheet, engine.Options{Library: lib})
+	if diags.HasErrors() {
+		t.Fatal(diags)
+	}
+	lines := strings.Split(base, "\n")
+	for _, e := range edits {
+		lines[e.line-1] = e.text
+		text := strings.Join(lines, "\n")
+		write(text)
+		inc, incDiags := engine.Load(sheet, engine.Options{Library: lib, Previous: prev})
+		full, fullDiags := engine.Load(sheet, engine.Options{Library: lib})
+		if a, b := describe(inc, incDiags), describe(full, fullDiags); a != b {
+			t.Fatalf("line %d edited to %q: the reload differs from a full load:\n%s", e.line, e.text, firstDiff(a, b))
+		}
+		if d := engine.IndexDiff(inc); d != "" {
+			t.Fatalf("line %d edited to %q: %s", e.line, e.text, d)
+		}
+		// The line inside the multi-line string must be read again in full, and so is the
+		// array element (its line is not a value alone: the comma); every other edit is
+		// patched, index included.
+		wantPatched := 1
+		if e.line == 10 || e.line == 18 {
+			wantPatched = 0
+		}
+		if engine.Patched(inc) != wantPatched || engine.IndexPatched(inc) != wantPatched {
+			t.Errorf("line %d edited to %q: %d patched, %d with the index; want %d", e.line, e.text, engine.Patched(inc), engine.IndexPatched(inc), wantPatched)
+		}
+		if e.line == 10 {
+			g, _ := inc.Quantity("g.long")
+			if !strings.Contains(g.Note, "still not a comment") {
+				t.Errorf("the note inside the multi-line string is %q after the edit", g.Note)
+			}
+		}
+		prev = inc
+	}
 }

@@ -140,16 +140,25 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 		l.document(f, f.doc)
 		return
 	}
-	ixc := make(chan *posIndex, 1)
-	go func() { ixc <- indexTOML(src) }()
-	doc, patched := patchDoc(prevFile, src)
+	// A patched document usually comes with a patched index (patchIndex): only the edited
+	// lines are scanned again. Otherwise the index is built beside the decoding.
+	doc, edits, patched := patchDoc(prevFile, src)
+	var ix *posIndex
 	if patched {
 		l.sh.npatched++
+		if ix = patchIndex(prevFile, src, edits); ix != nil {
+			l.sh.nindexPatched++
+		} else {
+			ix = indexTOML(src)
+		}
 	} else {
+		ixc := make(chan *posIndex, 1)
+		go func() { ixc <- indexTOML(src) }()
 		doc = nil
 		_, err = toml.Decode(src, &doc)
+		ix = <-ixc
 	}
-	f := &sheetFile{name: display, fsPath: fsPath, ix: <-ixc, prefix: prefix, src: src, doc: doc}
+	f := &sheetFile{name: display, fsPath: fsPath, ix: ix, prefix: prefix, src: src, doc: doc}
 	if len(l.sh.byName) == 0 && len(l.sh.nodes) == 0 && cap(l.sh.nodes) == 0 {
 		// nothing loaded yet: every quantity has a key in the file
 		l.sh.byName = make(map[string]int, len(f.ix.pos))

@@ -44,6 +44,8 @@ type Sheet struct {
 	graph    graphCache
 	nparsed  int // formulas parsed by Load (the others were reused from Options.Previous)
 	npatched int // files whose edit was patched into the earlier load's decoded text
+	// nindexPatched counts the files whose position index was patched too
+	nindexPatched int
 }
 
 // Group is a TOML table of the worksheet: quantities and chains under one dotted name.
