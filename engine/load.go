@@ -35,7 +35,8 @@ var (
 // loader builds a Sheet from a worksheet file and its parts.
 type loader struct {
 	sh    *Sheet
-	prev  *Sheet // an earlier load of the same worksheet, or nil
+	prev  *Sheet         // an earlier load of the same worksheet, or nil
+	short map[string]any // the long form of a quantity written as its value alone (member)
 	fsys  fs.FS
 	diags Diagnostics
 	hash  []byte
@@ -67,6 +68,9 @@ type sheetFile struct {
 	prefix string // part prefix, "" for the worksheet
 	src    string
 	doc    map[string]any // the decoded text (shared with later loads, never changed)
+	// orders holds each table's keys in file order as this load found them (ordered);
+	// prevOrders is the earlier load's, for an edit that kept every key on its line.
+	orders, prevOrders map[string][]string
 }
 
 // rangeOf returns where the key at an index path (see keyJoin) is written, or its nearest
@@ -135,7 +139,7 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 	// the position index.
 	prevFile := l.sh.prevFile(l.prev, fsPath, prefix)
 	if prevFile != nil && prevFile.src == src {
-		f := &sheetFile{name: display, fsPath: fsPath, ix: prevFile.ix, prefix: prefix, src: src, doc: prevFile.doc}
+		f := &sheetFile{name: display, fsPath: fsPath, ix: prevFile.ix, prefix: prefix, src: src, doc: prevFile.doc, prevOrders: prevFile.orders}
 		l.sh.files = append(l.sh.files, f)
 		l.document(f, f.doc)
 		return
@@ -159,6 +163,9 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 		ix = <-ixc
 	}
 	f := &sheetFile{name: display, fsPath: fsPath, ix: ix, prefix: prefix, src: src, doc: doc}
+	if patched {
+		f.prevOrders = prevFile.orders // every key is on the line it was on
+	}
 	if len(l.sh.byName) == 0 && len(l.sh.nodes) == 0 && cap(l.sh.nodes) == 0 {
 		// nothing loaded yet: every quantity has a key in the file
 		l.sh.byName = make(map[string]int, len(f.ix.pos))
@@ -246,8 +253,33 @@ func (l *loader) document(f *sheetFile, doc map[string]any) {
 	}
 }
 
-// ordered returns the keys of table m (at path) in file order.
+// ordered returns the keys of table m (at path) in file order. After an edit that kept
+// every key on its line, the earlier load's order of a table with the same keys is still
+// the order.
 func (l *loader) ordered(f *sheetFile, path string, m map[string]any) []string {
+	if f.orders == nil {
+		f.orders = map[string][]string{}
+	}
+	if po, ok := f.prevOrders[path]; ok && len(po) == len(m) {
+		same := true
+		for _, k := range po {
+			if _, has := m[k]; !has {
+				same = false
+				break
+			}
+		}
+		if same {
+			f.orders[path] = po
+			return po
+		}
+	}
+	out := l.sortedKeys(f, path, m)
+	f.orders[path] = out
+	return out
+}
+
+// sortedKeys sorts the keys of table m (at path) by where the index has them.
+func (l *loader) sortedKeys(f *sheetFile, path string, m map[string]any) []string {
 	type keyAt struct {
 		key       string
 		line, col int
@@ -285,7 +317,7 @@ func (l *loader) ordered(f *sheetFile, path string, m map[string]any) []string {
 func (l *loader) member(f *sheetFile, g *Group, path, key string, v any) {
 	r := f.rangeOf(path)
 	full := join(g.Name, key)
-	if !validName.MatchString(key) {
+	if !isName(key) {
 		l.errAt(r, full, "names start with a letter and hold letters, digits and _", "%q is not a valid name", key)
 		return
 	}
@@ -318,8 +350,30 @@ func (l *loader) member(f *sheetFile, g *Group, path, key string, v any) {
 		}
 		l.chain(f, g, path, key, tables)
 	default:
-		l.quantity(f, g, path, key, map[string]any{"is": v})
+		// A quantity written as its value alone is read as its long form { is = … }; one
+		// map serves them all, since nothing keeps it.
+		if l.short == nil {
+			l.short = map[string]any{}
+		}
+		l.short["is"] = v
+		l.quantity(f, g, path, key, l.short)
+		l.short["is"] = nil
 	}
+}
+
+// isName reports whether s is a valid name, as validName says (without the regexp: every
+// key of a sheet is tested).
+func isName(s string) bool {
+	if s == "" || !(s[0] >= 'A' && s[0] <= 'Z' || s[0] >= 'a' && s[0] <= 'z') {
+		return false
+	}
+	for i := 1; i < len(s); i++ {
+		c := s[i]
+		if !(c >= 'A' && c <= 'Z' || c >= 'a' && c <= 'z' || c >= '0' && c <= '9' || c == '_') {
+			return false
+		}
+	}
+	return true
 }
 
 // cIdent is what export = "NAME" may be: a C identifier.

@@ -546,7 +546,11 @@ func (s *Sheet) dirtySince(prev *Result, overridden map[string]string) (dirty []
 	from = make([]int, len(s.nodes))
 	for _, id := range s.order {
 		n := s.nodes[id]
-		oid, ok := old.byName[n.name]
+		// After most edits a node keeps its number: try that before the map.
+		oid, ok := id, id < len(old.nodes) && old.nodes[id].name == n.name
+		if !ok {
+			oid, ok = old.byName[n.name]
+		}
 		from[id] = oid
 		if !ok || !sameNode(n, old.nodes[oid], s, old) || !prev.known[oid] {
 			dirty[id] = true
