@@ -8,15 +8,16 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"net/url"
 	"os"
 	"path/filepath"
-	"strings"
 	"testing"
 	"time"
 
 	"github.com/yuin/goldmark"
 	"github.com/yuin/goldmark/ast"
 	"github.com/yuin/goldmark/extension"
+	east "github.com/yuin/goldmark/extension/ast"
 	gtext "github.com/yuin/goldmark/text"
 
 	"github.com/rfledger/rfledger/analysis"
@@ -72,8 +73,9 @@ func FuzzRender(f *testing.F) {
 	})
 }
 
-// checkPage reads the page back as GFM and reports raw HTML or a link that is neither
-// http(s) nor one of the page's charts.
+// checkPage reads the page back as GFM and reports raw HTML, an e-mail autolink, a link or
+// image that is neither http(s) nor one of the page's charts, and a table row with another
+// number of cells than its header.
 func checkPage(md goldmark.Markdown, page []byte) error {
 	doc := md.Parser().Parse(gtext.NewReader(page))
 	return ast.Walk(doc, func(n ast.Node, entering bool) (ast.WalkStatus, error) {
@@ -90,11 +92,21 @@ func checkPage(md goldmark.Markdown, page []byte) error {
 			dest = string(n.Destination)
 		case *ast.AutoLink:
 			dest = string(n.URL(page))
+			if n.AutoLinkType == ast.AutoLinkEmail {
+				return ast.WalkStop, fmt.Errorf("e-mail autolink %q", dest)
+			}
+		case *east.Table:
+			if err := sameWidth(n); err != nil {
+				return ast.WalkStop, err
+			}
 		default:
 			return ast.WalkContinue, nil
 		}
-		if !chartLink.MatchString(dest) && !strings.HasPrefix(dest, "http://") && !strings.HasPrefix(dest, "https://") {
-			return ast.WalkStop, fmt.Errorf("link to %q", dest)
+		if dest != "" && !chartLink.MatchString(dest) {
+			u, err := url.Parse(dest)
+			if err != nil || u.Scheme != "http" && u.Scheme != "https" {
+				return ast.WalkStop, fmt.Errorf("link to %q", dest)
+			}
 		}
 		return ast.WalkContinue, nil
 	})
