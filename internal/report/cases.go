@@ -307,14 +307,9 @@ func (p *page) caseLineItems() {
 		p.f("Values are those of “%s”; what differs in the other cases is in each case's section under [Cases](#cases).\n\n", text(first.Case.Name))
 	}
 	for _, g := range sh.Groups {
-		if len(g.Quantities) == 0 {
+		if !p.groupHeading(g) {
 			continue
 		}
-		name := g.Name
-		if name == "" {
-			name = "General"
-		}
-		p.f("### %s\n\n", text(name))
 		var extra []Case
 		if p.wideCases() {
 			for _, q := range g.Quantities {

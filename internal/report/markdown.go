@@ -208,18 +208,27 @@ func tolText(t *engine.Tol) string {
 	return s + " (" + t.Dist + ")"
 }
 
+// groupHeading starts a group's line items with its heading (the top level is "General");
+// it reports false, writing nothing, for a group without quantities of its own.
+func (p *page) groupHeading(g *engine.Group) bool {
+	if len(g.Quantities) == 0 {
+		return false
+	}
+	name := g.Name
+	if name == "" {
+		name = "General"
+	}
+	p.f("### %s\n\n", text(name))
+	return true
+}
+
 func (p *page) lineItems() {
 	sh := p.in.Sheet
 	p.f("## Line items\n\n")
 	for _, g := range sh.Groups {
-		if len(g.Quantities) == 0 {
+		if !p.groupHeading(g) {
 			continue
 		}
-		name := g.Name
-		if name == "" {
-			name = "General"
-		}
-		p.f("### %s\n\n", text(name))
 		p.f("| quantity | value | obtained from | tolerance | note | source |\n| --- | ---: | --- | --- | --- | --- |\n")
 		for _, q := range g.Quantities {
 			how := "input"
