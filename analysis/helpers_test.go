@@ -1,7 +1,6 @@
 package analysis_test
 
 import (
-	"math"
 	"path/filepath"
 	"testing"
 
@@ -43,9 +42,5 @@ func near(t testing.TB, what string, got, want, tol float64) {
 	sheettest.Near(t, what, got, want, tol)
 }
 
-// fsplDB is free-space basic transmission loss, ITU-R P.525-4 eq. (4):
-// L = 20·log10(4π·d/λ), λ = c/f.
-func fsplDB(d, f float64) float64 {
-	const c = 299792458.0
-	return 20 * math.Log10(4*math.Pi*d*f/c)
-}
+// fsplDB is free-space basic transmission loss (sheettest.FreeSpaceLossDB, ITU-R P.525-4).
+func fsplDB(d, f float64) float64 { return sheettest.FreeSpaceLossDB(d, f) }

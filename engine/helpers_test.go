@@ -40,12 +40,8 @@ func near(t testing.TB, what string, got, want, tol float64) {
 	sheettest.Near(t, what, got, want, tol)
 }
 
-// fsplDB is free-space basic transmission loss, ITU-R P.525-4 eq. (4):
-// L = 20·log10(4π·d/λ), λ = c/f.
-func fsplDB(d, f float64) float64 {
-	const c = 299792458.0
-	return 20 * math.Log10(4*math.Pi*d*f/c)
-}
+// fsplDB is free-space basic transmission loss (sheettest.FreeSpaceLossDB, ITU-R P.525-4).
+func fsplDB(d, f float64) float64 { return sheettest.FreeSpaceLossDB(d, f) }
 
 // ktbDBm is thermal noise power k·T·B in dBm (k from the 2019 SI definition).
 func ktbDBm(b, t float64) float64 {

@@ -83,3 +83,11 @@ func Near(t testing.TB, what string, got, want, tol float64) {
 		t.Errorf("%s = %.12g, want %.12g (±%g)", what, got, want, tol)
 	}
 }
+
+// FreeSpaceLossDB is free-space basic transmission loss in dB at distance d (m) and
+// frequency f (Hz), ITU-R P.525-4 eq. (4): L = 20·log10(4π·d/λ), λ = c/f, c exact by the SI.
+// It is written here from the Recommendation, apart from the engine's own, as a reference.
+func FreeSpaceLossDB(d, f float64) float64 {
+	const c = 299792458.0
+	return 20 * math.Log10(4*math.Pi*d*f/c)
+}
