@@ -493,19 +493,7 @@ func (s *served) get(t *testing.T, method, path string) (*http.Response, string)
 // rawGet sends a request line exactly as given, so no client cleans the path.
 func rawGet(t *testing.T, addr, target string) int {
 	t.Helper()
-	c, err := net.DialTimeout("tcp", addr, 3*time.Second)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer c.Close()
-	c.SetDeadline(time.Now().Add(3 * time.Second))
-	fmt.Fprintf(c, "GET %s HTTP/1.1\r\nHost: %s\r\nConnection: close\r\n\r\n", target, addr)
-	resp, err := http.ReadResponse(bufio.NewReader(c), nil)
-	if err != nil {
-		t.Fatal(err)
-	}
-	resp.Body.Close()
-	return resp.StatusCode
+	return rawHostPath(t, addr, addr, target)
 }
 
 const tableMD = "# Field link\n\n| Item | Value |\n|---|---:|\n| EIRP | 43.0 dBm |\n\n<script>alert(1)</script>\n\n[x](javascript:alert(2))\n\n![sweep](sweep.svg)"
