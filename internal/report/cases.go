@@ -329,14 +329,7 @@ func (p *page) caseLineItems() {
 		}
 		p.f(" obtained from | tolerance | note | source |\n| --- | ---: |%s --- | --- | --- | --- |\n", strings.Repeat(" ---: |", len(extra)))
 		for _, q := range g.Quantities {
-			how := "input"
-			if !q.Input() {
-				how = code("= " + q.Formula)
-			}
-			key := strings.TrimPrefix(q.Name, g.Name+".")
-			if len(first.Result.Warnings(q)) > 0 {
-				key += " (warning)"
-			}
+			key, how := itemLabel(g, q, first.Result)
 			p.f("| %s | %s |", text(key), first.Result.Display(q))
 			moved := len(extra) > 0 && p.differs(q)
 			for _, c := range extra {

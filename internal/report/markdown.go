@@ -222,6 +222,20 @@ func (p *page) groupHeading(g *engine.Group) bool {
 	return true
 }
 
+// itemLabel returns a line item's first cells: its name within group g (marked when r has
+// a warning on it), and how it is obtained ("input", or its formula).
+func itemLabel(g *engine.Group, q *engine.Quantity, r *engine.Result) (key, how string) {
+	key = strings.TrimPrefix(q.Name, g.Name+".")
+	if len(r.Warnings(q)) > 0 {
+		key += " (warning)"
+	}
+	how = "input"
+	if !q.Input() {
+		how = code("= " + q.Formula)
+	}
+	return key, how
+}
+
 func (p *page) lineItems() {
 	sh := p.in.Sheet
 	p.f("## Line items\n\n")
@@ -231,14 +245,7 @@ func (p *page) lineItems() {
 		}
 		p.f("| quantity | value | obtained from | tolerance | note | source |\n| --- | ---: | --- | --- | --- | --- |\n")
 		for _, q := range g.Quantities {
-			how := "input"
-			if !q.Input() {
-				how = code("= " + q.Formula)
-			}
-			key := strings.TrimPrefix(q.Name, g.Name+".")
-			if len(p.r.Warnings(q)) > 0 {
-				key += " (warning)"
-			}
+			key, how := itemLabel(g, q, p.r)
 			p.f("| %s | %s | %s | %s | %s | %s |\n", text(key), p.r.Display(q), how, text(tolText(q.Tol)), text(q.Note), text(q.Source))
 		}
 		p.f("\n")
