@@ -116,7 +116,7 @@ var atmosphere = []*engine.Func{
 		Name: "rain_los", Args: []engine.Arg{lin("f", units.Frequency), lin("d", units.Length), lin("r001", units.Speed), lin("p", units.None), text("pol")}, Result: "dB",
 		Doc: "Rain attenuation exceeded for p % of an average year on a terrestrial line-of-sight path of length d, for the point rain rate r001 (mm/h, 1-min integration) exceeded 0.01 % of the year: " +
 			"γR = k·r001^α (P.838-3, pol 'h', 'v' or 'c' for circular, tilt 45°), distance factor r = 1/(0.477 d^0.633 r001^(0.073α) f^0.123 − 10.579 (1 − e^(−0.024 d))) at most 2.5, A0.01 = γR·d·r, " +
-			"then Ap = A0.01·C1·p^−(C2 + C3 log10 p) (d in km, f in GHz). p is written with %, e.g. 0.01 % for 99.99 % availability. Warns for p outside 0.001–1 %, f outside 1–100 GHz, d beyond 60 km.",
+			"then Ap = A0.01·C1·p^−(C2 + C3 log10 p) (d in km, f in GHz). p is written with %, e.g. 0.01 % for 99.99 % availability (a plain number is read as a fraction: 0.01 alone is 1 %). Warns for p outside 0.001–1 %, f outside 1–100 GHz, d beyond 60 km.",
 		Source: "ITU-R P.530-17 §2.4.1 (method unchanged in P.530-18); ITU-R P.838-3 eqs. (1)–(5)",
 		Call: func(c *engine.Call, a []engine.Value) (units.Q, error) {
 			r, err := rainRate(a, 2)
@@ -144,7 +144,7 @@ var atmosphere = []*engine.Func{
 		Doc: "Rain attenuation exceeded for p % of an average year on an Earth–space path at elevation elev from a station at height hs (above sea level) and latitude lat, for rain rate r001 exceeded 0.01 % of the year and rain height hr " +
 			"(above sea level: ITU-R P.839 gives it as a map, which is not shipped, so take it from P.839 or local data; roughly the 0 °C isotherm height + 0.36 km). " +
 			"Steps 2–10 of the method: slant length through rain, horizontal reduction r0.01, vertical adjustment ν0.01, effective length, A0.01 = γR·LE, then scaling to p with the latitude- and elevation-dependent β. " +
-			"pol 'h', 'v' or 'c' (circular, tilt 45°), with P.838-3's elevation dependence. Warns for p outside 0.001–5 %, f outside 1–55 GHz, elevation below 5°.",
+			"pol 'h', 'v' or 'c' (circular, tilt 45°), with P.838-3's elevation dependence. Write p with %, e.g. 0.1 % (a plain number is read as a fraction: 0.1 alone is 10 %). Warns for p outside 0.001–5 %, f outside 1–55 GHz, elevation below 5°.",
 		Source: "ITU-R P.618-13 §2.2.1.1, steps 1–10; ITU-R P.838-3 eqs. (1)–(5)",
 		Call: func(c *engine.Call, a []engine.Value) (units.Q, error) {
 			e, err := elevation(a, 1, "elev")

@@ -109,7 +109,7 @@ var geometry = []*engine.Func{
 			}
 			d, err := rfmath.SlantRange(e, q(a, 1), h)
 			if err != nil {
-				return units.Q{}, clean(err)
+				return units.Q{}, &units.Error{Msg: clean(err).Error(), Hint: "alt is the far point's altitude above sea level (an orbit height, e.g. 550 km) and h_station the station's, both from sea level"}
 			}
 			return result(d, uM, "slant range")
 		},

@@ -198,6 +198,14 @@ func TestSecondTierErrors(t *testing.T) {
 		{"lognormal_margin(8 dB, 1.5)", "lognormal_margin: availability must lie strictly between 0 and 1"},
 		{"sky_noise(-1 dB)", "sky_noise: a: an attenuation is written as a positive number of dB"},
 		{"beamwidth(0 m, 10 GHz)", "beamwidth: the diameter and k must be positive"},
+		// Every refusal says what to write instead.
+		{"fresnel_v(1 m, 0 km, 5 km, 10 GHz)", "; d1 and d2 are the distances from each end of the path to the obstacle"},
+		{"slant_range(10 deg, 0 km)", "; alt is the far point's altitude above sea level"},
+		{"field_strength(10 dBW, 0 m)", "(got 0 m); the distance from the transmitter"},
+		{"pfd(10 dBW, 0 m)", "pfd: d: the distance must be positive (got 0 m); the distance from the transmitter"},
+		{"lognormal_margin(8 dB, 1.5)", "; write the availability as 0.95 or 95 %"},
+		{"beamwidth(0 m, 10 GHz)", "; give the dish diameter"},
+		{"pointing_loss(1 deg, 0 deg)", "pointing_loss: beamwidth: must be positive (got 0°); the antenna's half-power beamwidth"},
 	}
 	for _, c := range cases {
 		if got := evalErr(t, c.formula); !strings.Contains(got, c.want) {
