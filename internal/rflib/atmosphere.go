@@ -96,7 +96,7 @@ var atmosphere = []*engine.Func{
 	{
 		Name: "sky_noise", Args: []engine.Arg{ratio("a"), optional(lin("tm", units.Temperature))}, Result: "K",
 		Doc: "Rise of an antenna's noise temperature caused by an absorbing medium of attenuation a in its beam (rain, gases, clouds): Tm·(1 − 10^(−a/10)), " +
-			"with the medium's mean radiating temperature tm (275 K by default, the value suggested for rain). Add it to the clear-sky antenna temperature.",
+			"with the medium's mean radiating temperature tm (275 K by default, the value suggested for rain; the 2.7 K cosmic background the medium dims is neglected). Add it to the clear-sky antenna temperature.",
 		Source: "ITU-R P.618-13 §3 (sky noise temperature)",
 		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
 			tm := 275.0
@@ -145,7 +145,7 @@ var atmosphere = []*engine.Func{
 			"(above sea level: ITU-R P.839 gives it as a map, which is not shipped, so take it from P.839 or local data; roughly the 0 °C isotherm height + 0.36 km). " +
 			"Steps 2–10 of the method: slant length through rain, horizontal reduction r0.01, vertical adjustment ν0.01, effective length, A0.01 = γR·LE, then scaling to p with the latitude- and elevation-dependent β. " +
 			"pol 'h', 'v' or 'c' (circular, tilt 45°), with P.838-3's elevation dependence. Write p with %, e.g. 0.1 % (a plain number is read as a fraction: 0.1 alone is 10 %). Warns for p outside 0.001–5 %, f outside 1–55 GHz, elevation below 5°.",
-		Source: "ITU-R P.618-13 §2.2.1.1, steps 1–10; ITU-R P.838-3 eqs. (1)–(5)",
+		Source: "ITU-R P.618-13 §2.2.1.1, steps 1–10 (the P.618-14 validation examples give the same values); ITU-R P.838-3 eqs. (1)–(5)",
 		Call: func(c *engine.Call, a []engine.Value) (units.Q, error) {
 			e, err := elevation(a, 1, "elev")
 			if err != nil {

@@ -168,7 +168,10 @@ func TestRainLOSRefs(t *testing.T) {
 // TestRainESValidation checks RainES against the ITU-R Study Group 3 validation examples for
 // P.618-13 §2.2.1.1 (CG-3M3J-13-ValEx), as extracted by the ITU-Rpy project
 // (test/test_data/618/ITURP618-13_A_rain.csv: site latitude, hs, f, elevation, τ, p, R0.01,
-// the slant length LS and A_rain). The rain height hR, a P.839 map value the examples take
+// the slant length LS and A_rain). The ITU-R validation examples for P.618-14, as listed in
+// ITU-Rpy's docs/validation/itur618_14_rain_attenuation_table.html, give the same A_rain for
+// these rows (e.g. 0.495317, 6.798072 and 28.742722 dB), so the step-by-step method is
+// unchanged in the current edition. The rain height hR, a P.839 map value the examples take
 // from the map, is recovered from the published LS by step 2: hR = hs + LS sin θ.
 func TestRainESValidation(t *testing.T) {
 	rows := []struct{ lat, hs, f, el, tau, p, r001, ls, want float64 }{
