@@ -205,6 +205,8 @@ func TestSecondTierErrors(t *testing.T) {
 		{"pfd(10 dBW, 0 m)", "pfd: d: the distance must be positive (got 0 m); the distance from the transmitter"},
 		{"lognormal_margin(8 dB, 1.5)", "; write the availability as 0.95 or 95 %"},
 		{"beamwidth(0 m, 10 GHz)", "; give the dish diameter"},
+		{"asin(2)", "; asin and acos take a ratio from -1 to 1"},
+		{"log2(0)", "log2: x = 0 is outside the function's domain; a logarithm needs a plain number above 0"},
 		{"pointing_loss(1 deg, 0 deg)", "pointing_loss: beamwidth: must be positive (got 0°); the antenna's half-power beamwidth"},
 	}
 	for _, c := range cases {
