@@ -45,7 +45,15 @@ func rainRate(a []engine.Value, i int) (float64, error) {
 	return r, nil
 }
 
-// p530Pct checks a time percentage: strictly between 0 and 100 %.
+// warnAvailability warns when a time percentage p (in %) looks like an availability (99.99 %)
+// given where the outage share (0.01 %) is meant.
+func warnAvailability(c *engine.Call, fn string, p float64) {
+	if p >= 50 {
+		c.Warn("%s: p = %s %% looks like an availability; p is the share of the year the fade is exceeded (for 99.99 %% availability write 0.01 %%)", fn, units.FormatNum(p))
+	}
+}
+
+// checkPct checks a time percentage: strictly between 0 and 100 %.
 func checkPct(p float64) error {
 	if !(p > 0 && p < 100) {
 		return &units.Error{Msg: fmt.Sprintf("p: the time percentage must lie strictly between 0 %% and 100 %% (got %s %%)", units.FormatNum(p)), Hint: "write it with its unit, e.g. 0.01 %"}
@@ -134,6 +142,7 @@ var atmosphere = []*engine.Func{
 			if err != nil {
 				return units.Q{}, clean(err)
 			}
+			warnAvailability(c, "rain_los", p)
 			warnFn(c, "rain_los", notes)
 			return result(v, uDB, "rain attenuation")
 		},
@@ -170,6 +179,7 @@ var atmosphere = []*engine.Func{
 			if err != nil {
 				return units.Q{}, clean(err)
 			}
+			warnAvailability(c, "rain_es", p)
 			warnFn(c, "rain_es", notes)
 			return result(v, uDB, "rain attenuation")
 		},

@@ -152,6 +152,10 @@ func TestSecondTierWarnings(t *testing.T) {
 		{"knife_edge(-20 m, 5 km, 5 km, 10 GHz)", "−0.78"},
 		{"pointing_loss(3 deg, 2 deg)", "exceeds one half-power beamwidth"},
 		{"db(2 V / 1 V)", "20 * log10(x)"},
+		// An availability where the outage share is meant (common practice, no source: P.530 and
+		// P.618 take p as the share of the year the fade is exceeded).
+		{"rain_los(23 GHz, 5 km, 42 mm/h, 99.99 %, 'v')", "rain_los: p = 99.99 % looks like an availability; p is the share of the year the fade is exceeded"},
+		{"rain_es(20 GHz, 30 deg, 42 mm/h, 99.9 %, 0 m, 3 km, 45 deg, 'c')", "rain_es: p = 99.9 % looks like an availability"},
 		{"db(field / (1 uV/m))", "to(x, 'dBuV/m')"},
 	}
 	for _, c := range cases {
