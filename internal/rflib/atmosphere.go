@@ -161,7 +161,7 @@ var atmosphere = []*engine.Func{
 				return units.Q{}, err
 			}
 			if e == 0 {
-				return units.Q{}, fmt.Errorf("elev: the path must rise above the horizon (got 0°)")
+				return units.Q{}, &units.Error{Msg: "elev: the path must rise above the horizon (got 0°)", Hint: "give the lowest elevation the antenna works at, e.g. 5 deg (below 5° the estimate is rough)"}
 			}
 			r, err := rainRate(a, 2)
 			if err != nil {

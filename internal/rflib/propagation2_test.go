@@ -210,6 +210,7 @@ func TestSecondTierErrors(t *testing.T) {
 		{"lognormal_margin(8 dB, 1.5)", "; write the availability as 0.95 or 95 %"},
 		{"beamwidth(0 m, 10 GHz)", "; give the dish diameter"},
 		{"asin(2)", "; asin and acos take a ratio from -1 to 1"},
+		{"rain_es(20 GHz, 0 deg, 42 mm/h, 0.01 %, 0 m, 3 km, 45 deg, 'c')", "rain_es: elev: the path must rise above the horizon (got 0°); give the lowest elevation"},
 		{"log2(0)", "log2: x = 0 is outside the function's domain; a logarithm needs a plain number above 0"},
 		{"pointing_loss(1 deg, 0 deg)", "pointing_loss: beamwidth: must be positive (got 0°); the antenna's half-power beamwidth"},
 	}
