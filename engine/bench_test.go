@@ -12,6 +12,7 @@ import (
 	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/engine"
 	"github.com/rfledger/rfledger/internal/gen"
+	"github.com/rfledger/rfledger/internal/sheettest"
 )
 
 const demo = "../worksheets/field-probe-uplink.toml"
@@ -289,6 +290,7 @@ func BenchmarkReloadEdit(b *testing.B) {
 			}
 			r, _ := sh.Eval()
 			i := 1
+			cpu := sheettest.CPUTime()
 			for b.Loop() {
 				next, diags := sheetFromFiles(map[string]string{"s.toml": versions[i%2]}, r.Sheet())
 				if diags.HasErrors() {
@@ -297,6 +299,7 @@ func BenchmarkReloadEdit(b *testing.B) {
 				r, _ = next.EvalFrom(r)
 				i++
 			}
+			sheettest.ReportCPU(b, cpu)
 		})
 	}
 }
