@@ -101,7 +101,7 @@ func keepModel(path string, fsys fs.FS, fsPath string, opt Options) (*Sheet, boo
 	}
 	k := &keptFrom{base: prev.id, shifts: map[string]func(int) int{}}
 	for _, e := range edited {
-		k.shifts[e.was.name] = byteShift(e.was.src, e.edits)
+		k.shifts[e.was.name], _ = byteShift(e.was.src, e.edits)
 		for _, d := range prev.diags {
 			if d.Range.File == e.was.name && slices.ContainsFunc(e.edits, func(le lineEdit) bool { return le.line == d.Range.Start.Line || le.line == d.Range.End.Line }) {
 				return nil, false // a diagnostic on an edited line: the edit may change it

@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/internal/gen"
 )
 
 // keepBase is a sheet with a part, a chain, long forms with tolerances, a requirement, a
@@ -147,6 +148,78 @@ func TestKeptReload(t *testing.T) {
 			if a, b := describeResult(incCases[i], incCases[i].Diagnostics()), describeResult(fullCases[i], fullCases[i].Diagnostics()); a != b {
 				t.Fatalf("%s: case %d differs:\n%s", e.what, i, firstDiff(a, b))
 			}
+		}
+		prev, prevR = inc, incR
+	}
+}
+
+// TestKeptReloadLargeSheet: on a generated sheet large enough that the position index shares
+// its unmoved parts with the earlier one, edits near the end, in the middle and at the top —
+// of the same length and of another — give the index a full scan gives, the sheet and the
+// evaluation a full load gives, and leave the earlier sheet's index as it was.
+func TestKeptReloadLargeSheet(t *testing.T) {
+	src, err := gen.Budget(3000, 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(string(src), "\n")
+	var values []int // lines holding an input's value alone, as `name = "1.5 dB"`
+	for i, l := range lines {
+		if strings.HasPrefix(l, "[[require]]") || strings.HasPrefix(l, "[[sweep]]") || strings.HasPrefix(l, "[[solve]]") {
+			break // the studies' values are not quantities
+		}
+		if strings.Contains(l, ` = "`) && !strings.Contains(l, `"= `) && strings.HasSuffix(l, ` dB"`) {
+			values = append(values, i)
+		}
+	}
+	if len(values) < 100 {
+		t.Fatalf("only %d input lines in the generated sheet", len(values))
+	}
+	dir := t.TempDir()
+	sheet := filepath.Join(dir, "s.toml")
+	write := func() {
+		if err := os.WriteFile(sheet, []byte(strings.Join(lines, "\n")), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	write()
+	prev, diags := engine.Load(sheet, engine.Options{Library: lib})
+	if diags.HasErrors() {
+		t.Fatal(diags)
+	}
+	prevR, _ := prev.Eval()
+	for n, at := range []int{values[len(values)-3], values[len(values)/2], values[0], values[len(values)/2+7], values[len(values)-1]} {
+		// Alternately the same length ("1.5 dB" → "1.6 dB") and longer ("1.5 dB" → "1.55 dB").
+		l := lines[at]
+		q := strings.LastIndex(l[:len(l)-len(` dB"`)], `"`)
+		num := l[q+1 : len(l)-len(` dB"`)]
+		repl := "9.9"
+		if n%2 == 1 {
+			repl = "9.75"
+		}
+		if num == repl {
+			repl = "8.8"
+		}
+		lines[at] = l[:q+1] + repl + ` dB"`
+		write()
+		inc, incDiags := engine.Load(sheet, engine.Options{Library: lib, Previous: prev})
+		if kept, _ := engine.Kept(inc); !kept {
+			t.Fatalf("line %d edited to %q: the model was not kept", at+1, lines[at])
+		}
+		if d := engine.IndexDiff(inc); d != "" {
+			t.Fatalf("line %d edited to %q: the index differs from one built in full: %s", at+1, lines[at], d)
+		}
+		if d := engine.IndexDiff(prev); d != "" {
+			t.Fatalf("line %d edited to %q: the earlier index changed: %s", at+1, lines[at], d)
+		}
+		full, fullDiags := engine.Load(sheet, engine.Options{Library: lib})
+		if a, b := describe(inc, incDiags), describe(full, fullDiags); a != b {
+			t.Fatalf("line %d edited to %q: the reload differs from a full load:\n%s", at+1, lines[at], firstDiff(a, b))
+		}
+		incR, incRDiags := inc.EvalFrom(prevR)
+		fullR, fullRDiags := full.Eval()
+		if a, b := describeResult(incR, incRDiags), describeResult(fullR, fullRDiags); a != b {
+			t.Fatalf("line %d edited to %q: the evaluation differs from a full one:\n%s", at+1, lines[at], firstDiff(a, b))
 		}
 		prev, prevR = inc, incR
 	}
