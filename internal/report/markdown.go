@@ -39,6 +39,18 @@ func (p *page) row(cells ...string) {
 func Markdown(in Input) ([]byte, []File) {
 	in = in.filled()
 	p := &page{in: in, r: in.Result, chains: analysis.Cascades(in.Result)}
+	// The line items (a row per quantity: most of a big sheet's page) are written on a
+	// goroutine of their own meanwhile, into a page of their own, and set in their place.
+	items := make(chan []byte, 1)
+	go func() {
+		ip := &page{in: p.in, r: p.r, chains: p.chains}
+		if ip.multiCase() {
+			ip.caseLineItems()
+		} else {
+			ip.lineItems()
+		}
+		items <- ip.b.Bytes()
+	}()
 	sh := in.Sheet
 	title := sh.Title
 	if title == "" {
@@ -50,13 +62,11 @@ func Markdown(in Input) ([]byte, []File) {
 	}
 	if p.multiCase() {
 		p.caseVerdict()
-		p.warnings()
-		p.caseLineItems()
 	} else {
 		p.verdict()
-		p.warnings()
-		p.lineItems()
 	}
+	p.warnings()
+	p.b.Write(<-items)
 	p.cascades()
 	p.caseSections()
 	if a := in.Analysis; a != nil && a.Focus != nil {
