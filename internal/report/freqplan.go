@@ -82,10 +82,11 @@ func planUnit(u *units.Unit) *units.Unit {
 	return u
 }
 
-// inUnit gives a frequency in u, rounded to 9 significant digits so that a band edge of
-// 1043.5 MHz does not read 1043.4999999.
+// inUnit gives a frequency in u, rounded to 12 significant digits so that a band edge of
+// 1043.5 MHz does not read 1043.4999999999998, while a script reading the JSON still gets
+// the edge to a tenth of a hertz at 20 GHz (9 digits cut 18368.966667 MHz to 18368.9667).
 func inUnit(hz float64, u *units.Unit) float64 {
-	v, _ := strconv.ParseFloat(strconv.FormatFloat(hz/u.Scale, 'g', 9, 64), 64)
+	v, _ := strconv.ParseFloat(strconv.FormatFloat(hz/u.Scale, 'g', 12, 64), 64)
 	return v
 }
 
