@@ -122,15 +122,18 @@ func TestFreqPlanPage(t *testing.T) {
 	}
 }
 
-// An LO formula that gives something other than a frequency is reported on the page.
+// An LO formula that gives something other than a positive frequency is an error at the LO
+// (positioned, so the command exits 3 and writes nothing), not a plan worked out for it.
 func TestFreqPlanBadLOFormula(t *testing.T) {
-	sh := load(t, strings.Replace(planSheet, `lo_hz = "1185 MHz"`, `lo_hz = "3 dB"`, 1))
-	page, _ := Markdown(Input{Result: sh})
-	if !strings.Contains(string(page), "The responses cannot be worked out: the LO must be a positive frequency") {
-		t.Error("no error for an LO in dB")
-	}
-	if !strings.Contains(string(JSON(Input{Result: sh})), `"error": "the LO must be a positive frequency`) {
-		t.Error("no JSON error for an LO in dB")
+	for _, lo := range []string{`lo_hz = "3 dB"`, `lo_hz = "-1185 MHz"`} {
+		_, diags := sheettest.Eval(strings.Replace(planSheet, `lo_hz = "1185 MHz"`, lo, 1))
+		found := false
+		for _, d := range diags {
+			found = found || d.Quantity == "spurs[1].lo" && strings.Contains(d.Summary, "the LO must be a")
+		}
+		if !diags.HasErrors() || !found {
+			t.Errorf("%s: %v", lo, diags)
+		}
 	}
 }
 
