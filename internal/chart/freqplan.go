@@ -88,7 +88,7 @@ func FreqPlan(w io.Writer, s FreqPlanSpec) error {
 		return fmt.Errorf("%w (frequency plan %q)", ErrEmpty, s.Title)
 	}
 	p := newPlot(s.Title, s.XLabel, s.YLabel)
-	p.X.Min, p.X.Max = pad(xmin, xmax, 0.06)
+	p.X.Min, p.X.Max = planXRange(xmin, xmax)
 	p.Y.Min, p.Y.Max = 0, ymax+1
 	p.Add(grid(true, true))
 	fp := &planPlotter{spec: s}
@@ -170,4 +170,14 @@ func (t kindThumb) Thumbnail(c *draw.Canvas) {
 		return
 	}
 	c.StrokeLine2(draw.LineStyle{Color: col, Width: vg.Points(3.5)}, c.Min.X, y, c.Max.X, y)
+}
+
+// planXRange pads the frequency axis by 6 % each side, but never below 0: no frequency in a
+// plan is negative, so a plan reaching down near 0 Hz starts its axis there.
+func planXRange(xmin, xmax float64) (float64, float64) {
+	lo, hi := pad(xmin, xmax, 0.06)
+	if xmin >= 0 && lo < 0 {
+		lo = 0
+	}
+	return lo, hi
 }
