@@ -151,7 +151,7 @@ order = 15
 		b.Fatal(diags)
 	}
 	for b.Loop() {
-		p := &page{in: Input{Result: sh, ChartBase: "bench"}}
+		p := &page{in: Input{Result: sh, ChartBase: "bench"}.filled(), r: sh}
 		p.freqPlans()
 		if len(p.files) != 1 {
 			b.Fatal("no chart")
