@@ -122,6 +122,19 @@ func TestFreqPlanPage(t *testing.T) {
 	}
 }
 
+// A tone inside a protected band is no product (Σ|k| = 1), but the page says so.
+func TestFreqPlanToneInBand(t *testing.T) {
+	sh := load(t, strings.Replace(planSheet, `tones   = ["915 MHz"]`, `tones   = ["915 MHz", "1830 MHz"]`, 1))
+	page, _ := Markdown(Input{Result: sh})
+	if !strings.Contains(string(page), "**f2 = 1830 MHz lies in 1805–1880 MHz inside a protected band itself**") {
+		t.Error("no word of a tone inside a protected band")
+	}
+	sh = load(t, planSheet)
+	if page, _ := Markdown(Input{Result: sh}); strings.Contains(string(page), "inside a protected band itself") {
+		t.Error("a tone outside the bands is said to be inside")
+	}
+}
+
 // An LO formula that gives something other than a positive frequency is an error at the LO
 // (positioned, so the command exits 3 and writes nothing), not a plan worked out for it.
 func TestFreqPlanBadLOFormula(t *testing.T) {
