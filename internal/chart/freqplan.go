@@ -141,21 +141,31 @@ func (pp *planPlotter) Plot(c draw.Canvas, p *plot.Plot) {
 		sty := smallText(p, 8)
 		c.FillText(sty, vg.Point{X: x + vg.Points(2), Y: c.Max.Y - vg.Points(10)}, t.Label)
 	}
+	// The segments of one kind go into one path, stroked once: an order-15 plan has hundreds
+	// of them, and a stroke each was most of the chart's time. The kinds are stroked from the
+	// last to the first, so the wanted and in-band responses lie on top.
+	segs := make([]vg.Path, len(kindStyle))
 	for _, m := range pp.spec.Marks {
 		if !finite(m.Lo) || !finite(m.Hi) || !finite(m.Y) || int(m.Kind) >= len(kindStyle) {
 			continue
 		}
-		col := kindStyle[m.Kind].color
 		y := trY(m.Y)
 		x0, x1 := trX(m.Lo), trX(m.Hi)
 		if m.Lo == m.Hi {
-			c.DrawGlyph(draw.GlyphStyle{Color: col, Radius: vg.Points(3), Shape: draw.CircleGlyph{}}, vg.Point{X: x0, Y: y})
+			c.DrawGlyph(draw.GlyphStyle{Color: kindStyle[m.Kind].color, Radius: vg.Points(3), Shape: draw.CircleGlyph{}}, vg.Point{X: x0, Y: y})
 			continue
 		}
 		if x1-x0 < vg.Points(2) {
 			x1 = x0 + vg.Points(2)
 		}
-		c.StrokeLine2(draw.LineStyle{Color: col, Width: vg.Points(3.5)}, x0, y, x1, y)
+		segs[m.Kind].Move(vg.Point{X: x0, Y: y})
+		segs[m.Kind].Line(vg.Point{X: x1, Y: y})
+	}
+	for k := len(segs) - 1; k >= 0; k-- {
+		if len(segs[k]) > 0 {
+			c.SetLineStyle(draw.LineStyle{Color: kindStyle[k].color, Width: vg.Points(3.5)})
+			c.Stroke(segs[k])
+		}
 	}
 }
 
