@@ -380,9 +380,20 @@ func TestFuncsAndUnits(t *testing.T) {
 		}
 	}
 	_, out, _ = run(t, "units")
-	for _, s := range []string{"dBm/Hz", "dB/km", "psum", "dBW/K/Hz"} {
+	for _, s := range []string{"dBm/Hz", "dB/km", "psum", "dBW/K/Hz", "dBc/Hz + dBHz -> dBc", "dBm + dBc -> dBm"} {
 		if !strings.Contains(out, s) {
 			t.Errorf("units lacks %q", s)
+		}
+	}
+	// The README's decibel algebra table has the phase-noise rows too (units/algebra_test.go
+	// checks that the algebra gives them).
+	readme, err := os.ReadFile("../../README.md")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, row := range []string{"| dBc/Hz + dBHz (phase noise over a channel) | dBc |", "| dBm + dBc, dBc + dB | dBm, dBc |"} {
+		if !strings.Contains(string(readme), row) {
+			t.Errorf("README lacks the row %q", row)
 		}
 	}
 }
