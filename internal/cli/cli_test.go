@@ -380,7 +380,9 @@ func TestFuncsAndUnits(t *testing.T) {
 		}
 	}
 	_, out, _ = run(t, "units")
-	for _, s := range []string{"dBm/Hz", "dB/km", "psum", "dBW/K/Hz", "dBc/Hz + dBHz -> dBc", "dBm + dBc -> dBm"} {
+	// The weather units, and how a temperature in degC is read (SI Brochure, 9th ed., 2.3.1:
+	// t/°C = T/K − 273.15); the phase-noise rules of the decibel algebra.
+	for _, s := range []string{"dBm/Hz", "dB/km", "psum", "dBW/K/Hz", "hPa (= 100 Pa)", "g/m^3", "15 degC is read as 288.15 K", "dBc/Hz + dBHz -> dBc", "dBm + dBc -> dBm"} {
 		if !strings.Contains(out, s) {
 			t.Errorf("units lacks %q", s)
 		}
