@@ -368,8 +368,12 @@ func (r *Result) fillChain(n *node) bool {
 	return sound && !n.chain.broken
 }
 
-// requirements evaluates every requirement.
+// requirements evaluates every requirement (and, unless quiet, checks the frequency plans'
+// LOs, which only a nominal or case evaluation reports).
 func (r *Result) requirements() {
+	if !r.quiet && len(r.sh.Spurs) > 0 {
+		r.checkPlanLOs()
+	}
 	for _, rq := range r.sh.Requires {
 		r.pass[rq.index] = -1
 		if rq.code == nil {
