@@ -731,6 +731,7 @@ func (l *loader) chain(f *sheetFile, g *Group, path, key string, tables []map[st
 				l.formulaSites = append(l.formulaSites, site{f: f, path: keyJoin(sp, k) + isPath(m), node: q.node, sc: scope{group: g.Name, part: f.prefix}})
 				st.Values[k] = q
 				st.Keys = append(st.Keys, k)
+				st.slots = append(st.slots, stageSlot{stageKeyIndex(k), q.node})
 				n.deps = append(n.deps, q.node)
 			default:
 				l.errAt(kr, qname, didYouMean(k, stageAllKeys, "a stage's keys are stage, gain, nf, te, loss, iip3, oip3, iip2, oip2, ip1db, op1db, note"), "unknown stage key %q", k)

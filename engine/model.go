@@ -173,7 +173,12 @@ type Stage struct {
 	Values map[string]*Quantity // the stage's values by key
 	Keys   []string             // the value keys in the order written
 	Range  Range                // where the stage's table is written
+
+	slots []stageSlot // Keys as StageValue places and nodes, for gathering the stage on every evaluation
 }
+
+// stageSlot is one value of a stage: its place in StageValue and the node that holds it.
+type stageSlot struct{ idx, node int }
 
 // ChainValue is what a function receives for a chain argument: the evaluated stages in signal order.
 type ChainValue struct {
@@ -233,7 +238,7 @@ func stageKeyIndex(key string) int {
 
 // Get returns a stage value by key. A passive stage written with `loss` has gain = −loss and,
 // at T0, noise figure = loss.
-func (s StageValue) Get(key string) (units.Q, bool) {
+func (s *StageValue) Get(key string) (units.Q, bool) {
 	i := stageKeyIndex(key)
 	if i < 0 {
 		return units.Q{}, false

@@ -348,14 +348,14 @@ func (r *Result) fillChain(n *node) bool {
 	for i, st := range n.chain.Stages {
 		sv := &cv.Stages[i]
 		sv.has = 0
-		for _, k := range st.Keys {
-			q := st.Values[k]
-			if !r.known[q.node] {
+		for _, sl := range st.slots {
+			if !r.known[sl.node] {
 				continue
 			}
-			v := r.sh.nodes[q.node].ty
-			v.V = r.vals[q.node]
-			sv.set(k, v)
+			v := r.sh.nodes[sl.node].ty
+			v.V = r.vals[sl.node]
+			sv.vals[sl.idx] = v
+			sv.has |= 1 << sl.idx
 		}
 		for _, p := range stageProblems(st, sv) {
 			sound = false

@@ -72,7 +72,8 @@ func stagesInto(out []rfmath.Stage, notes []string, cv *engine.ChainValue) ([]rf
 	if len(cv.Stages) == 0 {
 		return nil, nil, fmt.Errorf("chain %s has no stages", cv.Name)
 	}
-	for _, sv := range cv.Stages {
+	for i := range cv.Stages {
+		sv := &cv.Stages[i]
 		st := rfmath.Stage{Name: sv.Label}
 		g, ok := sv.Get("gain")
 		if !ok {
@@ -121,7 +122,7 @@ func stagesInto(out []rfmath.Stage, notes []string, cv *engine.ChainValue) ([]rf
 }
 
 // intercept reads an input-referred point, or derives it from the output-referred one.
-func intercept(sv engine.StageValue, inKey, outKey string, gain, compression float64) (float64, bool, error) {
+func intercept(sv *engine.StageValue, inKey, outKey string, gain, compression float64) (float64, bool, error) {
 	v, ok := sv.Get(inKey)
 	key := inKey
 	if !ok {
