@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/json"
 	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 	"sort"
@@ -291,6 +292,35 @@ func TestCasePagesRead(t *testing.T) {
 			if !strings.Contains(page, "| radomes | 1.00 dB |"+strings.Repeat("  |", n-1)) {
 				t.Errorf("%d cases: radomes should show once", n)
 			}
+		}
+	}
+}
+
+// TestSignalFlowLevelPerCase: the budget in signal order has a level column per case, and a
+// case's own change beside its level where it differs from the first column's.
+func TestSignalFlowLevelPerCase(t *testing.T) {
+	page, _ := render(t, caseSheet(t), t.TempDir())
+	// Free-space loss 20 log10(4π d f / c), ITU-R P.525-4 eq. (4) with λ = c/f; the level is
+	// 20 dBm minus it and the margin that level above −100 dBm.
+	fspl := func(km float64) float64 { return 20 * math.Log10(4*math.Pi*km*1e3*2.4e9/299792458) }
+	var levels, margins []string
+	for _, km := range []float64{2, 1, 100} {
+		levels = append(levels, fmt.Sprintf("**%.2f dBm**", 20-fspl(km)))
+		margins = append(margins, fmt.Sprintf("%.2f dB", 120-fspl(km)))
+	}
+	want := []string{
+		"| # | item | change | nominal | near | far |",
+		fmt.Sprintf("| 2 | `path.loss` | -%.2f dB | %.2f dBm | %.2f dBm (-%.2f dB) | %.2f dBm (-%.2f dB) |", fspl(2), 20-fspl(2), 20-fspl(1), fspl(1), 20-fspl(100), fspl(100)),
+		"| | **`link.rssi`** | | " + strings.Join(levels, " | ") + " |",
+		"| 3 | compared with `link.sens` = -100.00 dBm | | " + strings.Join(margins, " | ") + " |",
+	}
+	flow := string(page)
+	if i := strings.Index(flow, "## Where the budget goes"); i >= 0 {
+		flow = flow[i:]
+	}
+	for _, line := range want {
+		if !strings.Contains(flow, "\n"+line+"\n") {
+			t.Errorf("no line %q in\n%s", line, flow)
 		}
 	}
 }
