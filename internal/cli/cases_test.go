@@ -38,14 +38,34 @@ func withCases(t *testing.T, sheet string, cases ...string) string {
 }
 
 type caseDoc struct {
-	Quantities map[string]json.RawMessage `json:"quantities"`
-	Cases      []struct {
-		Name       string                     `json:"name"`
-		Nominal    bool                       `json:"nominal"`
-		Set        map[string]string          `json:"set"`
-		Pass       bool                       `json:"pass"`
-		Analyses   bool                       `json:"analyses"`
+	Pass         bool                       `json:"pass"`
+	Quantities   map[string]json.RawMessage `json:"quantities"`
+	Requirements []struct {
+		That   string   `json:"that"`
+		Pass   bool     `json:"pass"`
+		Chance *float64 `json:"chance"`
+	} `json:"requirements"`
+	Solves json.RawMessage `json:"solves"`
+	Cases  []struct {
+		Name     string            `json:"name"`
+		Nominal  bool              `json:"nominal"`
+		Set      map[string]string `json:"set"`
+		Pass     bool              `json:"pass"`
+		Analyses bool              `json:"analyses"`
+		Focus    *struct {
+			Name  string   `json:"name"`
+			Value *float64 `json:"value"`
+			Unit  string   `json:"unit"`
+		} `json:"focus"`
+		Requirements []struct {
+			That   string   `json:"that"`
+			Pass   bool     `json:"pass"`
+			Value  *float64 `json:"value"`
+			Unit   string   `json:"unit"`
+			Chance *float64 `json:"chance"`
+		} `json:"requirements"`
 		Quantities map[string]json.RawMessage `json:"quantities"`
+		Solves     json.RawMessage            `json:"solves"`
 	} `json:"cases"`
 }
 
@@ -62,15 +82,68 @@ func renderJSON(t *testing.T, args ...string) caseDoc {
 	return doc
 }
 
-// TestCaseValuesEqualSetRender is the issue's own check: every case's quantities in the JSON
-// equal, quantity by quantity (value, unit, SI value and warnings), those of a separate
-// render --json --set … with the same overrides, for the demo with cases, a demo given cases
-// here, and a generated network of 2,000 quantities with five cases.
+// orchardSheet is an invented 868 MHz soil-probe link with a solve and four cases, one with
+// a focus of its own; one case fails the EIRP cap.
+const orchardSheet = `title = "Orchard soil probes, 868 MHz"
+focus = "link.margin"
+[tx]
+power   = { is = "14 dBm", tol = "1 dB" }
+antenna = "2 dBi"
+cable   = "0.5 dB"
+eirp    = "= power + antenna - cable"
+[path]
+frequency = "868 MHz"
+distance  = { is = "1.2 km", tol = "5 %" }
+foliage   = { is = "8 dB", note = "apple rows in leaf" }
+loss      = "= fspl(distance, frequency) + foliage"
+[rx]
+antenna = "5 dBi"
+level   = "= tx.eirp - path.loss + antenna"
+sens    = "-137 dBm"
+[link]
+margin = "= rx.level - rx.sens"
+[[require]]
+that = "= link.margin >= 15 dB"
+[[require]]
+that = "= tx.eirp <= 16 dBm"
+note = "our own cap; check the legal limit with the regulator"
+[[solve]]
+name    = "reach"
+vary    = "path.distance"
+so_that = "link.margin"
+equals  = "15 dB"
+within  = ["0.1 km", "200 km"]
+[[case]]
+name = "SF7 near"
+set  = { "rx.sens" = "-124 dBm", "path.distance" = "300 m" }
+[[case]]
+name = "SF7 far"
+set  = { "rx.sens" = "-124 dBm", "path.distance" = "3.5 km" }
+[[case]]
+name  = "winter, bare trees"
+set   = { "path.foliage" = "2 dB", "path.distance" = "3.5 km" }
+focus = "rx.level"
+[[case]]
+name = "hot tx"
+set  = { "tx.power" = "17 dBm" }
+`
+
+// TestCaseValuesEqualSetRender is the issue's own check: every case's values in the JSON
+// equal those of a separate render --json --set … with the same overrides: its quantities,
+// quantity by quantity (value, unit, SI value and warnings), its pass, its focus's value and
+// unit, each requirement's pass, value and Monte Carlo chance, and its solves. The sheets:
+// the demo with cases, a demo given cases here, an invented sheet with a solve and a case
+// focus of its own, each with --all-cases, and a generated network of 2,000 quantities with
+// five cases (analyses for the first only).
 func TestCaseValuesEqualSetRender(t *testing.T) {
 	hill := withCases(t, "../../worksheets/hill-relay-backhaul.toml",
 		`name = "short hop"`+"\n"+`set = { "path.distance" = "3 km" }`,
 		`name = "wet radomes, long"`+"\n"+`set = { "path.distance" = "9 km", "path.radomes" = "3 dB", "climate.r001" = "60 mm/h" }`,
 		`name = "low power"`+"\n"+`set = { "tx.power" = "10 dBm" }`)
+	orchard := filepath.Join(t.TempDir(), "orchard.toml")
+	if err := os.WriteFile(orchard, []byte(orchardSheet), 0o644); err != nil {
+		t.Fatal(err)
+	}
 	src, err := gen.Budget(2000, 3)
 	if err != nil {
 		t.Fatal(err)
@@ -84,8 +157,12 @@ func TestCaseValuesEqualSetRender(t *testing.T) {
 	if err := os.WriteFile(genSheet, g.Bytes(), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	for _, sheet := range []string{"../../worksheets/barn-silo-backhaul.toml", hill, genSheet} {
-		doc := renderJSON(t, sheet)
+	for _, sheet := range []string{"../../worksheets/barn-silo-backhaul.toml", hill, orchard, genSheet} {
+		var all []string
+		if sheet != genSheet {
+			all = []string{"--all-cases"}
+		}
+		doc := renderJSON(t, append(all, sheet)...)
 		if len(doc.Cases) < 4 || !doc.Cases[0].Nominal {
 			t.Fatalf("%s: %d cases, first nominal %v", sheet, len(doc.Cases), len(doc.Cases) > 0 && doc.Cases[0].Nominal)
 		}
@@ -100,16 +177,70 @@ func TestCaseValuesEqualSetRender(t *testing.T) {
 				args = append(args, "--set", k+"="+c.Set[k])
 			}
 			alone := renderJSON(t, append(args, sheet)...)
+			at := fmt.Sprintf("%s, case %q", sheet, c.Name)
 			if len(alone.Quantities) != len(c.Quantities) {
-				t.Fatalf("%s, case %q: %d quantities, --set render has %d", sheet, c.Name, len(c.Quantities), len(alone.Quantities))
+				t.Fatalf("%s: %d quantities, --set render has %d", at, len(c.Quantities), len(alone.Quantities))
 			}
 			for name, want := range alone.Quantities {
 				if got := c.Quantities[name]; compact(got) != compact(want) {
-					t.Errorf("%s, case %q: %s = %s, --set render gives %s", sheet, c.Name, name, got, want)
+					t.Errorf("%s: %s = %s, --set render gives %s", at, name, got, want)
 				}
+			}
+			if c.Pass != alone.Pass {
+				t.Errorf("%s: pass %v, --set render %v", at, c.Pass, alone.Pass)
+			}
+			if c.Focus == nil {
+				t.Errorf("%s: no focus", at)
+			} else if got, want := fmt.Sprint(*c.Focus.Value, " ", c.Focus.Unit), valueUnit(t, alone.Quantities[c.Focus.Name]); got != want {
+				t.Errorf("%s: focus %s = %s, --set render gives %s", at, c.Focus.Name, got, want)
+			}
+			if len(c.Requirements) != len(alone.Requirements) {
+				t.Fatalf("%s: %d requirements, --set render has %d", at, len(c.Requirements), len(alone.Requirements))
+			}
+			for i, rq := range c.Requirements {
+				ar := alone.Requirements[i]
+				if rq.That != ar.That || rq.Pass != ar.Pass {
+					t.Errorf("%s: %s pass %v, --set render %s pass %v", at, rq.That, rq.Pass, ar.That, ar.Pass)
+				}
+				if rq.Value != nil {
+					if got, want := fmt.Sprint(*rq.Value, " ", rq.Unit), valueUnit(t, alone.Quantities[strings.Fields(rq.That)[0]]); got != want {
+						t.Errorf("%s: %s at %s, --set render %s", at, rq.That, got, want)
+					}
+				}
+				if c.Analyses && orNone(rq.Chance) != orNone(ar.Chance) {
+					t.Errorf("%s: %s chance %v, --set render %v", at, rq.That, rq.Chance, ar.Chance)
+				}
+			}
+			if c.Analyses && compact(c.Solves) != compact(alone.Solves) {
+				t.Errorf("%s: solves %s, --set render %s", at, c.Solves, alone.Solves)
+			}
+			if !c.Analyses && compact(c.Solves) != "[]" {
+				t.Errorf("%s: solves %s where the analyses were not run", at, c.Solves)
 			}
 		}
 	}
+}
+
+// orNone prints a number that may be absent.
+func orNone(v *float64) string {
+	if v == nil {
+		return "none"
+	}
+	return fmt.Sprint(*v)
+}
+
+// valueUnit is a quantity's value and unit in the JSON, as "value unit".
+func valueUnit(t *testing.T, raw json.RawMessage) string {
+	t.Helper()
+	var q struct {
+		Value *float64 `json:"value"`
+		Unit  string   `json:"unit"`
+	}
+	if err := json.Unmarshal(raw, &q); err != nil || q.Value == nil {
+		t.Errorf("quantity %s: %v", raw, err)
+		return ""
+	}
+	return fmt.Sprint(*q.Value, " ", q.Unit)
 }
 
 func compact(b []byte) string {
