@@ -224,6 +224,10 @@ func (s *Sheet) checkOverride(o Override, keyAt, valAt Range) (int, units.Q, *Di
 		return bad("only inputs can be set; it is \"= "+n.q.Formula+"\"", "derived from a formula")
 	}
 	if rest, isFormula := strings.CutPrefix(strings.TrimSpace(o.Value), "="); isFormula {
+		if keyAt.File != "--set" {
+			// a case's set, in the worksheet: the command line's spelling would mislead
+			return bad(fmt.Sprintf("write a value like the input's own, e.g. %q = %q", o.Name, n.q.Text), "a case's set takes a value, not a formula")
+		}
 		return bad(fmt.Sprintf("write --set '%s=%s'", o.Name, strings.TrimSpace(rest)), "--set takes a value, not a formula")
 	}
 	if !n.ok {
@@ -235,7 +239,7 @@ func (s *Sheet) checkOverride(o Override, keyAt, valAt Range) (int, units.Q, *Di
 		return bad(setHint(unitHint(err)), "%s", unitMsg(err))
 	}
 	if v.D != n.ty.D || (v.K == units.Rate) != (n.ty.K == units.Rate) {
-		return bad("", "is %s; %s is not of the same kind", n.q.Text, o.Value)
+		return bad(fmt.Sprintf("give a value of the input's kind, in a unit like %q", n.q.Text), "is %s; %s is not of the same kind", n.q.Text, o.Value)
 	}
 	if !finite(v) {
 		return bad("", "%s is not a finite number", o.Value)

@@ -342,16 +342,52 @@ func TestExportOneOperatingPoint(t *testing.T) {
 	}
 }
 
-// TestBadCasesWriteNothing: a worksheet whose cases are wrong cannot be evaluated (exit 3)
-// and no page is written.
+// TestBadCasesWriteNothing: a worksheet whose cases are wrong cannot be evaluated (exit 3),
+// render, render --json and export write nothing, and each mistake the issue lists is an error
+// at FILE:LINE:COL with a hint.
 func TestBadCasesWriteNothing(t *testing.T) {
-	out := filepath.Join(t.TempDir(), "page.md")
-	code, _, stderr := run(t, "render", "../../testdata/invalid/case_errors.toml", "-o", out)
-	if code != ExitBadSheet || !strings.Contains(stderr, "case_errors.toml:13:10: path.distanse: no such quantity") {
-		t.Fatalf("exit %d\n%s", code, stderr)
+	const sheet = "../../testdata/invalid/case_errors.toml"
+	at := "case_errors.toml:"
+	want := []string{
+		at + `13:10: path.distanse: no such quantity; did you mean "path.distance"?`,        // unknown input
+		at + `17:10: path.loss: derived from a formula; only inputs can be set`,             // derived quantity
+		at + `21:28: path.distance: is 4 km; 8 dB is not of the same kind; give a value of`, // wrong kind
+		at + `28:8: case: case "far" is defined twice; already defined at`,                  // duplicate name
+		at + `32:8: case: case "path" is named like the group [path]; choose a name no group has`,
+		at + `44:1: case: a case needs a name; write name = "heavy rain"`,
+		at + `58:10: path.distance: a case's set takes a value, not a formula; write a value like`,
+		at + `62:8: case: set must be a table of input names and values; write set = {`,
 	}
-	if _, err := os.Stat(out); err == nil {
-		t.Fatal("a page was written")
+	for _, args := range [][]string{
+		{"render", sheet, "-o", "page.md"},
+		{"render", "--json", sheet, "-o", "page.json"},
+		{"export", sheet, "--c-header", "-o", "page.h"},
+		{"check", sheet},
+	} {
+		dir := t.TempDir()
+		if n := len(args); args[n-2] == "-o" {
+			args[n-1] = filepath.Join(dir, args[n-1])
+		}
+		code, out, stderr := run(t, args...)
+		if code != ExitBadSheet {
+			t.Errorf("%v: exit %d, want %d\n%s%s", args, code, ExitBadSheet, out, stderr)
+		}
+		for _, w := range want {
+			if !strings.Contains(stderr+out, w) {
+				t.Errorf("%v: no error %q in\n%s%s", args, w, out, stderr)
+			}
+		}
+		if files, _ := os.ReadDir(dir); len(files) > 0 {
+			t.Errorf("%v: wrote %v", args, files)
+		}
+	}
+	dir := t.TempDir()
+	code, _, stderr := run(t, "render", "../../testdata/invalid/case_too_many.toml", "-o", filepath.Join(dir, "page.md"))
+	if code != ExitBadSheet || !strings.Contains(stderr, "case_too_many.toml:260:1: case: more than 64 cases; split the operating points over several worksheets") {
+		t.Errorf("65 cases: exit %d\n%s", code, stderr)
+	}
+	if files, _ := os.ReadDir(dir); len(files) > 0 {
+		t.Errorf("65 cases: wrote %v", files)
 	}
 }
 
