@@ -491,3 +491,59 @@ func TestSignalFlowLevelPerCase(t *testing.T) {
 		}
 	}
 }
+
+// TestDiffCaseByCase: diff matches cases by name, shows a changed case's flip, an added
+// case's focus and failing requirement, a removed case's focus, and --exit-code exits 1 on a
+// requirement that flips in one case only.
+func TestDiffCaseByCase(t *testing.T) {
+	sheet := func(cases string) string {
+		src := `focus = "link.margin"
+[path]
+distance = "2 km"
+loss = "= fspl(distance, 2.4 GHz)"
+[link]
+margin = "= 20 dBm - path.loss - (-100 dBm)"
+[[require]]
+that = "= link.margin >= 0 dB"
+` + cases
+		p := filepath.Join(t.TempDir(), "link.toml")
+		if err := os.WriteFile(p, []byte(src), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	c := func(name, d string) string {
+		return fmt.Sprintf("[[case]]\nname = %q\nset = { \"path.distance\" = %q }\n", name, d)
+	}
+	old := sheet(c("near", "1 km") + c("far", "100 km") + c("mid", "5 km"))
+	now := sheet(c("near", "60 km") + c("far", "3 km") + c("farther", "200 km"))
+	// Free-space loss 20 log10(4π d f / c), ITU-R P.525-4 eq. (4); the margin is 120 dB less it
+	// (written here as a level difference: 20 dBm − loss − (−100 dBm)).
+	margin := func(km float64) string {
+		return fmt.Sprintf("%.2f dB", 120-20*math.Log10(4*math.Pi*km*1e3*2.4e9/299792458))
+	}
+	code, out, stderr := run(t, "diff", old, now)
+	if code != ExitOK {
+		t.Fatalf("exit %d\n%s", code, stderr)
+	}
+	for _, row := range []string{
+		"| near | changed | " + margin(1) + " | " + margin(60) + " | `link.margin >= 0 dB`: pass → fail | 3 |",
+		"| far | changed | " + margin(100) + " | " + margin(3) + " | `link.margin >= 0 dB`: fail → pass | 3 |",
+		"| farther | added |  | " + margin(200) + " | `link.margin >= 0 dB`: fail |  |",
+		"| mid | removed | " + margin(5) + " |  | all pass |  |",
+	} {
+		if !strings.Contains(out, "\n"+row+"\n") {
+			t.Errorf("no row %q in\n%s", row, out)
+		}
+	}
+	code, out, _ = run(t, "diff", "--exit-code", "--format", "json", old, now)
+	var doc struct {
+		Flipped []string `json:"flipped"`
+	}
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatal(err)
+	}
+	if code != ExitFail || fmt.Sprint(doc.Flipped) != `[link.margin >= 0 dB (case "near")]` {
+		t.Errorf("--exit-code: exit %d, flipped %q", code, doc.Flipped)
+	}
+}
