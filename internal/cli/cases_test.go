@@ -337,6 +337,18 @@ func TestExportOneOperatingPoint(t *testing.T) {
 	_, near, _ := run(t, "export", sheet, "--c-header", "--case", "near")
 	_, far, _ := run(t, "export", sheet, "--c-header", "--case", "far")
 	_, set, _ := run(t, "export", sheet, "--c-header", "--case", "nominal", "--set", "path.distance=100 km")
+	// the header names its operating point in the comment under its first line
+	point := func(h, want string) string {
+		lines := strings.SplitN(h, "\n", 3)
+		if len(lines) < 3 || lines[1] != "/* operating point: "+want+" */" {
+			t.Errorf("header's second line %q, want the operating point %s", lines[min(1, len(lines)-1)], want)
+			return h
+		}
+		return lines[0] + "\n" + lines[2]
+	}
+	near = point(near, `case "near" (path.distance = 1 km)`)
+	far = point(far, `case "far" (path.distance = 100 km)`)
+	set = point(set, `case "nominal" (the worksheet as written)`)
 	if near == far || far != set {
 		t.Fatalf("near:\n%s\nfar:\n%s\nfar by --set:\n%s", near, far, set)
 	}
