@@ -404,7 +404,7 @@ func TestBadCasesWriteNothing(t *testing.T) {
 }
 
 // TestAllCasesAnalyses: the analyses run for the first case by default, for a case with
-// analyses = true, and for every case with --all-cases.
+// analyses = true, and for every case with --all-cases; the page and check say for which.
 func TestAllCasesAnalyses(t *testing.T) {
 	analysed := func(doc caseDoc) string {
 		var s []string
@@ -419,6 +419,19 @@ func TestAllCasesAnalyses(t *testing.T) {
 	}
 	if got := analysed(renderJSON(t, barn, "--all-cases")); got != "true true true true true true true" {
 		t.Errorf("--all-cases: %s", got)
+	}
+	// the page and check say which cases were analysed
+	_, page, _ := run(t, "render", "--trials", "200", barn)
+	if !strings.Contains(page, "were run for “near, clear sky”, “far, heavy rain”, and the sections below show “near, clear sky”; they were not run for “near, moderate rain”") {
+		t.Errorf("the page does not say which cases were analysed")
+	}
+	_, out, _ := run(t, "check", "--trials", "200", barn)
+	if strings.Count(out, "\n  in case ") != 1 || !strings.Contains(out, "\n  in case \"far, heavy rain\" all hold together in ") || !strings.Contains(out, "\n  Monte Carlo not run for 5 of 7 cases (--all-cases") {
+		t.Errorf("check:\n%s", out)
+	}
+	_, out, _ = run(t, "check", "--trials", "200", "--all-cases", barn)
+	if strings.Count(out, "\n  in case ") != 6 || strings.Contains(out, "not run") {
+		t.Errorf("check --all-cases:\n%s", out)
 	}
 }
 
