@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/json"
 	"fmt"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -14,7 +15,9 @@ import (
 	"github.com/yuin/goldmark"
 	"github.com/yuin/goldmark/extension"
 
+	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/internal/gen"
+	"github.com/rfledger/rfledger/internal/rflib"
 	"github.com/rfledger/rfledger/internal/schematest"
 )
 
@@ -188,6 +191,9 @@ func TestCaseValuesEqualSetRender(t *testing.T) {
 			}
 			if c.Pass != alone.Pass {
 				t.Errorf("%s: pass %v, --set render %v", at, c.Pass, alone.Pass)
+			}
+			if wantFocus := map[string]string{"winter, bare trees": "rx.level"}[c.Name]; sheet == orchard && c.Focus != nil && wantFocus != "" && c.Focus.Name != wantFocus {
+				t.Errorf("%s: focus %s, the case names %s", at, c.Focus.Name, wantFocus)
 			}
 			if c.Focus == nil {
 				t.Errorf("%s: no focus", at)
@@ -570,5 +576,57 @@ that = "= link.margin >= 0 dB"
 	}
 	if code != ExitFail || fmt.Sprint(doc.Flipped) != `[link.margin >= 0 dB (case "near")]` {
 		t.Errorf("--exit-code: exit %d, flipped %q", code, doc.Flipped)
+	}
+}
+
+// TestLivePageShowsCases: watch's page shows every case side by side, its bar counts the
+// checks over all of them, an edit to one case shows on the next render, and --case
+// restricts the live page as it does render.
+func TestLivePageShowsCases(t *testing.T) {
+	src, err := os.ReadFile("../../worksheets/barn-silo-backhaul.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	sheet := filepath.Join(dir, "barn.toml")
+	if err := os.WriteFile(sheet, src, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	names := []string{"near, clear sky", "near, moderate rain", "near, heavy rain", "far, clear sky", "far, moderate rain", "far, heavy rain", "far, 16-QAM, heavy rain"}
+	lw := &liveSheet{e: &Env{Stdout: io.Discard, Stderr: io.Discard}, sheet: sheet, out: filepath.Join(dir, "barn.md"), lib: rflib.Library(), ao: analysis.Options{Seed: 1, Trials: 200}}
+	page, _, err := lw.render()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if header := "\n| | " + strings.Join(names, " | ") + " |\n"; !strings.Contains(string(page), header) {
+		t.Errorf("no verdict column per case in the live page")
+	}
+	// 3 requirements in 7 cases; "far" fails its margin in clear sky, moderate and heavy rain
+	if s := lw.summary(); s.Verdict != "FAIL" || s.Detail != "18 of 21 requirement checks hold over 7 cases" {
+		t.Errorf("bar: %q, %q", s.Verdict, s.Detail)
+	}
+	edited := strings.Replace(string(src), `name = "far, clear sky"
+set  = { "path.distance" = "5.2 km" }`, `name = "far, clear sky"
+set  = { "path.distance" = "2 km" }`, 1)
+	if edited == string(src) {
+		t.Fatal("the demo's far, clear sky case is not where the test expects it")
+	}
+	if err := os.WriteFile(sheet, []byte(edited), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	page, _, err = lw.render()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(page), "`path.distance` = 2 km") || lw.summary().Detail != "19 of 21 requirement checks hold over 7 cases" {
+		t.Errorf("the edited case does not show: %q", lw.summary().Detail)
+	}
+	lw.sel = caseSel{names: []string{"far, heavy rain", "near, clear sky"}}
+	page, _, err = lw.render()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(page), "\n| | near, clear sky | far, heavy rain |\n") || lw.summary().Detail != "5 of 6 requirement checks hold over 2 cases" {
+		t.Errorf("--case: %q", lw.summary().Detail)
 	}
 }
