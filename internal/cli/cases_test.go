@@ -5,7 +5,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"math"
 	"os"
 	"path/filepath"
 	"sort"
@@ -19,6 +18,7 @@ import (
 	"github.com/rfledger/rfledger/internal/gen"
 	"github.com/rfledger/rfledger/internal/rflib"
 	"github.com/rfledger/rfledger/internal/schematest"
+	"github.com/rfledger/rfledger/internal/sheettest"
 )
 
 // withCases writes sheet's text with [[case]] entries appended into a temporary folder.
@@ -498,9 +498,9 @@ func TestCasePagesRead(t *testing.T) {
 // case's own change beside its level where it differs from the first column's.
 func TestSignalFlowLevelPerCase(t *testing.T) {
 	page, _ := render(t, caseSheet(t), t.TempDir())
-	// Free-space loss 20 log10(4π d f / c), ITU-R P.525-4 eq. (4) with λ = c/f; the level is
-	// 20 dBm minus it and the margin that level above −100 dBm.
-	fspl := func(km float64) float64 { return 20 * math.Log10(4*math.Pi*km*1e3*2.4e9/299792458) }
+	// Free-space loss by ITU-R P.525-4 eq. (4) (sheettest); the level is 20 dBm minus it and
+	// the margin that level above −100 dBm.
+	fspl := func(km float64) float64 { return sheettest.FreeSpaceLossDB(km*1e3, 2.4e9) }
 	var levels, margins []string
 	for _, km := range []float64{2, 1, 100} {
 		levels = append(levels, fmt.Sprintf("**%.2f dBm**", 20-fspl(km)))
@@ -548,10 +548,10 @@ that = "= link.margin >= 0 dB"
 	}
 	old := sheet(c("near", "1 km") + c("far", "100 km") + c("mid", "5 km"))
 	now := sheet(c("near", "60 km") + c("far", "3 km") + c("farther", "200 km"))
-	// Free-space loss 20 log10(4π d f / c), ITU-R P.525-4 eq. (4); the margin is 120 dB less it
+	// Free-space loss by ITU-R P.525-4 eq. (4) (sheettest); the margin is 120 dB less it
 	// (written here as a level difference: 20 dBm − loss − (−100 dBm)).
 	margin := func(km float64) string {
-		return fmt.Sprintf("%.2f dB", 120-20*math.Log10(4*math.Pi*km*1e3*2.4e9/299792458))
+		return fmt.Sprintf("%.2f dB", 120-sheettest.FreeSpaceLossDB(km*1e3, 2.4e9))
 	}
 	code, out, stderr := run(t, "diff", old, now)
 	if code != ExitOK {
