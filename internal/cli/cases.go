@@ -99,6 +99,7 @@ func (ev *evaluated) evalCases(cases []*engine.Case, set []engine.Override, sel 
 			for _, d := range cdiags[k] {
 				if !seen[d.String()] {
 					d.Quantity = strings.TrimSpace(d.Quantity + " in case " + fmt.Sprintf("%q", c.Name))
+					d.Hint = caseHint(d.Hint, c)
 					diags = append(diags, d)
 				}
 			}
@@ -128,6 +129,19 @@ func (ev *evaluated) evalCases(cases []*engine.Case, set []engine.Override, sel 
 	}
 	ev.analysis = ev.cases[0].Analysis
 	return diags
+}
+
+// caseHint adds to the hint of a problem only a case's overrides raised where that case is
+// written, since the problem's own position is the formula, not the value that upset it.
+func caseHint(hint string, c *engine.Case) string {
+	if c.Range.Start.Line == 0 {
+		return hint
+	}
+	where := fmt.Sprintf("the case is written at %s", c.Range)
+	if hint == "" {
+		return where
+	}
+	return hint + "; " + where
 }
 
 // diffCase is what changed in one case between two worksheets.

@@ -630,3 +630,29 @@ set  = { "path.distance" = "2 km" }`, 1)
 		t.Errorf("--case: %q", lw.summary().Detail)
 	}
 }
+
+// TestCaseEvaluationError: a value that passes the checks of set but that a model refuses
+// (a negative distance) stops the sheet (exit 3, nothing written), at the formula, naming the
+// case and saying where it is written.
+func TestCaseEvaluationError(t *testing.T) {
+	src, err := os.ReadFile(caseSheet(t))
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	sheet := filepath.Join(dir, "link.toml")
+	bad := string(src) + "[[case]]\nname = \"behind\"\nset = { \"path.distance\" = \"-1 km\" }\n"
+	if err := os.WriteFile(sheet, []byte(bad), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "page.md")
+	code, _, stderr := run(t, "render", sheet, "-o", out)
+	line := strings.Count(string(src), "\n") + 1 // the [[case]] line appended
+	want := fmt.Sprintf(`link.toml:4:11: path.loss in case "behind": fspl: d: a distance cannot be negative (got -1 km); the case is written at %s:%d:1`, sheet, line)
+	if code != ExitBadSheet || !strings.Contains(stderr, want) {
+		t.Errorf("exit %d, want %d and %q in\n%s", code, ExitBadSheet, want, stderr)
+	}
+	if _, err := os.Stat(out); err == nil {
+		t.Error("a page was written")
+	}
+}
