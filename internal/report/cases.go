@@ -311,6 +311,8 @@ func (p *page) caseLineItems() {
 	p.f("## Line items\n\n")
 	if !p.wideCases() {
 		p.f("Values are those of “%s”; what differs in the other cases is in each case's section under [Cases](#cases).\n\n", text(first.Case.Name))
+	} else {
+		p.f("A quantity whose value differs between cases shows each case's; one with a single value has it in every case.\n\n")
 	}
 	for _, g := range sh.Groups {
 		if !p.groupHeading(g) {
