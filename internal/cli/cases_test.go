@@ -426,6 +426,12 @@ func TestAllCasesAnalyses(t *testing.T) {
 	if got := analysed(renderJSON(t, barn, "--all-cases")); got != "true true true true true true true" {
 		t.Errorf("--all-cases: %s", got)
 	}
+	// every case's chances and solves are in the render schema too
+	_, schema, _ := run(t, "schema", "--render-output")
+	_, js, _ := run(t, "render", "--json", "--trials", "200", "--all-cases", barn)
+	for _, e := range schematest.Validate([]byte(schema), []byte(js)) {
+		t.Errorf("--all-cases JSON: %s", e)
+	}
 	// the page and check say which cases were analysed
 	_, page, _ := run(t, "render", "--trials", "200", barn)
 	if !strings.Contains(page, "were run for “near, clear sky”, “far, heavy rain”, and the sections below show “near, clear sky”; they were not run for “near, moderate rain”") {
