@@ -497,6 +497,14 @@ func TestCasePagesRead(t *testing.T) {
 				t.Errorf("%d cases: radomes should show once", n)
 			}
 		}
+		// the budget in signal order: a level column per case side by side, one beyond
+		flowHead := "\n| # | item | change | level |\n"
+		if n <= 8 {
+			flowHead = "\n| # | item | change |" + strings.TrimPrefix(header, "| |") + "\n"
+		}
+		if i := strings.Index(page, "## Where the budget goes"); i < 0 || !strings.Contains(page[i:], flowHead) {
+			t.Errorf("%d cases: no signal-flow table headed %q", n, flowHead)
+		}
 	}
 }
 
