@@ -12,6 +12,7 @@ import (
 	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/engine"
 	"github.com/rfledger/rfledger/internal/gen"
+	"github.com/rfledger/rfledger/internal/sheettest"
 )
 
 const demo = "../worksheets/field-probe-uplink.toml"
@@ -261,5 +262,44 @@ func BenchmarkLoadFile(b *testing.B) {
 	for b.Loop() {
 		sh, _ := engine.Load(path, engine.Options{Library: lib})
 		sh.Eval()
+	}
+}
+
+// BenchmarkReloadEdit is the engine's part of a save in watch or a keystroke in an editor on
+// the generated 10,000-quantity sheet (internal/gen): Load with the previous load as
+// Options.Previous, then EvalFrom the previous result. Each op alternates between two
+// versions that differ in one input's value (input) or in one formula (formula).
+func BenchmarkReloadEdit(b *testing.B) {
+	src, err := gen.Budget(10_000, 1)
+	if err != nil {
+		b.Fatal(err)
+	}
+	for _, c := range []struct{ name, from, to string }{
+		{"input", `conn02 = "0.2 dB"`, `conn02 = "0.3 dB"`},
+		{"formula", `gw_cable = "= 0.22 dB/m * gw_length"`, `gw_cable = "= 0.23 dB/m * gw_length"`},
+	} {
+		b.Run(c.name, func(b *testing.B) {
+			edited := strings.Replace(string(src), c.from, c.to, 1)
+			if edited == string(src) {
+				b.Fatalf("the generated sheet has no %q", c.from)
+			}
+			versions := []string{string(src), edited}
+			sh, diags := sheetFromFiles(map[string]string{"s.toml": versions[0]}, nil)
+			if diags.HasErrors() {
+				b.Fatal(diags)
+			}
+			r, _ := sh.Eval()
+			i := 1
+			cpu := sheettest.CPUTime()
+			for b.Loop() {
+				next, diags := sheetFromFiles(map[string]string{"s.toml": versions[i%2]}, r.Sheet())
+				if diags.HasErrors() {
+					b.Fatal(diags)
+				}
+				r, _ = next.EvalFrom(r)
+				i++
+			}
+			sheettest.ReportCPU(b, cpu)
+		})
 	}
 }

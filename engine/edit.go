@@ -33,17 +33,20 @@ func (f *sheetFile) keysOnLine(line int) []string {
 }
 
 // lineEdit is one line an edit changed: its number (from 1), the change of its length in
-// bytes, and whether it holds a key (false for a blank or comment line).
+// bytes, whether it holds a key (false for a blank or comment line), and for one that does,
+// the index path of the key whose value changed.
 type lineEdit struct {
 	line, delta int
 	keyed       bool
+	path        string
 }
 
 // patchDoc returns the decoded document of src, made from old's when src differs from old's
 // text only in the values of keys that keep their place (or in comments and blank lines),
 // and the lines that changed; ok is false when the edit is of another kind, and src must be
-// decoded in full.
-func patchDoc(old *sheetFile, src string) (doc map[string]any, edits []lineEdit, ok bool) {
+// decoded in full. When vet is not nil, each edited value is decoded only if vet passes the
+// text decoded ("v = " and the value), for a caller that has not pre-scanned src.
+func patchDoc(old *sheetFile, src string, vet func(text string) bool) (doc map[string]any, edits []lineEdit, ok bool) {
 	if old == nil || old.doc == nil {
 		return nil, nil, false
 	}
@@ -70,14 +73,18 @@ func patchDoc(old *sheetFile, src string) (doc map[string]any, edits []lineEdit,
 			edits = append(edits, e)
 			continue
 		}
-		e.keyed = true
-		edits = append(edits, e)
 		path, valAt, ok := old.valueOnLine(i+1, was[i])
 		if !ok || len(now[i]) < valAt || now[i][:valAt] != was[i][:valAt] {
 			return nil, nil, false
 		}
+		e.keyed, e.path = true, path
+		edits = append(edits, e)
+		text := "v = " + now[i][valAt:]
+		if vet != nil && !vet(text) {
+			return nil, nil, false
+		}
 		var m map[string]any
-		if _, err := toml.Decode("v = "+now[i][valAt:], &m); err != nil {
+		if _, err := toml.Decode(text, &m); err != nil {
 			return nil, nil, false // a broken value: a full decode reports it where it stands
 		}
 		v, isValue := m["v"]

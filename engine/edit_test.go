@@ -10,25 +10,95 @@ import (
 	"testing"
 
 	"github.com/rfledger/rfledger/engine"
+	"github.com/rfledger/rfledger/units"
 )
 
-// describe writes everything a load found that a reader can see: every quantity's fields
-// and range, the groups, requirements and studies, and the diagnostics.
+// describe writes everything a load found that a reader can see: the sheet's fields, every
+// group, quantity (its fields, type, nominal value, dependencies and range to the byte),
+// chain and stage, the requirements, studies, cases and frequency plan, and the
+// diagnostics. A quantity or requirement that does not belong to sh is marked.
 func describe(sh *engine.Sheet, diags engine.Diagnostics) string {
 	var b strings.Builder
+	at := func(r engine.Range) string { return fmt.Sprintf("%s %+v %+v", r.File, r.Start, r.End) }
+	unit := func(u *units.Unit) string {
+		if u == nil {
+			return "-"
+		}
+		return fmt.Sprintf("%+v", *u)
+	}
+	fmt.Fprintf(&b, "sheet %q %q %q %q %q %v\n", sh.File, sh.Title, sh.Summary, sh.Focus, sh.Hash, sh.Parts)
 	for _, g := range sh.Groups {
-		fmt.Fprintf(&b, "group %s %v\n", g.Name, g.Range)
+		fmt.Fprintf(&b, "group %s %s", g.Name, at(g.Range))
+		for _, q := range g.Quantities {
+			fmt.Fprintf(&b, " %s", q.Name)
+		}
+		for _, c := range g.Chains {
+			fmt.Fprintf(&b, " chain %s", c.Name)
+		}
+		b.WriteString("\n")
 	}
 	for _, q := range sh.Quantities() {
 		t, ok := q.Type()
 		v, _ := q.Nominal()
-		fmt.Fprintf(&b, "%s %q %q %v %v %v %v %q %q %+v\n", q.Name, q.Formula, q.Text, t, ok, v, q.Range, q.Note, q.Source, q.Tol)
+		fmt.Fprintf(&b, "%s %s %q %q %v %v %v %s %q %q %+v %s %s %v %q %v %v\n", q.Name, q.Group, q.Formula, q.Text, t, ok, v, at(q.Range), q.Note, q.Source, q.Tol,
+			unit(q.Unit), unit(q.Show), q.Export, q.ExportName, sh.Dependencies(q), q.Sheet() == sh)
+	}
+	for _, c := range sh.Chains() {
+		fmt.Fprintf(&b, "chain %s %s", c.Name, at(c.Range))
+		for _, q := range []*engine.Quantity{c.Input, c.Bandwidth, c.Backoff} {
+			if q != nil {
+				fmt.Fprintf(&b, " %s(%v)", q.Name, q.Sheet() == sh)
+			}
+		}
+		for _, st := range c.Stages {
+			fmt.Fprintf(&b, " [%q %q %s", st.Label, st.Note, at(st.Range))
+			for _, k := range st.Keys {
+				fmt.Fprintf(&b, " %s=%s(%v)", k, st.Values[k].Name, st.Values[k].Sheet() == sh)
+			}
+			b.WriteString("]")
+		}
+		b.WriteString("\n")
 	}
 	for _, rq := range sh.Requires {
-		fmt.Fprintf(&b, "require %q %v %s %s %v\n", rq.That, rq.Range, rq.Subject, rq.Op, rq.Bound)
+		fmt.Fprintf(&b, "require %q %q %s %s %s %v\n", rq.That, rq.Note, at(rq.Range), rq.Subject, rq.Op, rq.Bound)
+	}
+	for _, sw := range sh.Sweeps {
+		fmt.Fprintf(&b, "sweep %+v\n", *sw)
+	}
+	for _, so := range sh.Solves {
+		fmt.Fprintf(&b, "solve %+v\n", *so)
+	}
+	for _, c := range append([]*engine.Case{sh.Nominal}, sh.Cases...) {
+		if c != nil {
+			fmt.Fprintf(&b, "case %+v\n", *c)
+		}
+	}
+	for _, sp := range sh.Spurs {
+		fmt.Fprintf(&b, "spurs %q %q %s(%v) %v %v %d %v %s %s\n", sp.Name, sp.Note, sp.LO.Name, sp.LO.Sheet() == sh, sp.IF, sp.RF, sp.Order, sp.Reject, unit(sp.Unit), at(sp.Range))
+	}
+	for _, pr := range sh.Products {
+		fmt.Fprintf(&b, "products %q %q %v %v %d %s %s\n", pr.Name, pr.Note, pr.Tones, pr.Protect, pr.Order, unit(pr.Unit), at(pr.Range))
 	}
 	for _, d := range diags {
 		fmt.Fprintf(&b, "diag %s %v %v\n", d, d.Range.Start, d.Range.End)
+	}
+	return b.String()
+}
+
+// describeResult writes what an evaluation gives: every quantity's value (or unknown), every
+// requirement's outcome, and the diagnostics with their ranges to the byte.
+func describeResult(r *engine.Result, diags engine.Diagnostics) string {
+	var b strings.Builder
+	for _, q := range r.Sheet().Quantities() {
+		v, ok := r.Value(q)
+		fmt.Fprintf(&b, "%s %v %v\n", q.Name, v, ok)
+	}
+	for _, rq := range r.Sheet().Requires {
+		p, ok := r.Pass(rq)
+		fmt.Fprintf(&b, "require %q %v %v\n", rq.That, p, ok)
+	}
+	for _, d := range diags {
+		fmt.Fprintf(&b, "diag %s %+v %+v\n", d, d.Range.Start, d.Range.End)
 	}
 	return b.String()
 }
@@ -44,7 +114,7 @@ func TestPatchedReloadEqualsFullLoad(t *testing.T) {
 	valid, _ := filepath.Glob("../testdata/valid/*.toml")
 	files = append(files, valid...)
 	rng := rand.New(rand.NewPCG(1, 2))
-	patched, indexPatched := 0, 0
+	patched, indexPatched, kept := 0, 0, 0
 	for _, path := range files {
 		src, err := os.ReadFile(path)
 		if err != nil {
@@ -62,6 +132,7 @@ func TestPatchedReloadEqualsFullLoad(t *testing.T) {
 		}
 		write(string(src))
 		prev, _ := engine.Load(sheet, engine.Options{Library: lib})
+		prevR, _ := prev.Eval()
 		lines := strings.Split(string(src), "\n")
 		for trial := range 12 {
 			i := rng.IntN(len(lines))
@@ -91,19 +162,30 @@ func TestPatchedReloadEqualsFullLoad(t *testing.T) {
 			if d := engine.IndexDiff(inc); d != "" {
 				t.Fatalf("%s, line %d edited to %q: the position index differs from one built in full: %s", path, i+1, line, d)
 			}
+			incR, incRDiags := inc.EvalFrom(prevR)
+			fullR, fullRDiags := full.Eval()
+			if a, b := describeResult(incR, incRDiags), describeResult(fullR, fullRDiags); a != b {
+				t.Fatalf("%s, line %d edited to %q: the evaluation from the earlier one differs from a full one:\n%s", path, i+1, line, firstDiff(a, b))
+			}
+			if k, _ := engine.Kept(inc); k {
+				kept++
+			}
 			patched += engine.Patched(inc)
 			indexPatched += engine.IndexPatched(inc)
 			if trial == 11 && engine.Patched(inc) != 0 {
 				t.Errorf("%s: an added line was patched", path)
 			}
-			prev = inc
+			prev, prevR = inc, incR
 			lines = strings.Split(text, "\n")
 		}
 	}
 	if patched < 20 {
 		t.Errorf("only %d reloads were patched; the edits do not exercise the patch", patched)
 	}
-	t.Logf("%d reloads patched, %d with the index patched too", patched, indexPatched)
+	t.Logf("%d reloads patched, %d with the index patched too, %d with the model kept", patched, indexPatched, kept)
+	if kept < patched/2 {
+		t.Errorf("the model was kept in only %d of %d patched reloads", kept, patched)
+	}
 	if indexPatched < patched*3/4 {
 		t.Errorf("the position index was patched in only %d of %d patched reloads", indexPatched, patched)
 	}
@@ -170,6 +252,7 @@ plot = [
 	if diags.HasErrors() {
 		t.Fatal(diags)
 	}
+	prevR, _ := prev.Eval()
 	lines := strings.Split(base, "\n")
 	for _, e := range edits {
 		lines[e.line-1] = e.text
@@ -182,6 +265,11 @@ plot = [
 		}
 		if d := engine.IndexDiff(inc); d != "" {
 			t.Fatalf("line %d edited to %q: %s", e.line, e.text, d)
+		}
+		incR, incRDiags := inc.EvalFrom(prevR)
+		fullR, fullRDiags := full.Eval()
+		if a, b := describeResult(incR, incRDiags), describeResult(fullR, fullRDiags); a != b {
+			t.Fatalf("line %d edited to %q: the evaluation differs from a full one:\n%s", e.line, e.text, firstDiff(a, b))
 		}
 		// The line inside the multi-line string must be read again in full, and so is the
 		// array element (its line is not a value alone: the comma); every other edit is
@@ -199,6 +287,6 @@ plot = [
 				t.Errorf("the note inside the multi-line string is %q after the edit", g.Note)
 			}
 		}
-		prev = inc
+		prev, prevR = inc, incR
 	}
 }

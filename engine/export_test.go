@@ -16,6 +16,15 @@ func Patched(s *Sheet) int { return s.npatched }
 // Parsed returns how many formulas the sheet's Load parsed (the rest were reused).
 func Parsed(s *Sheet) int { return s.nparsed }
 
+// Kept reports whether the sheet's Load kept the earlier load's model (keepModel), and how
+// many quantities it read again.
+func Kept(s *Sheet) (bool, int) {
+	if s.kept == nil {
+		return false, 0
+	}
+	return true, len(s.kept.changed)
+}
+
 // IndexPatched returns how many files the sheet's Load patched the position index of.
 func IndexPatched(s *Sheet) int { return s.nindexPatched }
 

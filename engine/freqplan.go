@@ -299,3 +299,29 @@ func (l *loader) rejectTable(f *sheetFile, who, path string, v any) ([]Reject, b
 	}
 	return out, ok
 }
+
+// checkPlanLOKinds runs once every formula has its type: an LO formula that gives something
+// other than a frequency (a level, a ratio, a plain number) is an error at the LO, as a
+// written one is.
+func (l *loader) checkPlanLOKinds() {
+	for _, sb := range l.sh.Spurs {
+		n := l.sh.nodes[sb.LO.node]
+		if sb.LO.Formula == "" || !n.typed || n.ty.D == units.Frequency && n.ty.K == units.Linear {
+			continue
+		}
+		l.errAt(sb.LO.Range, sb.LO.Name, "give the LO as a frequency, e.g. \"= rf + if\"", "the LO must be a frequency, and its formula gives %s", describeType(n.ty))
+	}
+}
+
+// checkPlanLOs reports an LO formula whose value is not a positive frequency as an error at
+// the LO (a written LO is checked when the sheet loads), so that a plan for a negative LO is
+// never worked out.
+func (r *Result) checkPlanLOs() {
+	for _, sb := range r.sh.Spurs {
+		v, known := r.Value(sb.LO)
+		if sb.LO.Formula == "" || !known || v.V > 0 {
+			continue
+		}
+		r.diags = append(r.diags, Diagnostic{Severity: Error, Quantity: sb.LO.Name, Summary: fmt.Sprintf("the LO must be a positive frequency, and its formula gives %s", v), Hint: "an LO is above 0 Hz; for RF = LO − IF write lo = \"= rf + if\"", Range: sb.LO.Range})
+	}
+}

@@ -53,7 +53,7 @@ func (s *Sheet) cone(id int) []int32 {
 // evaluation order.
 func (s *Sheet) coneOf(from []int) []int32 {
 	us := s.usersOf()
-	g := &s.graph
+	g := s.graph
 	g.mu.Lock()
 	defer g.mu.Unlock()
 	if g.mark == nil || g.gen == ^uint32(0) {

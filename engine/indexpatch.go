@@ -16,7 +16,7 @@ func patchIndex(old *sheetFile, src string, edits []lineEdit) (ix *posIndex) {
 		}
 	}()
 	ox := old.ix
-	shift := byteShift(old.src, edits)
+	shift, moved := byteShift(old.src, edits)
 
 	fresh := map[string]keyPos{} // the edited lines' keys, as scanned again
 	freshStr := map[string]strVal{}
@@ -51,8 +51,24 @@ func patchIndex(old *sheetFile, src string, edits []lineEdit) (ix *posIndex) {
 		}
 	}
 
+	// A full chunk whose positions all lie before the first byte that moves, and that holds
+	// none of the edited keys (or their strings), is shared with the earlier index as it is
+	// (with its capacity cut, so that nothing is ever appended into it); the rest is copied.
+	touchedKeys, touchedStrs := map[int]bool{}, map[int]bool{}
+	for p := range fresh {
+		i := ox.pos[p]
+		touchedKeys[int(i)/chunkLen] = true
+		if str := ox.kps.at(i).str; str > 0 {
+			touchedStrs[int(str-1)/chunkLen] = true
+		}
+	}
 	nx := &posIndex{pos: ox.pos, order: ox.order, first: make(map[string]Pos, len(ox.first))}
 	for c, chunk := range ox.strs.chunks {
+		if c < len(ox.strs.chunks)-1 && !touchedStrs[c] && stringsBefore(chunk, moved) {
+			nx.strs.chunks = append(nx.strs.chunks, chunk[:len(chunk):len(chunk)])
+			nx.strs.n += len(chunk)
+			continue
+		}
 		for i := range chunk {
 			sv := chunk[i]
 			sv.base = shift(sv.base)
@@ -74,6 +90,11 @@ func patchIndex(old *sheetFile, src string, edits []lineEdit) (ix *posIndex) {
 		return p
 	}
 	for c, chunk := range ox.kps.chunks {
+		if c < len(ox.kps.chunks)-1 && !touchedKeys[c] && keysBefore(chunk, moved) {
+			nx.kps.chunks = append(nx.kps.chunks, chunk[:len(chunk):len(chunk)])
+			nx.kps.n += len(chunk)
+			continue
+		}
 		for i := range chunk {
 			kp := chunk[i]
 			path := ox.order[c*chunkLen+i]
@@ -111,9 +132,35 @@ func patchIndex(old *sheetFile, src string, edits []lineEdit) (ix *posIndex) {
 	return nx
 }
 
+// stringsBefore reports whether every position of the string values lies before byte b.
+func stringsBefore(chunk []strVal, b int) bool {
+	for _, sv := range chunk {
+		if sv.base >= b {
+			return false
+		}
+		for _, sg := range sv.segs {
+			if sg.raw >= b {
+				return false
+			}
+		}
+	}
+	return true
+}
+
+// keysBefore reports whether every position of the keys lies before byte b.
+func keysBefore(chunk []keyPos, b int) bool {
+	for _, kp := range chunk {
+		if max(kp.Key.Byte, kp.KeyEnd.Byte, kp.Val.Byte, kp.ValEnd.Byte, kp.Content.Byte) >= b {
+			return false
+		}
+	}
+	return true
+}
+
 // byteShift returns the map from a byte offset of old to the same place after the edits:
-// each edited line moves what follows it by its change of length.
-func byteShift(old string, edits []lineEdit) func(int) int {
+// each edited line moves what follows it by its change of length. Offsets below from do
+// not move.
+func byteShift(old string, edits []lineEdit) (shift func(int) int, from int) {
 	type cut struct{ at, by int } // bytes from at on move by by
 	var cuts []cut
 	line, off := 1, 0
@@ -132,6 +179,10 @@ func byteShift(old string, edits []lineEdit) func(int) int {
 		}
 		cuts = append(cuts, cut{off, e.delta}) // off: the start of the line after the edited one
 	}
+	from = len(old) + 1
+	if len(cuts) > 0 {
+		from = cuts[0].at
+	}
 	return func(b int) int {
 		out := b
 		for _, c := range cuts {
@@ -141,7 +192,7 @@ func byteShift(old string, edits []lineEdit) func(int) int {
 			out += c.by
 		}
 		return out
-	}
+	}, from
 }
 
 // rescanLine scans the keys of one edited line of src again, starting where the first of

@@ -71,6 +71,9 @@ func (l *loader) compile(prev *Sheet) {
 	}
 	parallel(len(sites), work)
 	for i, st := range sites {
+		if st.req == nil {
+			sh.nodes[st.node].at = st // where every quantity stands, for a reload that keeps the model (keep.go)
+		}
 		if !todo[i] {
 			continue
 		}
@@ -94,7 +97,7 @@ func (l *loader) compile(prev *Sheet) {
 			l.formulaErrs(st, n.q.Name, texts[i], o.errs)
 			continue
 		}
-		n.code, n.deps, n.at = o.code, o.deps, st
+		n.code, n.deps = o.code, o.deps
 	}
 	sh.order = l.sortGraph()
 	sh.pos = make([]int, len(sh.nodes))

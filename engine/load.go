@@ -146,7 +146,7 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 	}
 	// A patched document usually comes with a patched index (patchIndex): only the edited
 	// lines are scanned again. Otherwise the index is built beside the decoding.
-	doc, edits, patched := patchDoc(prevFile, src)
+	doc, edits, patched := patchDoc(prevFile, src, nil)
 	var ix *posIndex
 	if patched {
 		l.sh.npatched++

@@ -25,6 +25,7 @@ func (l *loader) checkMistakes() {
 	l.checkSolveUnits()
 	l.checkStageKinds()
 	l.chainGroupKeys()
+	l.checkPlanLOKinds()
 }
 
 // checkEmpty refuses a worksheet with no quantity at all (an empty file, a file of comments,

@@ -41,11 +41,13 @@ type Sheet struct {
 	lib      *Library
 	diags    Diagnostics
 	nchains  int
-	graph    graphCache
-	nparsed  int // formulas parsed by Load (the others were reused from Options.Previous)
-	npatched int // files whose edit was patched into the earlier load's decoded text
+	graph    *graphCache // shared with sheets made from this one by keepModel (the graph is the same)
+	nparsed  int         // formulas parsed by Load (the others were reused from Options.Previous)
+	npatched int         // files whose edit was patched into the earlier load's decoded text
 	// nindexPatched counts the files whose position index was patched too
 	nindexPatched int
+	id            uint64    // this load's number (sheetIDs)
+	kept          *keptFrom // how keepModel made it from an earlier load, or nil
 }
 
 // Group is a TOML table of the worksheet: quantities and chains under one dotted name.
@@ -291,7 +293,7 @@ type node struct {
 	ok       bool    // read, parsed and lowered without error
 	typed    bool    // its type is known (inputs, chains, formulas that checked)
 	ty       units.Q // its type, for quantities
-	at       site    // where its formula stands
+	at       site    // where it stands: its value's index path in its file, and the scope of its formula
 }
 
 func finite(q units.Q) bool { return !math.IsNaN(q.V) && !math.IsInf(q.V, 0) }

@@ -41,7 +41,10 @@ func Load(path string, opt Options) (*Sheet, Diagnostics) {
 		defer release()
 	}
 	fsPath = filepath.ToSlash(fsPath)
-	sh := &Sheet{File: path, byName: map[string]int{}, lib: opt.Library}
+	if sh, ok := keepModel(path, fsys, fsPath, opt); ok {
+		return sh, sh.diags
+	}
+	sh := &Sheet{id: sheetIDs.Add(1), File: path, byName: map[string]int{}, lib: opt.Library, graph: &graphCache{}}
 	l := &loader{sh: sh, fsys: fsys, prev: opt.Previous}
 	// A reload is about the size of the earlier load: sizing the name map, the node list and
 	// the formula sites from it spares their growth (rehashing 10,000 names a few times

@@ -64,6 +64,9 @@ func TestEditRecomputesOnlyTheCone(t *testing.T) {
 	}
 	inc, fresh, sh := reload(t, prev, text)
 	sameValues(t, "input edit", inc, fresh)
+	if kept, n := engine.Kept(sh); !kept || n != 1 {
+		t.Errorf("input edit: model kept %v with %d quantities read again, want true and 1", kept, n)
+	}
 	if n := engine.Parsed(sh); n != 0 {
 		t.Errorf("input edit: %d formulas parsed again, want 0", n)
 	}
@@ -75,6 +78,9 @@ func TestEditRecomputesOnlyTheCone(t *testing.T) {
 	text2 := strings.Replace(text, `"= tx.eirp - path.loss + antenna - cable"`, `"= tx.eirp - path.loss + antenna - cable - 0.5 dB"`, 1)
 	inc2, fresh2, sh2 := reload(t, inc, text2)
 	sameValues(t, "formula edit", inc2, fresh2)
+	if kept, n := engine.Kept(sh2); !kept || n != 1 {
+		t.Errorf("formula edit: model kept %v with %d quantities read again, want true and 1", kept, n)
+	}
 	if n := engine.Parsed(sh2); n != 1 {
 		t.Errorf("formula edit: %d formulas parsed, want 1", n)
 	}

@@ -372,8 +372,12 @@ func (r *Result) fillChain(n *node) bool {
 	return sound && !n.chain.broken
 }
 
-// requirements evaluates every requirement.
+// requirements evaluates every requirement (and, unless quiet, checks the frequency plans'
+// LOs, which only a nominal or case evaluation reports).
 func (r *Result) requirements() {
+	if !r.quiet && len(r.sh.Spurs) > 0 {
+		r.checkPlanLOs()
+	}
 	for _, rq := range r.sh.Requires {
 		r.pass[rq.index] = -1
 		if rq.code == nil {
@@ -419,19 +423,30 @@ func (s *Sheet) EvalFrom(prev *Result, set ...Override) (*Result, Diagnostics) {
 		return s.Eval(set...)
 	}
 	var r *Result
-	if prev.sh == s {
+	// A sheet keepModel made from prev's has prev's nodes: prev's storage serves as it is.
+	kept := s.kept != nil && s.kept.base == prev.sh.id
+	if prev.sh == s || kept {
 		r = prev.near()
+		r.sh = s
 	} else {
 		r = s.newResult()
 	}
 	r.set = set
 	old := prev.sh
-	if old == s {
+	if old == s || kept {
 		// Inputs prev overrode go back to their nominal value before the new overrides apply.
 		for _, o := range prev.set {
 			if id, ok := s.byName[o.Name]; ok {
 				n := s.nodes[id]
 				r.vals[id], r.known[id] = n.input.V, n.q != nil && n.code == nil && n.ok && n.q.Formula == ""
+			}
+		}
+	}
+	if kept {
+		for _, id := range s.kept.changed {
+			if n := s.nodes[id]; n.code == nil {
+				r.vals[id], r.known[id] = n.input.V, true
+				r.evaluated++
 			}
 		}
 	}
@@ -449,6 +464,14 @@ func (s *Sheet) EvalFrom(prev *Result, set ...Override) (*Result, Diagnostics) {
 	}
 	if old == s {
 		s.evalNear(r, prev, overridden)
+		r.diags = sortDiags(r.diags)
+		return r, r.diags
+	}
+	if kept {
+		for _, id := range s.kept.changed {
+			overridden[s.nodes[id].name] = "changed"
+		}
+		s.evalKept(r, prev, overridden)
 		r.diags = sortDiags(r.diags)
 		return r, r.diags
 	}
@@ -536,6 +559,58 @@ func (s *Sheet) evalNear(r, prev *Result, overridden map[string]string) {
 	}
 	for _, d := range prev.diags {
 		if id, ok := s.byName[d.Quantity]; ok && d.Severity == Warning && !inCone[int32(id)] {
+			r.diags = append(r.diags, d)
+		}
+	}
+	r.requirements()
+}
+
+// evalKept finishes EvalFrom for prev of the sheet this one was kept from (keep.go): r holds
+// prev's values with the edited inputs' new values and the new overrides applied. What is
+// computed again: the cones of the changed quantities and overrides, the edited formulas
+// themselves, and every formula prev could not evaluate (so that its error is reported
+// again, where a full evaluation would report it); the rest keeps prev's values and
+// warnings, at their moved places.
+func (s *Sheet) evalKept(r, prev *Result, overridden map[string]string) {
+	roots := make([]int, 0, len(overridden))
+	for name := range overridden {
+		if id, ok := s.byName[name]; ok {
+			roots = append(roots, id)
+		}
+	}
+	slices.Sort(roots)
+	again := make(map[int32]bool)
+	var todo []int32
+	add := func(id int32) {
+		if !again[id] && s.pos[id] >= 0 {
+			again[id] = true
+			todo = append(todo, id)
+		}
+	}
+	if len(roots) > 0 {
+		for _, id := range s.coneOf(roots) {
+			add(id)
+		}
+	}
+	for _, id := range roots {
+		if s.nodes[id].code != nil {
+			add(int32(id))
+		}
+	}
+	for id, n := range s.nodes {
+		if !prev.known[id] && (n.code != nil || n.chain != nil) {
+			add(int32(id))
+		}
+	}
+	slices.SortFunc(todo, func(a, b int32) int { return s.pos[a] - s.pos[b] })
+	r.quiet, r.call.quiet = false, false
+	for _, id := range todo {
+		r.evalNode(int(id))
+		r.evaluated++
+	}
+	for _, d := range prev.diags {
+		if id, ok := s.byName[d.Quantity]; ok && d.Severity == Warning && !again[int32(id)] {
+			d.Range = s.kept.move(d.Range)
 			r.diags = append(r.diags, d)
 		}
 	}

@@ -88,7 +88,7 @@ func FreqPlan(w io.Writer, s FreqPlanSpec) error {
 		return fmt.Errorf("%w (frequency plan %q)", ErrEmpty, s.Title)
 	}
 	p := newPlot(s.Title, s.XLabel, s.YLabel)
-	p.X.Min, p.X.Max = pad(xmin, xmax, 0.06)
+	p.X.Min, p.X.Max = planXRange(xmin, xmax)
 	p.Y.Min, p.Y.Max = 0, ymax+1
 	p.Add(grid(true, true))
 	fp := &planPlotter{spec: s}
@@ -141,21 +141,31 @@ func (pp *planPlotter) Plot(c draw.Canvas, p *plot.Plot) {
 		sty := smallText(p, 8)
 		c.FillText(sty, vg.Point{X: x + vg.Points(2), Y: c.Max.Y - vg.Points(10)}, t.Label)
 	}
+	// The segments of one kind go into one path, stroked once: an order-15 plan has hundreds
+	// of them, and a stroke each was most of the chart's time. The kinds are stroked from the
+	// last to the first, so the wanted and in-band responses lie on top.
+	segs := make([]vg.Path, len(kindStyle))
 	for _, m := range pp.spec.Marks {
 		if !finite(m.Lo) || !finite(m.Hi) || !finite(m.Y) || int(m.Kind) >= len(kindStyle) {
 			continue
 		}
-		col := kindStyle[m.Kind].color
 		y := trY(m.Y)
 		x0, x1 := trX(m.Lo), trX(m.Hi)
 		if m.Lo == m.Hi {
-			c.DrawGlyph(draw.GlyphStyle{Color: col, Radius: vg.Points(3), Shape: draw.CircleGlyph{}}, vg.Point{X: x0, Y: y})
+			c.DrawGlyph(draw.GlyphStyle{Color: kindStyle[m.Kind].color, Radius: vg.Points(3), Shape: draw.CircleGlyph{}}, vg.Point{X: x0, Y: y})
 			continue
 		}
 		if x1-x0 < vg.Points(2) {
 			x1 = x0 + vg.Points(2)
 		}
-		c.StrokeLine2(draw.LineStyle{Color: col, Width: vg.Points(3.5)}, x0, y, x1, y)
+		segs[m.Kind].Move(vg.Point{X: x0, Y: y})
+		segs[m.Kind].Line(vg.Point{X: x1, Y: y})
+	}
+	for k := len(segs) - 1; k >= 0; k-- {
+		if len(segs[k]) > 0 {
+			c.SetLineStyle(draw.LineStyle{Color: kindStyle[k].color, Width: vg.Points(3.5)})
+			c.Stroke(segs[k])
+		}
 	}
 }
 
@@ -170,4 +180,14 @@ func (t kindThumb) Thumbnail(c *draw.Canvas) {
 		return
 	}
 	c.StrokeLine2(draw.LineStyle{Color: col, Width: vg.Points(3.5)}, c.Min.X, y, c.Max.X, y)
+}
+
+// planXRange pads the frequency axis by 6 % each side, but never below 0: no frequency in a
+// plan is negative, so a plan reaching down near 0 Hz starts its axis there.
+func planXRange(xmin, xmax float64) (float64, float64) {
+	lo, hi := pad(xmin, xmax, 0.06)
+	if xmin >= 0 && lo < 0 {
+		lo = 0
+	}
+	return lo, hi
 }

@@ -29,3 +29,15 @@ func TestFreqPlanChart(t *testing.T) {
 		t.Errorf("empty plan: %v", err)
 	}
 }
+
+// Frequencies are never negative, so the axis of a plan that starts near 0 Hz starts at 0
+// rather than at the padding's −440 MHz (the demo's plan spans 36.7–7393 MHz).
+func TestFreqPlanAxisFromZero(t *testing.T) {
+	if lo, hi := planXRange(36.7, 7393); lo != 0 || math.Abs(hi-(7393+0.06*(7393-36.7))) > 1e-9 {
+		t.Errorf("axis %g to %g, want 0 to 7834.4", lo, hi)
+	}
+	// A plan far from 0 Hz keeps its padding on both sides.
+	if lo, _ := planXRange(900, 1000); lo != 894 {
+		t.Errorf("axis from %g, want 894", lo)
+	}
+}

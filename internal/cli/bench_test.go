@@ -13,6 +13,7 @@ import (
 	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/internal/gen"
 	"github.com/rfledger/rfledger/internal/rflib"
+	"github.com/rfledger/rfledger/internal/sheettest"
 )
 
 // renderOnce does what `rfledger render` does short of writing files, for a worksheet text:
@@ -95,10 +96,12 @@ func BenchmarkWatchEdit(b *testing.B) {
 			}
 			render(0)
 			i := 1
+			cpu := sheettest.CPUTime()
 			for b.Loop() {
 				render(i)
 				i++
 			}
+			sheettest.ReportCPU(b, cpu)
 		})
 	}
 }

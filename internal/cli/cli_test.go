@@ -380,9 +380,22 @@ func TestFuncsAndUnits(t *testing.T) {
 		}
 	}
 	_, out, _ = run(t, "units")
-	for _, s := range []string{"dBm/Hz", "dB/km", "psum", "dBW/K/Hz"} {
+	// The weather units, and how a temperature in degC is read (SI Brochure, 9th ed., 2.3.1:
+	// t/°C = T/K − 273.15); the phase-noise rules of the decibel algebra.
+	for _, s := range []string{"dBm/Hz", "dB/km", "psum", "dBW/K/Hz", "hPa (= 100 Pa)", "g/m^3", "15 degC is read as 288.15 K", "dBc/Hz + dBHz -> dBc", "dBm + dBc -> dBm"} {
 		if !strings.Contains(out, s) {
 			t.Errorf("units lacks %q", s)
+		}
+	}
+	// The README's decibel algebra table has the phase-noise rows too (units/algebra_test.go
+	// checks that the algebra gives them).
+	readme, err := os.ReadFile("../../README.md")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, row := range []string{"| dBc/Hz + dBHz (phase noise over a channel) | dBc |", "| dBm + dBc, dBc + dB | dBm, dBc |"} {
+		if !strings.Contains(string(readme), row) {
+			t.Errorf("README lacks the row %q", row)
 		}
 	}
 }

@@ -93,6 +93,10 @@ Linear units take SI prefixes p n u/µ m c k M G T:
   without prefixes: % ppm deg rad min h ft mi nmi
   compounds with * / ^: m^2, W/m^2, mm/h, bit/s/Hz, kbit/s
 bit and sym are counts, so bit/s has the dimension of Hz.
+  weather: hPa (= 100 Pa), g/m^3 (water vapour density), degC or °C (temperature)
+A temperature in degC is an absolute temperature: 15 degC is read as 288.15 K, and what is
+computed from it is shown in K (25 degC - 15 degC = 10 K); write differences and tolerances
+in K. degC takes no prefix and enters no compound unit (W/degC is refused).
 
 Decibel units (a level is the log of a linear value with a reference):
   ratios      dB dBi dBd (= dBi - 2.15 dB) dBc dBFS

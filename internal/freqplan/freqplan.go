@@ -25,8 +25,22 @@ const (
 // Band is a closed frequency interval [Lo, Hi] in Hz.
 type Band struct{ Lo, Hi float64 }
 
-// Overlaps reports whether two closed intervals share a point.
-func (b Band) Overlaps(c Band) bool { return b.Lo <= c.Hi && c.Lo <= b.Hi }
+// edgeTol is how close, relative to the frequencies compared, two edges count as the same
+// point. Decimal inputs such as 512.07 MHz are not exact in binary, so 3 × 512.07 MHz can
+// come out a few units in the last place above an edge written as 1536.21 MHz; 1e-12 of the
+// frequency (a hundredth of a hertz at 10 GHz) covers that rounding and nothing a plan could
+// mean.
+const edgeTol = 1e-12
+
+// Overlaps reports whether two closed intervals share a point (edges that agree to edgeTol
+// count as touching).
+func (b Band) Overlaps(c Band) bool {
+	tol := edgeTol * math.Max(math.Abs(b.Hi), math.Abs(c.Hi))
+	return b.Lo <= c.Hi+tol && c.Lo <= b.Hi+tol
+}
+
+// contains reports whether f lies in the closed band, its edges widened by tol.
+func (b Band) contains(f, tol float64) bool { return f >= b.Lo-tol && f <= b.Hi+tol }
 
 func (b Band) mid() float64 { return (b.Lo + b.Hi) / 2 }
 
@@ -112,11 +126,15 @@ func Spurs(p Plan) ([]Response, error) {
 	for m := 0; m < p.Order; m++ {
 		for n := 1; m+n <= p.Order; n++ {
 			ml, nf := float64(m)*p.LO, float64(n)
+			tol := edgeTol * (ml + p.IF.Hi) / nf // rounding of the edges below
 			add := func(form Form, lo, hi float64) {
-				if hi <= 0 {
-					return
+				if hi <= tol {
+					return // no positive input frequency (an edge at 0 Hz, after rounding)
 				}
-				out = append(out, p.response(m, n, form, math.Max(lo, 0), hi))
+				if lo < tol {
+					lo = 0
+				}
+				out = append(out, p.response(m, n, form, lo, hi))
 			}
 			add(Sum, (p.IF.Lo-ml)/nf, (p.IF.Hi-ml)/nf)
 			if m > 0 {
@@ -133,11 +151,13 @@ func (p Plan) response(m, n int, form Form, from, to float64) Response {
 	r := Response{M: m, N: n, Form: form, From: from, To: to}
 	band := Band{from, to}
 	r.InBand = band.Overlaps(p.RF)
+	// Which side of the LO a band lies on is read at its middle, so that a band with an edge
+	// on the LO (an IF reaching down to 0 Hz or up to the LO) still has a side.
 	above := p.RF.mid() > p.LO // the passband lies above the LO
 	below := p.RF.mid() < p.LO
 	r.Wanted = m == 1 && n == 1 && r.InBand
-	r.Image = m == 1 && n == 1 && (above && to < p.LO || below && from > p.LO)
-	r.HalfIF = m == 2 && n == 2 && form != Sum && (above && from > p.LO || below && to < p.LO)
+	r.Image = m == 1 && n == 1 && (above && band.mid() < p.LO || below && band.mid() > p.LO)
+	r.HalfIF = m == 2 && n == 2 && form != Sum && (above && band.mid() > p.LO || below && band.mid() < p.LO)
 	if m == 1 && n == 1 {
 		r.Level, r.HasLevel = 0, true
 	} else if v, ok := p.Reject[[2]int{m, n}]; ok {
@@ -187,32 +207,30 @@ type Hit struct {
 }
 
 // Products lists every product Σ kᵢ·fᵢ of the tones (integers kᵢ, 2 ≤ Σ|kᵢ| ≤ order) with a
-// positive frequency that falls inside a protected band (closed intervals), one hit per band
+// positive frequency that falls inside a protected band (closed intervals, edges to edgeTol), one hit per band
 // it falls in, sorted by band, frequency, order and coefficients. Order 1 gives only the tones
 // themselves, so the order must be at least 2.
 func Products(tones []float64, protect []Band, order int) ([]Hit, error) {
 	if err := checkProducts(tones, protect, order); err != nil {
 		return nil, err
 	}
-	top := 0.0
-	for _, t := range tones {
-		top = math.Max(top, t)
-	}
 	var hits []Hit
 	k := make([]int, len(tones))
 	var walk func(i, left int) error
 	walk = func(i, left int) error {
 		if i == len(tones) {
-			ord, f := 0, 0.0
+			ord, f, size := 0, 0.0, 0.0
 			for j, c := range k {
 				ord += abs(c)
 				f += float64(c) * tones[j]
+				size += float64(abs(c)) * tones[j]
 			}
-			if ord < 2 || f <= 1e-12*top {
+			if ord < 2 || f <= edgeTol*size {
 				return nil
 			}
+			tol := edgeTol * size // rounding of the sum and of decimal edges
 			for b, band := range protect {
-				if f >= band.Lo && f <= band.Hi {
+				if band.contains(f, tol) {
 					if len(hits) == MaxHits {
 						return fmt.Errorf("more than %d products land in the protected bands; narrow the bands or lower the order", MaxHits)
 					}

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strconv"
 	"testing"
 )
 
@@ -317,6 +318,56 @@ func BenchmarkSpursOrder15(b *testing.B) {
 	for b.Loop() {
 		if _, err := Spurs(p); err != nil {
 			b.Fatal(err)
+		}
+	}
+}
+
+// Edges written in decimal MHz are not exact in binary; a product or response that meets an
+// edge on paper must still meet it (each case worked by hand in decimal arithmetic).
+func TestDecimalEdges(t *testing.T) {
+	// mhz reads a frequency as the worksheet does (the number parsed, then scaled at run
+	// time); a constant expression such as 512.07 * MHz would be exact and hide the rounding.
+	mhz := func(s string) float64 {
+		v, err := strconv.ParseFloat(s, 64)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return v * MHz
+	}
+	// 3 × 512.07 = 1536.21 MHz: on the upper edge of the first band and the lower of the second.
+	// In binary, 3·(512.07·1e6) is 2.4e-7 Hz above 1536.21·1e6.
+	if 3*mhz("512.07") == mhz("1536.21") {
+		t.Fatal("the rounding this test is about does not happen")
+	}
+	hits, err := Products([]float64{mhz("512.07")}, []Band{{1500 * MHz, mhz("1536.21")}, {mhz("1536.21"), 1540 * MHz}}, 3)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(hits) != 2 || hits[0].Band != 0 || hits[1].Band != 1 || hits[0].K[0] != 3 {
+		t.Errorf("3 × 512.07 MHz on the shared edge: %+v", hits)
+	}
+	// f − LO = IF with LO 512.07 MHz and IF from 1024.14 MHz: f from 1536.21 MHz, which touches
+	// a preselector passband ending at 1536.21 MHz, so the 1×1 response is the wanted one.
+	rs, err := Spurs(Plan{LO: mhz("512.07"), IF: Band{mhz("1024.14"), 1030 * MHz}, RF: Band{1400 * MHz, mhz("1536.21")}, Order: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rs) == 0 || !rs[0].Wanted || rs[0].Form != InputMinus {
+		t.Errorf("touching response: %+v", rs)
+	}
+	// LO 100.1 MHz, IF 150.15–200.2 MHz, passband above the LO: LO + f = IF gives f = 50.05–
+	// 100.1 MHz, up to the LO and so on its other side: the image (f = IF − LO, the mirror of
+	// f = LO + IF); 2·LO + f = IF has no positive f (2·LO is the IF's upper edge).
+	rs, err = Spurs(Plan{LO: mhz("100.1"), IF: Band{mhz("150.15"), mhz("200.2")}, RF: Band{mhz("300.3"), mhz("400.4")}, Order: 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, r := range rs {
+		if r.M == 1 && r.N == 1 && r.Form == Sum && !r.Image {
+			t.Errorf("LO + f = IF ending on the LO is not flagged as the image: %+v", r)
+		}
+		if r.M == 2 && r.Form == Sum {
+			t.Errorf("2·LO + n·f = IF listed though 2·LO is the IF's upper edge: %+v", r)
 		}
 	}
 }

@@ -12,6 +12,7 @@ import (
 	"go.lsp.dev/protocol"
 
 	"github.com/rfledger/rfledger/internal/gen"
+	"github.com/rfledger/rfledger/internal/sheettest"
 )
 
 // big opens the 10,000-quantity generated farm network (internal/gen.Budget(10000, 1)) and
@@ -61,11 +62,13 @@ func BenchmarkEdit10k(b *testing.B) {
 	c, uri, _, p := big(b)
 	v := int32(1)
 	b.ResetTimer()
+	cpu := sheettest.CPUTime()
 	for i := 0; i < b.N; i++ {
 		v++
 		editOnce(c, uri, p, v, string(rune('1'+i%9)))
 	}
 	b.StopTimer()
+	sheettest.ReportCPU(b, cpu)
 	b.ReportMetric(float64(b.Elapsed().Milliseconds())/float64(b.N), "ms/edit")
 	c.shutdown()
 }

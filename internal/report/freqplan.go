@@ -82,10 +82,11 @@ func planUnit(u *units.Unit) *units.Unit {
 	return u
 }
 
-// inUnit gives a frequency in u, rounded to 9 significant digits so that a band edge of
-// 1043.5 MHz does not read 1043.4999999.
+// inUnit gives a frequency in u, rounded to 12 significant digits so that a band edge of
+// 1043.5 MHz does not read 1043.4999999999998, while a script reading the JSON still gets
+// the edge to a tenth of a hertz at 20 GHz (9 digits cut 18368.966667 MHz to 18368.9667).
 func inUnit(hz float64, u *units.Unit) float64 {
-	v, _ := strconv.ParseFloat(strconv.FormatFloat(hz/u.Scale, 'g', 9, 64), 64)
+	v, _ := strconv.ParseFloat(strconv.FormatFloat(hz/u.Scale, 'g', 12, 64), 64)
 	return v
 }
 
@@ -288,6 +289,9 @@ func (p *page) productSection(i int, pi productInfo) {
 		p.f("The products cannot be worked out: %s.\n\n", text(pi.err.Error()))
 		return
 	}
+	if in := tonesInBands(pi); len(in) > 0 {
+		p.f("**%s inside a protected band itself** (order 1, not counted among the products below): the emission there is the transmitter's own, and only the local regulations can allow it.\n\n", strings.Join(in, "; "))
+	}
 	if len(pi.hits) == 0 {
 		p.f("No harmonic or intermodulation product up to order %d lands in a protected band.\n\n", b.Order)
 	} else {
@@ -303,6 +307,20 @@ func (p *page) productSection(i int, pi productInfo) {
 		p.f("| %d | %s | %s | %d | %s |\n", j+1, productText(h.K), freqText(h.Freq, u), h.Order, bandText(bd.Lo, bd.Hi, u))
 	}
 	p.f("\n")
+}
+
+// tonesInBands names each tone that lies inside a protected band ("f1 = 1575 MHz lies in
+// 1559–1610 MHz"): a fundamental is no product, but a designer must not miss it.
+func tonesInBands(pi productInfo) []string {
+	var out []string
+	for j, t := range pi.tones {
+		for _, bd := range pi.bands {
+			if bd.Overlaps(freqplan.Band{Lo: t, Hi: t}) {
+				out = append(out, fmt.Sprintf("f%d = %s lies in %s", j+1, freqText(t, pi.unit), bandText(bd.Lo, bd.Hi, pi.unit)))
+			}
+		}
+	}
+	return out
 }
 
 func (p *page) productChart(i int, pi productInfo) {

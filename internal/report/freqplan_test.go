@@ -122,15 +122,31 @@ func TestFreqPlanPage(t *testing.T) {
 	}
 }
 
-// An LO formula that gives something other than a frequency is reported on the page.
-func TestFreqPlanBadLOFormula(t *testing.T) {
-	sh := load(t, strings.Replace(planSheet, `lo_hz = "1185 MHz"`, `lo_hz = "3 dB"`, 1))
+// A tone inside a protected band is no product (Σ|k| = 1), but the page says so.
+func TestFreqPlanToneInBand(t *testing.T) {
+	sh := load(t, strings.Replace(planSheet, `tones   = ["915 MHz"]`, `tones   = ["915 MHz", "1830 MHz"]`, 1))
 	page, _ := Markdown(Input{Result: sh})
-	if !strings.Contains(string(page), "The responses cannot be worked out: the LO must be a positive frequency") {
-		t.Error("no error for an LO in dB")
+	if !strings.Contains(string(page), "**f2 = 1830 MHz lies in 1805–1880 MHz inside a protected band itself**") {
+		t.Error("no word of a tone inside a protected band")
 	}
-	if !strings.Contains(string(JSON(Input{Result: sh})), `"error": "the LO must be a positive frequency`) {
-		t.Error("no JSON error for an LO in dB")
+	sh = load(t, planSheet)
+	if page, _ := Markdown(Input{Result: sh}); strings.Contains(string(page), "inside a protected band itself") {
+		t.Error("a tone outside the bands is said to be inside")
+	}
+}
+
+// An LO formula that gives something other than a positive frequency is an error at the LO
+// (positioned, so the command exits 3 and writes nothing), not a plan worked out for it.
+func TestFreqPlanBadLOFormula(t *testing.T) {
+	for _, lo := range []string{`lo_hz = "3 dB"`, `lo_hz = "-1185 MHz"`} {
+		_, diags := sheettest.Eval(strings.Replace(planSheet, `lo_hz = "1185 MHz"`, lo, 1))
+		found := false
+		for _, d := range diags {
+			found = found || d.Quantity == "spurs[1].lo" && strings.Contains(d.Summary, "the LO must be a")
+		}
+		if !diags.HasErrors() || !found {
+			t.Errorf("%s: %v", lo, diags)
+		}
 	}
 }
 
@@ -148,7 +164,7 @@ order = 15
 		b.Fatal(diags)
 	}
 	for b.Loop() {
-		p := &page{in: Input{Result: sh, ChartBase: "bench"}}
+		p := &page{in: Input{Result: sh, ChartBase: "bench"}.filled(), r: sh}
 		p.freqPlans()
 		if len(p.files) != 1 {
 			b.Fatal("no chart")

@@ -6,6 +6,7 @@ import (
 	"math"
 	"path/filepath"
 	"strings"
+	"unicode/utf8"
 
 	"github.com/rfledger/rfledger/analysis"
 	"github.com/rfledger/rfledger/engine"
@@ -23,10 +24,33 @@ type page struct {
 
 func (p *page) f(format string, args ...any) { fmt.Fprintf(&p.b, format, args...) }
 
+// row writes one table row of cells that are Markdown already.
+func (p *page) row(cells ...string) {
+	p.b.WriteString("|")
+	for _, c := range cells {
+		p.b.WriteString(" ")
+		p.b.WriteString(c)
+		p.b.WriteString(" |")
+	}
+	p.b.WriteString("\n")
+}
+
 // Markdown renders the budget page. The charts it links come back as files to write beside it.
 func Markdown(in Input) ([]byte, []File) {
 	in = in.filled()
 	p := &page{in: in, r: in.Result, chains: analysis.Cascades(in.Result)}
+	// The line items (a row per quantity: most of a big sheet's page) are written on a
+	// goroutine of their own meanwhile, into a page of their own, and set in their place.
+	items := make(chan []byte, 1)
+	go func() {
+		ip := &page{in: p.in, r: p.r, chains: p.chains}
+		if ip.multiCase() {
+			ip.caseLineItems()
+		} else {
+			ip.lineItems()
+		}
+		items <- ip.b.Bytes()
+	}()
 	sh := in.Sheet
 	title := sh.Title
 	if title == "" {
@@ -38,13 +62,11 @@ func Markdown(in Input) ([]byte, []File) {
 	}
 	if p.multiCase() {
 		p.caseVerdict()
-		p.warnings()
-		p.caseLineItems()
 	} else {
 		p.verdict()
-		p.warnings()
-		p.lineItems()
 	}
+	p.warnings()
+	p.b.Write(<-items)
 	p.cascades()
 	p.caseSections()
 	if a := in.Analysis; a != nil && a.Focus != nil {
@@ -66,14 +88,27 @@ func Markdown(in Input) ([]byte, []File) {
 // cell boundary, and line breaks become spaces. Code spans go through code.
 func text(s string) string {
 	s = strings.TrimSpace(s)
+	// Most text needs nothing: find the first rune that does before building anything.
+	i := 0
+	for i < len(s) {
+		r, n := utf8.DecodeRuneInString(s[i:])
+		if textAction(s, i, r) != keepRune {
+			break
+		}
+		i += n
+	}
+	if i == len(s) {
+		return s
+	}
 	var b strings.Builder
-	for i, r := range s {
-		switch {
-		case r == '\n' || r == '\r' || r == '\t':
+	b.Grow(len(s) + 8)
+	b.WriteString(s[:i])
+	for j, r := range s[i:] {
+		switch textAction(s, i+j, r) {
+		case blankRune:
 			b.WriteByte(' ')
-		case r < 0x20 || r == 0x7f:
-			// control characters carry nothing a reader needs
-		case strings.ContainsRune(markdownPunct, r), i == 0 && strings.ContainsRune("-+=", r), listNumber(s, i):
+		case dropRune:
+		case escapeRune:
 			b.WriteByte('\\')
 			b.WriteRune(r)
 		default:
@@ -81,6 +116,27 @@ func text(s string) string {
 		}
 	}
 	return b.String()
+}
+
+// What text does with a rune.
+const (
+	keepRune   = iota
+	blankRune  // a line break or tab becomes a blank
+	dropRune   // control characters carry nothing a reader needs
+	escapeRune // Markdown or HTML syntax, escaped with a backslash
+)
+
+// textAction says what text does with the rune r at byte i of s.
+func textAction(s string, i int, r rune) int {
+	switch {
+	case r == '\n' || r == '\r' || r == '\t':
+		return blankRune
+	case r < 0x20 || r == 0x7f:
+		return dropRune
+	case strings.ContainsRune(markdownPunct, r), i == 0 && strings.ContainsRune("-+=", r), listNumber(s, i):
+		return escapeRune
+	}
+	return keepRune
 }
 
 // markdownPunct is the ASCII punctuation that can start Markdown or HTML syntax inside a
@@ -246,7 +302,7 @@ func (p *page) lineItems() {
 		p.f("| quantity | value | obtained from | tolerance | note | source |\n| --- | ---: | --- | --- | --- | --- |\n")
 		for _, q := range g.Quantities {
 			key, how := itemLabel(g, q, p.r)
-			p.f("| %s | %s | %s | %s | %s | %s |\n", text(key), p.r.Display(q), how, text(tolText(q.Tol)), text(q.Note), text(q.Source))
+			p.row(text(key), p.r.Display(q), how, text(tolText(q.Tol)), text(q.Note), text(q.Source))
 		}
 		p.f("\n")
 	}

@@ -60,7 +60,8 @@ func arc(name string, f func(float64) float64, lo, hi float64, doc string) *engi
 		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
 			x := q(a, 0)
 			if !(x >= lo && x <= hi) {
-				return units.Q{}, fmt.Errorf("x = %s is outside the function's domain %s to %s", units.FormatNum(x), units.FormatNum(lo), units.FormatNum(hi))
+				return units.Q{}, &units.Error{Msg: fmt.Sprintf("x = %s is outside the function's domain %s to %s", units.FormatNum(x), units.FormatNum(lo), units.FormatNum(hi)),
+					Hint: "asin and acos take a ratio from -1 to 1, e.g. asin(h / d) with h no longer than d"}
 			}
 			return result(f(x)*180/math.Pi, uDeg, name)
 		},
@@ -109,7 +110,7 @@ var geometry = []*engine.Func{
 			}
 			d, err := rfmath.SlantRange(e, q(a, 1), h)
 			if err != nil {
-				return units.Q{}, clean(err)
+				return units.Q{}, &units.Error{Msg: clean(err).Error(), Hint: "alt is the far point's altitude above sea level (an orbit height, e.g. 550 km) and h_station the station's, both from sea level"}
 			}
 			return result(d, uM, "slant range")
 		},

@@ -3,6 +3,7 @@ package rflib
 import (
 	"fmt"
 	"math"
+	"strings"
 
 	"github.com/rfledger/rfledger/engine"
 	"github.com/rfledger/rfledger/units"
@@ -70,7 +71,11 @@ func plain(name string, f func(float64) float64, doc string) *engine.Func {
 		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
 			v := f(q(a, 0))
 			if math.IsNaN(v) || math.IsInf(v, 0) {
-				return units.Q{}, fmt.Errorf("x = %s is outside the function's domain", units.FormatNum(q(a, 0)))
+				e := &units.Error{Msg: fmt.Sprintf("x = %s is outside the function's domain", units.FormatNum(q(a, 0)))}
+				if name == "ln" || strings.HasPrefix(name, "log") {
+					e.Hint = "a logarithm needs a plain number above 0"
+				}
+				return units.Q{}, e
 			}
 			return units.Num(v), nil
 		},

@@ -22,9 +22,18 @@ var (
 func fresnelV(a []engine.Value) (float64, error) {
 	v, err := rfmath.FresnelV(q(a, 0), q(a, 1), q(a, 2), q(a, 3))
 	if err != nil {
-		return v, fmt.Errorf("d1, d2 and f must be positive (got d1 = %s, d2 = %s)", units.Lin(q(a, 1), units.Length), units.Lin(q(a, 2), units.Length))
+		return v, &units.Error{Msg: fmt.Sprintf("d1, d2 and f must be positive (got d1 = %s, d2 = %s, f = %s)", units.Lin(q(a, 1), units.Length), units.Lin(q(a, 2), units.Length), units.Lin(q(a, 3), units.Frequency)),
+			Hint: "d1 and d2 are the distances from each end of the path to the obstacle, e.g. distance / 2 for one in mid-path"}
 	}
 	return v, nil
+}
+
+// positiveDistance refuses a distance argument i that is not above zero.
+func positiveDistance(a []engine.Value, i int) error {
+	if !(q(a, i) > 0) {
+		return &units.Error{Msg: fmt.Sprintf("d: the distance must be positive (got %s)", units.Lin(q(a, i), units.Length)), Hint: "the distance from the transmitter, e.g. 3 m or 1 km"}
+	}
+	return nil
 }
 
 // eirpDBW returns argument i, an e.i.r.p. given as a power or a power level, in dBW.
@@ -71,7 +80,8 @@ var obstruction = []*engine.Func{
 				}
 			}
 			if !(q(a, 0) > 0) || !(k > 0) {
-				return units.Q{}, fmt.Errorf("the diameter and k must be positive")
+				return units.Q{}, &units.Error{Msg: fmt.Sprintf("the diameter and k must be positive (got d = %s, k = %s°)", units.Lin(q(a, 0), units.Length), units.FormatNum(k*180/math.Pi)),
+					Hint: "give the dish diameter, e.g. 1.2 m, and leave k out for the usual 70 deg"}
 			}
 			return result(rfmath.Beamwidth(q(a, 0), q(a, 1), k)*180/math.Pi, uDeg, "beamwidth")
 		},
@@ -90,7 +100,7 @@ var obstruction = []*engine.Func{
 				return units.Q{}, err
 			}
 			if !(bw > 0) {
-				return units.Q{}, fmt.Errorf("beamwidth: must be positive")
+				return units.Q{}, &units.Error{Msg: fmt.Sprintf("beamwidth: must be positive (got %s°)", units.FormatNum(bw*180/math.Pi)), Hint: "the antenna's half-power beamwidth, e.g. beamwidth(dish, f)"}
 			}
 			l, notes := rfmath.PointingLoss(off, bw)
 			warnFn(c, "pointing_loss", notes)
@@ -118,8 +128,8 @@ var obstruction = []*engine.Func{
 		Doc:    "Free-space field strength at distance d from a transmitter of e.i.r.p. eirp: E = sqrt(30·p)/d, i.e. EIRP(dBW) − 20·log10 d(km) + 74.77 dB(µV/m). For comparison with a limit; the page does not judge compliance, which local rules decide.",
 		Source: "ITU-R P.525-4 §2.1 (field strength for isotropic radiation)",
 		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
-			if !(q(a, 1) > 0) {
-				return units.Q{}, fmt.Errorf("d: the distance must be positive")
+			if err := positiveDistance(a, 1); err != nil {
+				return units.Q{}, err
 			}
 			return result(rfmath.FieldStrength(eirpDBW(a, 0), q(a, 1)), uDBuVm, "field strength")
 		},
@@ -129,8 +139,8 @@ var obstruction = []*engine.Func{
 		Doc:    "Power flux-density at distance d from a transmitter of e.i.r.p. eirp, spreading spherically: EIRP − 10·log10(4π d²) dB(W/m²). Add 10·log10(reference bandwidth / occupied bandwidth) for a limit per 4 kHz or per MHz. The page does not judge compliance, which local rules decide.",
 		Source: "ITU-R P.525-4 §2.1 (power flux-density, isotropic radiation)",
 		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
-			if !(q(a, 1) > 0) {
-				return units.Q{}, fmt.Errorf("d: the distance must be positive")
+			if err := positiveDistance(a, 1); err != nil {
+				return units.Q{}, err
 			}
 			return result(rfmath.PFD(eirpDBW(a, 0), q(a, 1)), uDBWm2, "power flux-density")
 		},
@@ -142,7 +152,7 @@ var obstruction = []*engine.Func{
 		Call: func(_ *engine.Call, a []engine.Value) (units.Q, error) {
 			m, err := rfmath.LognormalMargin(q(a, 0), q(a, 1))
 			if err != nil {
-				return units.Q{}, clean(err)
+				return units.Q{}, &units.Error{Msg: clean(err).Error(), Hint: "write the availability as 0.95 or 95 %, and sigma as a positive number of dB"}
 			}
 			return result(m, uDB, "fade margin")
 		},

@@ -91,8 +91,8 @@ var receiver = []*engine.Func{
 			return result(c.IIP2, uDBm, "IIP2")
 		}),
 	{
-		Name: "image_reject", Args: []engine.Arg{ratio("gain_imbalance"), lin("phase_error", units.None)}, Result: "dB",
-		Doc:    "Image rejection of a quadrature mixer from the I/Q gain imbalance (dB) and phase error (an angle, e.g. 2 deg; a plain number is radians): IRR = (1 + 2g·cos θ + g²)/(1 − 2g·cos θ + g²), g = 10^(ΔA/20).",
+		Name: "image_reject", Args: []engine.Arg{ratio("gain_imbalance"), angleArg("phase_error")}, Result: "dB",
+		Doc:    "Image rejection of a quadrature mixer from the I/Q gain imbalance (dB) and phase error (an angle with its unit, e.g. 2 deg): IRR = (1 + 2g·cos θ + g²)/(1 − 2g·cos θ + g²), g = 10^(ΔA/20).",
 		Source: "Razavi, RF Microelectronics (2nd ed.), image-reject receivers (ch. 4)",
 		Call: func(c *engine.Call, a []engine.Value) (units.Q, error) {
 			g, th := q(a, 0), q(a, 1)

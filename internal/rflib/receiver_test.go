@@ -40,7 +40,7 @@ func TestReceiverReferences(t *testing.T) {
 		// Image rejection against the phasor model of the two paths.
 		{"image_reject(0.2 dB, 2 deg)", "dB", irr(0.2, 2), 1e-9, "phasor sum 1 ± g·e^{jθ} (Razavi ch. 4)"},
 		{"image_reject(-0.5 dB, 1 deg)", "dB", irr(-0.5, 1), 1e-9, "phasor sum 1 ± g·e^{jθ} (Razavi ch. 4)"},
-		{"image_reject(1 dB, 0.01745)", "dB", irr(1, 1), 1e-4, "phase error in radians"},
+		{"image_reject(1 dB, 0.01745 rad)", "dB", irr(1, 1), 1e-4, "phase error in radians"},
 		{"image_reject(0.086 dB, 0.573 deg)", "dB", 10 * math.Log10(4/(0.01*0.01+0.01*0.01)), 0.05, "Razavi ch. 4 small-error form 4/(ε² + θ²), 1 % and 0.01 rad"},
 		// ACIR, the 3GPP definition, in linear ratios.
 		{"acir(45 dB, 33 dB)", "dB", -10 * math.Log10(math.Pow(10, -4.5)+math.Pow(10, -3.3)), 1e-9, "3GPP TR 36.942 ACIR = 1/(1/ACLR + 1/ACS)"},
@@ -74,6 +74,9 @@ rel   = "= rm - -30 dBm"
 		{"max_blocker(-120 dBm, -120 dBc/Hz, 100 kHz, 0 dB)", "allowed: the rise must be more than 0 dB"},
 		{"image_reject(0 dB, 0 deg)", "perfect balance"},
 		{"image_reject(0.1, 1 deg)", "gain_imbalance: got a plain number, want a ratio in dB"},
+		// The issue gives the phase error in degrees; a bare 2 could be 2° or 2 rad, so it is
+		// refused as every other angle argument is (rflib's package rule).
+		{"image_reject(0.25 dB, 2)", "phase_error: got a plain number, want an angle in deg or rad"},
 		{"adc_snr(0, 1 MHz, 100 kHz)", "must be positive"},
 		{"hd2(-10 dB, 40 dBm)", "hd2: p_out: got dB, want a power"},
 	} {

@@ -30,13 +30,13 @@ func gasInputs(f, rho, p, t float64) error {
 	return nil
 }
 
-// p676phi is φ(rp, rt, a, b, c, d) = rp^a rt^b exp[c(1 − rp) + d(1 − rt)], ITU-R P.676-11
+// p676phi is φ(rp, rt, a, b, c, d) = rp^a rt^b exp[c(1 − rp) + d(1 − rt)], ITU-R P.676-10
 // Annex 2 eq. (22u).
 func p676phi(rp, rt, a, b, c, d float64) float64 {
 	return math.Pow(rp, a) * math.Pow(rt, b) * math.Exp(c*(1-rp)+d*(1-rt))
 }
 
-// p676r returns rp = p/1013 and rt = 288/(273 + t°C) of ITU-R P.676-11 Annex 2 for a total
+// p676r returns rp = p/1013 and rt = 288/(273 + t°C) of ITU-R P.676-10 Annex 2 for a total
 // pressure p in hPa and a temperature t in K (t°C = t − 273.15: the Recommendation writes the
 // temperature in °C and adds 273, not 273.15).
 func p676r(p, t float64) (rp, rt float64) {
@@ -44,10 +44,11 @@ func p676r(p, t float64) (rp, rt float64) {
 }
 
 // GasOxygen returns the specific attenuation of dry air γo in dB/km at frequency f (GHz),
-// total pressure p (hPa) and temperature t (K). Source: ITU-R P.676-11 (09/2016), Annex 2,
-// §1, the piecewise approximation in six frequency bands with the functions ξ1…ξ7, γ54…γ66
-// and δ (numbered eq. (22) in P.676-10, where the same approximation appears). Valid for 1–350 GHz; above 350 GHz the last
-// branch is extrapolated (callers warn).
+// total pressure p (hPa) and temperature t (K). Source: ITU-R P.676-10 (09/2013), Annex 2,
+// §1, eq. (22): the piecewise approximation in six frequency bands with the functions ξ1…ξ7,
+// γ54…γ66 and δ. Valid for 1–350 GHz; above 350 GHz the last branch is extrapolated (callers
+// warn). P.676-10 is the last edition with these closed-form fits: from P.676-11 on, Annex 2
+// takes γ from Annex 1's line sum (see GasSpecific).
 func GasOxygen(f, p, t float64) float64 {
 	rp, rt := p676r(p, t)
 	phi := func(a, b, c, d float64) float64 { return p676phi(rp, rt, a, b, c, d) }
@@ -83,8 +84,7 @@ func GasOxygen(f, p, t float64) float64 {
 
 // GasWater returns the specific attenuation of water vapour γw in dB/km at frequency f
 // (GHz), total pressure p (hPa), temperature t (K) and water vapour density rho (g/m³).
-// Source: ITU-R P.676-11 (09/2016), Annex 2, §1, the line sum in η1, η2 and g(f, fi)
-// (eq. (23) in P.676-10).
+// Source: ITU-R P.676-10 (09/2013), Annex 2, §1, eq. (23), the line sum in η1, η2 and g(f, fi).
 func GasWater(f, p, t, rho float64) float64 {
 	rp, rt := p676r(p, t)
 	e1 := 0.955*rp*math.Pow(rt, 0.68) + 0.006*rho
@@ -107,7 +107,13 @@ func sq(x float64) float64 { return x * x }
 
 // GasSpecific returns the specific attenuation of atmospheric gases γo + γw in dB/km for
 // frequency f (Hz), water vapour density rho (g/m³), total pressure p (hPa) and temperature t
-// (K), by the approximate method of ITU-R P.676-11 Annex 2 §1. Notes are
+// (K), by the approximate method of ITU-R P.676-10 (09/2013) Annex 2 §1. That edition is the
+// last whose Annex 2 gives closed-form fits; P.676-11 to -13 compute γ in Annex 2 from Annex 1's
+// spectroscopic line sum (about 80 lines), which this package does not carry. At sea level
+// (7.5 g/m³, 1013.25 hPa, 15 °C) the fits lie within 0.5 % of P.676-13's line sum below 5 GHz
+// and near the 22 GHz line, within 4 % in the 60 GHz oxygen band, and up to about 8 % above it
+// between 10 and 45 GHz and at 80–90 GHz (hundredths of a dB per km; TestGasAgainstP676v13
+// holds the comparison). Notes are
 // returned outside the method's 1–350 GHz.
 func GasSpecific(f, rho, p, t float64) (float64, []string, error) {
 	fg := f / 1e9
@@ -119,12 +125,13 @@ func GasSpecific(f, rho, p, t float64) (float64, []string, error) {
 }
 
 // GasHeights returns the equivalent heights ho (dry air) and hw (water vapour) in km at
-// frequency f (GHz) and total pressure p (hPa). Source: ITU-R P.676-11 (09/2016), Annex 2,
-// §2.2: ho = 6.1/(1 + 0.17 rp^−1.1)·(1 + t1 + t2 + t3), at most 10.7 rp^0.3
+// frequency f (GHz) and total pressure p (hPa). Source: ITU-R P.676-10 (09/2013), Annex 2,
+// §2.2 (the edition whose γ fits GasOxygen and GasWater use): ho = 6.1/(1 + 0.17 rp^−1.1)·(1 + t1 + t2 + t3), at most 10.7 rp^0.3
 // below 70 GHz, and hw = 1.66·(1 + Σ line terms in σw).
 func GasHeights(f, p float64) (ho, hw float64) {
 	rp := p / 1013
 	t1 := 4.64 / (1 + 0.066*math.Pow(rp, -2.3)) * math.Exp(-sq((f-59.7)/(2.87+12.4*math.Exp(-7.9*rp))))
+	// 2.21 as printed in P.676-10; P.676-11 prints 2.12 in the same term.
 	t2 := 0.14 * math.Exp(2.21*rp) / (sq(f-118.75) + 0.031*math.Exp(2.2*rp))
 	t3 := 0.0114 / (1 + 0.14*math.Pow(rp, -2.6)) * f * (-0.0247 + 0.0001*f + 1.61e-6*f*f) /
 		(1 - 0.0169*f + 4.1e-5*f*f + 3.2e-7*f*f*f)
@@ -137,13 +144,13 @@ func GasHeights(f, p float64) (ho, hw float64) {
 	return ho, hw
 }
 
-// lowElevF is F(x) = 1/(0.661 x + 0.339 sqrt(x² + 5.51)) of ITU-R P.676-11 Annex 2 §2.2.2,
+// lowElevF is F(x) = 1/(0.661 x + 0.339 sqrt(x² + 5.51)) of ITU-R P.676-10 Annex 2 §2.2.2,
 // the curved-Earth path factor for elevations below 5°.
 func lowElevF(x float64) float64 { return 1 / (0.661*x + 0.339*math.Sqrt(x*x+5.51)) }
 
 // GasLoss returns the attenuation in dB by atmospheric gases on an Earth–space path from a
 // station near sea level at elevation elev (rad), frequency f (Hz), surface water vapour
-// density rho (g/m³), total pressure p (hPa) and temperature t (K). Source: ITU-R P.676-11
+// density rho (g/m³), total pressure p (hPa) and temperature t (K). Source: ITU-R P.676-10
 // Annex 2 §2.2: for 5°–90°, A = (γo ho + γw hw)/sin φ; below 5°, the curved-Earth
 // form A = sqrt(Re)·[γo sqrt(ho) F(tan φ sqrt(Re/ho)) + γw sqrt(hw) F(tan φ sqrt(Re/hw))]/cos φ
 // with Re = 8500 km. Notes are returned outside 1–350 GHz and below 5°; an error

@@ -64,7 +64,8 @@ func rainInputs(r001, p float64) error {
 //	        C3 = 0.139 C0 + 0.043 (1 − C0)
 //
 // with d in km and f in GHz. Where the fit's denominator falls to 0.4 or below (long paths at
-// low frequencies and rain rates) r takes its cap of 2.5 and a note says so. Notes are also
+// low frequencies and rain rates) r takes its cap of 2.5, as P.530 prescribes; where it falls
+// to zero or below, the fit itself has broken down and a note says so. Notes are also
 // returned for p outside 0.001–1 %, f outside 1–100 GHz and d beyond 60 km; errors for d ≤ 0,
 // a negative rain rate, p outside (0, 100) % and an unknown polarisation.
 func RainLOS(f, d, r001, p float64, pol string) (float64, []string, error) {

@@ -6,6 +6,7 @@ import (
 	"math"
 	"testing"
 	"testing/fstest"
+	"time"
 
 	"github.com/rfledger/rfledger/engine"
 	"github.com/rfledger/rfledger/internal/rflib"
@@ -90,4 +91,12 @@ func Near(t testing.TB, what string, got, want, tol float64) {
 func FreeSpaceLossDB(d, f float64) float64 {
 	const c = 299792458.0
 	return 20 * math.Log10(4*math.Pi*d*f/c)
+}
+
+// ReportCPU reports the CPU time per operation since start (a CPUTime reading taken before
+// the benchmark's loop) as cpu-ms/op, where CPU time can be read.
+func ReportCPU(b *testing.B, start time.Duration) {
+	if now := CPUTime(); now > 0 && b.N > 0 {
+		b.ReportMetric(float64(now-start)/float64(b.N)/1e6, "cpu-ms/op")
+	}
 }
