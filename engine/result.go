@@ -217,7 +217,11 @@ func (s *Sheet) checkOverride(o Override, keyAt, valAt Range) (int, units.Q, *Di
 	}
 	id, ok := s.byName[o.Name]
 	if !ok || s.nodes[id].q == nil {
-		return bad(s.suggest(o.Name, scope{}), "no such quantity")
+		hint := s.suggest(o.Name, scope{})
+		if hint == "" {
+			hint = s.anInput()
+		}
+		return bad(hint, "no such quantity")
 	}
 	n := s.nodes[id]
 	if n.q.Formula != "" {
@@ -256,6 +260,17 @@ func (s *Sheet) checkOverride(o Override, keyAt, valAt Range) (int, units.Q, *Di
 		v = v.Linear()
 	}
 	return id, v, nil
+}
+
+// anInput is the hint for an override that names nothing near any quantity: inputs go by
+// their full name, with the sheet's first input as the example ("" for a sheet without one).
+func (s *Sheet) anInput() string {
+	for _, n := range s.nodes {
+		if n.q != nil && n.q.Formula == "" && n.ok {
+			return fmt.Sprintf("name an input by its full name, group and key, such as %q", n.q.Name)
+		}
+	}
+	return ""
 }
 
 // run evaluates every node in order and then the requirements. With quiet set, warnings and
