@@ -201,11 +201,32 @@ type StageValue struct {
 	has   uint16
 }
 
+// stageKeyIndex returns the place of a stage value's key in stageKeys (and in StageValue's
+// array), or -1. It is a switch rather than a search of stageKeys because the cascade
+// functions look up every key of every stage on each Monte Carlo trial;
+// TestStageKeyIndex holds it to stageKeys.
 func stageKeyIndex(key string) int {
-	for i, k := range stageKeys {
-		if k == key {
-			return i
-		}
+	switch key {
+	case "gain":
+		return 0
+	case "nf":
+		return 1
+	case "te":
+		return 2
+	case "loss":
+		return 3
+	case "iip3":
+		return 4
+	case "oip3":
+		return 5
+	case "ip1db":
+		return 6
+	case "op1db":
+		return 7
+	case "iip2":
+		return 8
+	case "oip2":
+		return 9
 	}
 	return -1
 }

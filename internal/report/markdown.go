@@ -40,7 +40,8 @@ func Markdown(in Input) ([]byte, []File) {
 	in = in.filled()
 	p := &page{in: in, r: in.Result, chains: analysis.Cascades(in.Result)}
 	// The line items (a row per quantity: most of a big sheet's page) are written on a
-	// goroutine of their own meanwhile, into a page of their own, and set in their place.
+	// goroutine of their own while the rest of the page is, into a page of their own, and set
+	// in their place at the end (no other section reads them).
 	items := make(chan []byte, 1)
 	go func() {
 		ip := &page{in: p.in, r: p.r, chains: p.chains}
@@ -66,7 +67,7 @@ func Markdown(in Input) ([]byte, []File) {
 		p.verdict()
 	}
 	p.warnings()
-	p.b.Write(<-items)
+	at := p.b.Len()
 	p.cascades()
 	p.caseSections()
 	if a := in.Analysis; a != nil && a.Focus != nil {
@@ -79,7 +80,10 @@ func Markdown(in Input) ([]byte, []File) {
 	p.freqPlans()
 	p.cautions()
 	p.footer()
-	return p.b.Bytes(), p.files
+	rest, li := p.b.Bytes(), <-items
+	out := make([]byte, 0, len(rest)+len(li))
+	out = append(append(append(out, rest[:at]...), li...), rest[at:]...)
+	return out, p.files
 }
 
 // text is the one escape for worksheet text (titles, notes, sources, stage labels, names,
