@@ -73,6 +73,13 @@ func signalFlow(sc *engine.Scenario, focus *engine.Quantity) *SignalFlow {
 	return f.flow(focus, 0)
 }
 
+// FlowOf puts focus in signal order as r evaluates it, as [Analyze] does for its focus: a
+// page with several cases lays each case's levels beside the first case's rows. It returns
+// nil where [Analysis.Flow] would be nil.
+func FlowOf(r *engine.Result, focus *engine.Quantity) *SignalFlow {
+	return signalFlow(r.Scenario(), focus)
+}
+
 // flower puts quantities of one scenario in signal order.
 type flower struct {
 	sh *engine.Sheet

@@ -126,3 +126,32 @@ func BenchmarkCases8(b *testing.B) {
 	b.ReportMetric(float64(tPar)/float64(tNom), "x-nominal-parallel")
 	b.ReportMetric(float64(tNom.Nanoseconds())/float64(b.N), "nominal-ns/op")
 }
+
+// BenchmarkCases8Parts times the parts BenchmarkCases8 interleaves, one sub-benchmark each,
+// for their own ns/op and B/op: the nominal evaluation of the 10,000-quantity network alone,
+// and its 8 cases evaluated from that result on one goroutine and on GOMAXPROCS. The ratio
+// the target is about comes from BenchmarkCases8, where both halves run in the same loop.
+func BenchmarkCases8Parts(b *testing.B) {
+	sh := loadCases(b, genCases(b, 10000, 8))
+	nom, diags := sh.Eval()
+	if diags.HasErrors() {
+		b.Fatal(diags)
+	}
+	b.Run("nominal", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			sh.Eval()
+		}
+	})
+	for _, w := range []struct {
+		name    string
+		workers int
+	}{{"cases-1worker", 1}, {"cases-parallel", 0}} {
+		b.Run(w.name, func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				sh.EvalCases(nom, sh.Cases, w.workers)
+			}
+		})
+	}
+}

@@ -250,8 +250,9 @@ func TestOverrideErrors(t *testing.T) {
 	src := "[tx]\npower = \"14 dBm\"\neirp = \"= power + 2 dBi\"\n"
 	for _, c := range []struct{ name, value, want string }{
 		{"tx.pwr", "10 dBm", `^--set: tx\.pwr: no such quantity; did you mean "tx\.power"\?$`},
+		{"zz.top", "10 dBm", `^--set: zz\.top: no such quantity; name an input by its full name, group and key, such as "tx\.power"$`},
 		{"tx.eirp", "20 dBm", `^--set: tx\.eirp: derived from a formula; only inputs can be set`},
-		{"tx.power", "10 km", `^--set: tx\.power: is 14 dBm; 10 km is not of the same kind$`},
+		{"tx.power", "10 km", `^--set: tx\.power: is 14 dBm; 10 km is not of the same kind; give a value of the input's kind, in a unit like "14 dBm"$`},
 		{"tx.power", "10 dQ", `unknown unit "dQ"`},
 	} {
 		_, diags := evalFS(map[string]string{"s.toml": src}, "s.toml", engine.Override{Name: c.name, Value: c.value})

@@ -217,13 +217,21 @@ func (s *Sheet) checkOverride(o Override, keyAt, valAt Range) (int, units.Q, *Di
 	}
 	id, ok := s.byName[o.Name]
 	if !ok || s.nodes[id].q == nil {
-		return bad(s.suggest(o.Name, scope{}), "no such quantity")
+		hint := s.suggest(o.Name, scope{})
+		if hint == "" {
+			hint = s.anInput()
+		}
+		return bad(hint, "no such quantity")
 	}
 	n := s.nodes[id]
 	if n.q.Formula != "" {
 		return bad("only inputs can be set; it is \"= "+n.q.Formula+"\"", "derived from a formula")
 	}
 	if rest, isFormula := strings.CutPrefix(strings.TrimSpace(o.Value), "="); isFormula {
+		if keyAt.File != "--set" {
+			// a case's set, in the worksheet: the command line's spelling would mislead
+			return bad(fmt.Sprintf("write a value like the input's own, e.g. %q = %q", o.Name, n.q.Text), "a case's set takes a value, not a formula")
+		}
 		return bad(fmt.Sprintf("write --set '%s=%s'", o.Name, strings.TrimSpace(rest)), "--set takes a value, not a formula")
 	}
 	if !n.ok {
@@ -235,7 +243,7 @@ func (s *Sheet) checkOverride(o Override, keyAt, valAt Range) (int, units.Q, *Di
 		return bad(setHint(unitHint(err)), "%s", unitMsg(err))
 	}
 	if v.D != n.ty.D || (v.K == units.Rate) != (n.ty.K == units.Rate) {
-		return bad("", "is %s; %s is not of the same kind", n.q.Text, o.Value)
+		return bad(fmt.Sprintf("give a value of the input's kind, in a unit like %q", n.q.Text), "is %s; %s is not of the same kind", n.q.Text, o.Value)
 	}
 	if !finite(v) {
 		return bad("", "%s is not a finite number", o.Value)
@@ -252,6 +260,17 @@ func (s *Sheet) checkOverride(o Override, keyAt, valAt Range) (int, units.Q, *Di
 		v = v.Linear()
 	}
 	return id, v, nil
+}
+
+// anInput is the hint for an override that names nothing near any quantity: inputs go by
+// their full name, with the sheet's first input as the example ("" for a sheet without one).
+func (s *Sheet) anInput() string {
+	for _, n := range s.nodes {
+		if n.q != nil && n.q.Formula == "" && n.ok {
+			return fmt.Sprintf("name an input by its full name, group and key, such as %q", n.q.Name)
+		}
+	}
+	return ""
 }
 
 // run evaluates every node in order and then the requirements. With quiet set, warnings and

@@ -99,6 +99,7 @@ func (ev *evaluated) evalCases(cases []*engine.Case, set []engine.Override, sel 
 			for _, d := range cdiags[k] {
 				if !seen[d.String()] {
 					d.Quantity = strings.TrimSpace(d.Quantity + " in case " + fmt.Sprintf("%q", c.Name))
+					d.Hint = caseHint(d.Hint, c)
 					diags = append(diags, d)
 				}
 			}
@@ -130,6 +131,19 @@ func (ev *evaluated) evalCases(cases []*engine.Case, set []engine.Override, sel 
 	return diags
 }
 
+// caseHint adds to the hint of a problem only a case's overrides raised where that case is
+// written, since the problem's own position is the formula, not the value that upset it.
+func caseHint(hint string, c *engine.Case) string {
+	if c.Range.Start.Line == 0 {
+		return hint
+	}
+	where := fmt.Sprintf("the case is written at %s", c.Range)
+	if hint == "" {
+		return where
+	}
+	return hint + "; " + where
+}
+
 // diffCase is what changed in one case between two worksheets.
 type diffCase struct {
 	Name         string     `json:"name"`
@@ -158,7 +172,7 @@ func diffCases(a, b *evaluated, tol units.Q, reg *regression) ([]diffCase, error
 		seen[c.Case.Name] = true
 		oc, ok := old[c.Case.Name]
 		if !ok {
-			out = append(out, diffCase{Name: c.Case.Name, Status: "added", Requirements: []diffReq{}, Quantities: []diffQ{}, Flipped: []string{}})
+			out = append(out, lonelyCase(c, "added", tol))
 			continue
 		}
 		r, err := regressions(oc.Result, c.Result, tol)
@@ -177,10 +191,34 @@ func diffCases(a, b *evaluated, tol units.Q, reg *regression) ([]diffCase, error
 	}
 	for _, c := range a.cases {
 		if !seen[c.Case.Name] {
-			out = append(out, diffCase{Name: c.Case.Name, Status: "removed", Requirements: []diffReq{}, Quantities: []diffQ{}, Flipped: []string{}})
+			out = append(out, lonelyCase(c, "removed", tol))
 		}
 	}
 	return out, nil
+}
+
+// lonelyCase is a case only one side has (status added or removed): its focus and its
+// requirements' states on that side, "absent" on the other.
+func lonelyCase(c report.Case, status string, tol units.Q) diffCase {
+	dc := diffCase{Name: c.Case.Name, Status: status, Requirements: []diffReq{}, Quantities: []diffQ{}, Flipped: []string{}}
+	sh := c.Result.Sheet()
+	if f, ok := sh.Quantity(sh.Focus); ok {
+		r, _ := regressions(c.Result, c.Result, tol) // only for which way is worse
+		dc.Focus = &diffFocus{Name: f.Name, OldName: sh.Focus, Formula: f.Formula, OldFormula: f.Formula, Lower: r.lowerWorse}
+		if status == "added" {
+			dc.Focus.New = valueOf(c.Result, f)
+		} else {
+			dc.Focus.Old = valueOf(c.Result, f)
+		}
+	}
+	for _, rq := range sh.Requires {
+		r := diffReq{That: rq.That, Old: reqState(c.Result, rq), New: "absent"}
+		if status == "added" {
+			r.Old, r.New = r.New, r.Old
+		}
+		dc.Requirements = append(dc.Requirements, r)
+	}
+	return dc
 }
 
 // casesMarkdown writes the case-by-case comparison: one row per case.
@@ -202,9 +240,17 @@ func casesMarkdown(cases []diffCase) []byte {
 		}
 		var reqs []string
 		for _, r := range c.Requirements {
-			if r.Old != r.New {
+			switch {
+			case c.Status == "added" && r.New != "pass":
+				reqs = append(reqs, fmt.Sprintf("`%s`: %s", r.That, r.New))
+			case c.Status == "removed" && r.Old != "pass":
+				reqs = append(reqs, fmt.Sprintf("`%s`: %s", r.That, r.Old))
+			case c.Status != "added" && c.Status != "removed" && r.Old != r.New:
 				reqs = append(reqs, fmt.Sprintf("`%s`: %s → %s", r.That, r.Old, r.New))
 			}
+		}
+		if len(reqs) == 0 && len(c.Requirements) > 0 && (c.Status == "added" || c.Status == "removed") {
+			reqs = append(reqs, "all pass")
 		}
 		changed := ""
 		if c.Status == "changed" || c.Status == "same" {

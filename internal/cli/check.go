@@ -156,6 +156,7 @@ func checkText(e *Env, c report.CheckInput) {
 		}
 	}
 	fmt.Fprintln(e.Stdout)
+	checkAnalysed(e, cases)
 	if len(fails) == 0 {
 		for _, k := range risky {
 			checkRisk(e, sh, k, len(cases) > 1)
@@ -170,6 +171,31 @@ func checkText(e *Env, c report.CheckInput) {
 			fmt.Fprintf(e.Stdout, " (%s = %s)", q.Name, f.c.Result.Display(q))
 		}
 		fmt.Fprintln(e.Stdout)
+	}
+}
+
+// checkAnalysed writes, for a sheet with cases whose first case ran the Monte Carlo trials,
+// each other case's chance that all its requirements hold where its analyses were run too
+// (analyses = true, --all-cases), and how many cases they were not run for.
+func checkAnalysed(e *Env, cases []report.Case) {
+	ran := func(k report.Case) bool {
+		a := k.Analysis
+		return a != nil && a.Tolerance != nil && a.Tolerance.Trials > 0 && len(k.Result.Sheet().Requires) > 0
+	}
+	if len(cases) < 2 || !ran(cases[0]) {
+		return
+	}
+	not := 0
+	for _, k := range cases[1:] {
+		if !ran(k) {
+			not++
+			continue
+		}
+		t := k.Analysis.Tolerance
+		fmt.Fprintf(e.Stdout, "  in case %q all hold together in %s of %s Monte Carlo trials\n", k.Case.Name, report.ChanceText(t.PPass, t.PPassSE, t.Trials), analysis.Count(t.Trials))
+	}
+	if not > 0 {
+		fmt.Fprintf(e.Stdout, "  Monte Carlo not run for %d of %d cases (--all-cases runs it for every case)\n", not, len(cases))
 	}
 }
 

@@ -2,6 +2,9 @@ package cli
 
 import (
 	"fmt"
+	"strings"
+
+	"github.com/rfledger/rfledger/engine"
 
 	"github.com/rfledger/rfledger/internal/report"
 	"github.com/rfledger/rfledger/internal/watch"
@@ -49,7 +52,11 @@ func cmdExport(e *Env, args []string) int {
 			return usageErr(e, "export", "%s", msg)
 		}
 	}
-	data, err := report.CHeader(ev.result, report.HeaderOptions{Prefix: *prefix, Type: report.CType(*ctype)})
+	opt := report.HeaderOptions{Prefix: *prefix, Type: report.CType(*ctype)}
+	if len(sel.names) == 1 {
+		opt.Case = operatingPoint(ev.cases[0].Case)
+	}
+	data, err := report.CHeader(ev.result, opt)
 	if err != nil {
 		fmt.Fprintf(e.Stderr, "rfledger export: %v\n", err)
 		return ExitBadSheet
@@ -66,6 +73,19 @@ func cmdExport(e *Env, args []string) int {
 		return ExitBadSheet
 	}
 	return ExitOK
+}
+
+// operatingPoint names a case and its overrides for a header's comment:
+// case "far" (path.distance = 8 km).
+func operatingPoint(c *engine.Case) string {
+	sets := make([]string, len(c.Set))
+	for i, o := range c.Set {
+		sets[i] = o.Name + " = " + strings.TrimSpace(o.Value)
+	}
+	if len(sets) == 0 {
+		return fmt.Sprintf("case %q (the worksheet as written)", c.Name)
+	}
+	return fmt.Sprintf("case %q (%s)", c.Name, strings.Join(sets, ", "))
 }
 
 // ambiguousExport says why a header cannot be written without --case: an exported value

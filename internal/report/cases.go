@@ -41,14 +41,20 @@ func casePass(c Case) bool {
 	return true
 }
 
-// overridesText writes a case's overrides for the page.
+// overridesText writes a case's overrides for the page as written. A value has been read as
+// a number with its unit, and follows "name = " inside a line, so only the punctuation that
+// starts Markdown inside a line needs escapes (not the sign or the "1." of a list).
 func overridesText(c *engine.Case) string {
 	if len(c.Set) == 0 {
 		return "as written"
 	}
 	parts := make([]string, len(c.Set))
 	for i, o := range c.Set {
-		parts[i] = code(o.Name) + " = " + text(o.Value)
+		v := strings.TrimSpace(o.Value)
+		if strings.ContainsAny(v, markdownPunct+"\r\n\t") {
+			v = text(v)
+		}
+		parts[i] = code(o.Name) + " = " + v
 	}
 	return strings.Join(parts, ", ")
 }
@@ -305,6 +311,8 @@ func (p *page) caseLineItems() {
 	p.f("## Line items\n\n")
 	if !p.wideCases() {
 		p.f("Values are those of “%s”; what differs in the other cases is in each case's section under [Cases](#cases).\n\n", text(first.Case.Name))
+	} else {
+		p.f("A quantity whose value differs between cases shows each case's; one with a single value has it in every case.\n\n")
 	}
 	for _, g := range sh.Groups {
 		if !p.groupHeading(g) {

@@ -13,30 +13,154 @@ import (
 
 // signalFlow writes the budget in signal order: the path from the first level to the level
 // compared, the comparison and what follows it up to the focus, then each compared level's
-// own terms in a block of its own.
+// own terms in a block of its own. On a page with cases side by side, each case whose budget
+// follows the same signal order gets a level column of its own.
 func (p *page) signalFlow() {
 	a := p.in.Analysis
 	fl := a.Flow
+	cols, apart := p.caseFlows()
 	p.f("%s = %s in signal order: each term as the formulas write it, followed through the quantities they name, with the level after it", code(a.Focus.Name), p.r.Display(a.Focus))
+	if len(cols) > 1 {
+		p.f(" in each case (a case's change or compared level, where it differs from the first column's, in brackets beside its level)")
+	}
 	if len(fl.Blocks) > 0 {
 		p.f("; the level it is compared with is broken down below")
 	}
 	p.f(":\n\n")
-	p.flowTable(fl.Rows)
-	for _, b := range fl.Blocks {
-		p.f("%s, compared with above, is formed of:\n\n", code(b.Quantity))
-		p.flowTable(b.Rows)
+	if len(apart) > 0 {
+		p.f("%s: not the same signal order, so no column here; see the line items.\n\n", strings.Join(apart, ", "))
+	}
+	p.flowTable(fl.Rows, cols, func(f *analysis.SignalFlow) []analysis.FlowRow { return f.Rows })
+	for i, b := range fl.Blocks {
+		rowsOf := func(f *analysis.SignalFlow) []analysis.FlowRow { return f.Blocks[i].Rows }
+		p.f("%s, compared with above, is formed of", code(b.Quantity))
+		if len(cols) > 1 && sameInEvery(b.Rows, cols, rowsOf) {
+			p.f(" (the same in every case)")
+		}
+		p.f(":\n\n")
+		p.flowTable(b.Rows, cols, rowsOf)
 	}
 	p.flowChart()
 }
 
+// caseFlow is one case's budget in signal order, for its level column.
+type caseFlow struct {
+	name string
+	fl   *analysis.SignalFlow
+}
+
+// caseFlows returns, on a page whose cases fit side by side, the first case's budget in
+// signal order and then each other case's whose rows are the same items in the same order;
+// apart names, quoted, the cases whose budget follows another order (or cannot be put in one).
+// A page of one case gets nothing.
+func (p *page) caseFlows() (cols []caseFlow, apart []string) {
+	if !p.multiCase() || !p.wideCases() {
+		return nil, nil
+	}
+	a := p.in.Analysis
+	for i, c := range p.in.Cases {
+		var fl *analysis.SignalFlow
+		switch {
+		case i == 0:
+			fl = a.Flow
+		case c.Analysis != nil && c.Analysis.Focus == a.Focus:
+			fl = c.Analysis.Flow
+		case c.Result.Known(a.Focus):
+			fl = analysis.FlowOf(c.Result, a.Focus)
+		}
+		if fl == nil || !sameFlow(a.Flow, fl) {
+			apart = append(apart, "“"+text(c.Case.Name)+"”")
+			continue
+		}
+		cols = append(cols, caseFlow{name: c.Case.Name, fl: fl})
+	}
+	return cols, apart
+}
+
+// sameFlow reports whether two budgets in signal order have the same rows: items, kinds and
+// units, in the path and in every block.
+func sameFlow(a, b *analysis.SignalFlow) bool {
+	same := func(x, y []analysis.FlowRow) bool {
+		if len(x) != len(y) {
+			return false
+		}
+		for i := range x {
+			if x[i].Item != y[i].Item || x[i].Kind != y[i].Kind || x[i].Unit != y[i].Unit {
+				return false
+			}
+		}
+		return true
+	}
+	if !same(a.Rows, b.Rows) || len(a.Blocks) != len(b.Blocks) {
+		return false
+	}
+	for i := range a.Blocks {
+		if a.Blocks[i].Quantity != b.Blocks[i].Quantity || !same(a.Blocks[i].Rows, b.Blocks[i].Rows) {
+			return false
+		}
+	}
+	return true
+}
+
+// sameInEvery reports whether every case's rows print as the first case's: such a table
+// (a noise floor no case changes) shows its levels once, as the line items do.
+func sameInEvery(rows []analysis.FlowRow, cols []caseFlow, rowsOf func(*analysis.SignalFlow) []analysis.FlowRow) bool {
+	for _, c := range cols {
+		for j, r := range rowsOf(c.fl) {
+			f := rows[j]
+			if fmtNum(r.Level, r.Unit) != fmtNum(f.Level, f.Unit) || signedIn(r.Change, r.ChangeUnit) != signedIn(f.Change, f.ChangeUnit) || fmtNum(r.Compared, r.ComparedUnit) != fmtNum(f.Compared, f.ComparedUnit) {
+				return false
+			}
+		}
+	}
+	return true
+}
+
 // flowTable writes rows of a budget in signal order: numbered terms, and in bold the
-// quantities they add up to.
-func (p *page) flowTable(rows []analysis.FlowRow) {
-	p.f("| # | item | change | level |\n| ---: | --- | ---: | ---: |\n")
+// quantities they add up to. With more than one case column, rowsOf picks the same rows out of
+// each case's budget, and each case gets a level column.
+func (p *page) flowTable(rows []analysis.FlowRow, cols []caseFlow, rowsOf func(*analysis.SignalFlow) []analysis.FlowRow) {
+	if len(cols) < 2 || sameInEvery(rows, cols, rowsOf) {
+		cols = nil
+	}
+	levels := func(j int, bold bool) string {
+		if cols == nil {
+			lv := fmtNum(rows[j].Level, rows[j].Unit)
+			if bold {
+				lv = "**" + lv + "**"
+			}
+			return lv
+		}
+		var cells []string
+		for k, c := range cols {
+			r := rowsOf(c.fl)[j]
+			cell := fmtNum(r.Level, r.Unit)
+			if bold {
+				cell = "**" + cell + "**"
+			}
+			first := rows[j]
+			switch {
+			case k == 0:
+			case (r.Kind == analysis.FlowTerm || r.Kind == analysis.FlowTotal && !math.IsNaN(r.Change)) && signedIn(r.Change, r.ChangeUnit) != signedIn(first.Change, first.ChangeUnit):
+				cell += " (" + signedIn(r.Change, r.ChangeUnit) + ")"
+			case r.Kind == analysis.FlowCompare && fmtNum(r.Compared, r.ComparedUnit) != fmtNum(first.Compared, first.ComparedUnit):
+				cell += " (vs " + fmtNum(r.Compared, r.ComparedUnit) + ")"
+			}
+			cells = append(cells, cell)
+		}
+		return strings.Join(cells, " | ")
+	}
+	if cols == nil {
+		p.f("| # | item | change | level |\n| ---: | --- | ---: | ---: |\n")
+	} else {
+		p.f("| # | item | change |")
+		for _, c := range cols {
+			p.f(" %s |", text(c.name))
+		}
+		p.f("\n| ---: | --- | ---: |%s\n", strings.Repeat(" ---: |", len(cols)))
+	}
 	n := 0
-	for _, r := range rows {
-		lv := fmtNum(r.Level, r.Unit)
+	for j, r := range rows {
 		switch r.Kind {
 		case analysis.FlowStart, analysis.FlowTerm:
 			n++
@@ -44,16 +168,16 @@ func (p *page) flowTable(rows []analysis.FlowRow) {
 			if r.Kind == analysis.FlowTerm {
 				ch = signedIn(r.Change, r.ChangeUnit)
 			}
-			p.f("| %d | %s | %s | %s |\n", n, code(r.Item), ch, lv)
+			p.f("| %d | %s | %s | %s |\n", n, code(r.Item), ch, levels(j, false))
 		case analysis.FlowCompare:
 			n++
-			p.f("| %d | compared with %s = %s | | %s |\n", n, code(r.Item), fmtNum(r.Compared, r.ComparedUnit), lv)
+			p.f("| %d | compared with %s = %s | | %s |\n", n, code(r.Item), fmtNum(r.Compared, r.ComparedUnit), levels(j, false))
 		case analysis.FlowTotal:
 			if !math.IsNaN(r.Change) {
-				p.f("| | %s%s | %s | %s |\n", code(r.Item), span(n, r.Terms), signedIn(r.Change, r.ChangeUnit), lv)
+				p.f("| | %s%s | %s | %s |\n", code(r.Item), span(n, r.Terms), signedIn(r.Change, r.ChangeUnit), levels(j, false))
 				continue
 			}
-			p.f("| | **%s** | | **%s** |\n", code(r.Item), lv)
+			p.f("| | **%s** | | %s |\n", code(r.Item), levels(j, true))
 		}
 	}
 	p.f("\n")

@@ -130,3 +130,56 @@ margin = "= prx - 2 dB - sens"
 		t.Errorf("margin step %+v, want a 39 dB bracket", gap)
 	}
 }
+
+// TestSignalFlowCaseApart: a case whose budget does not follow the first case's signal order
+// (here its analysed flow is one term short) gets no level column and is named above the
+// table; the others keep theirs.
+func TestSignalFlowCaseApart(t *testing.T) {
+	src := `focus = "link.margin"
+[tx]
+power = "10 dBm"
+[link]
+loss = "80 dB"
+sens = "-90 dBm"
+margin = "= tx.power - loss - sens"
+[[case]]
+name = "lossy"
+set = { "link.loss" = "90 dB" }
+[[case]]
+name = "other"
+set = { "link.loss" = "70 dB" }
+`
+	r, diags := sheettest.Eval(src)
+	if diags.HasErrors() {
+		t.Fatal(diags)
+	}
+	sh := r.Sheet()
+	results, _ := sh.EvalCases(r, sh.Cases, 1)
+	opt := analysis.Options{Trials: 10}
+	a, _ := analysis.Analyze(r, opt)
+	other, _ := analysis.Analyze(results[1], opt)
+	if a.Flow == nil || other.Flow == nil {
+		t.Fatal("no signal flow")
+	}
+	short := *other.Flow
+	short.Rows = append(append([]analysis.FlowRow{}, short.Rows[:1]...), short.Rows[2:]...)
+	other.Flow = &short
+	in := Input{Result: r, Analysis: a, Cases: []Case{
+		{Case: sh.Nominal, Result: r, Analysis: a},
+		{Case: sh.Cases[0], Result: results[0]},
+		{Case: sh.Cases[1], Result: results[1], Analysis: other},
+	}}
+	page, _ := Markdown(in)
+	flow := string(page)
+	flow = flow[strings.Index(flow, "## Where the budget goes"):]
+	// 10 dBm − 80 dB = −70 dBm, with 90 dB −80 dBm: the margins 20 dB and 10 dB above −90 dBm
+	for _, want := range []string{
+		"\n“other”: not the same signal order, so no column here; see the line items.\n",
+		"\n| # | item | change | nominal | lossy |\n",
+		"\n| 2 | `link.loss` | -80.00 dB | -70.00 dBm | -80.00 dBm (-90.00 dB) |\n",
+	} {
+		if !strings.Contains(flow, want) {
+			t.Errorf("no %q in\n%s", want, flow)
+		}
+	}
+}
