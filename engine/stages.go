@@ -73,6 +73,15 @@ var stageKinds = map[string]struct {
 
 func isPower(q units.Q) bool { return q.D == units.Power }
 
+// stageKindOK is stageKinds' test by the key's place in stageKeys, for the checks that run
+// on every gathering of a chain.
+var stageKindOK = func() (ok [len(StageValue{}.vals)]func(units.Q) bool) {
+	for i, k := range stageKeys {
+		ok[i] = stageKinds[k].ok
+	}
+	return ok
+}()
+
 // checkStageKinds runs once every formula has its type: a stage value of the wrong kind
 // (a gain in dBm, a te in dB) is an error at its key, and leaves its chain unknown.
 func (l *loader) checkStageKinds() {
@@ -103,7 +112,7 @@ func stageProblems(st *Stage, sv *StageValue) []stageProblem {
 	get := func(k string) (units.Q, bool) {
 		i := stageKeyIndex(k)
 		v, has := sv.vals[i], sv.has&(1<<i) != 0
-		return v, has && stageKinds[k].ok(v) // a value of the wrong kind is reported at load
+		return v, has && stageKindOK[i](v) // a value of the wrong kind is reported at load
 	}
 	// F = 1 + Te/T0 ≥ 1 for a physical two-port (Friis 1944): NF ≥ 0 dB, Te ≥ 0 K.
 	if nf, ok := get("nf"); ok && nf.V < 0 {
@@ -115,8 +124,11 @@ func stageProblems(st *Stage, sv *StageValue) []stageProblem {
 	if loss, ok := get("loss"); ok && loss.V < 0 {
 		out = append(out, stageProblem{"loss", fmt.Sprintf("stage %q: loss %s is negative: a passive part does not amplify", st.Label, loss), "write the loss as a positive number, or gain with nf for an amplifier"})
 	}
-	_, hasNF := st.Values["nf"]
-	_, hasTe := st.Values["te"]
+	var declared uint16 // the keys the stage gives, known or not
+	for _, sl := range st.slots {
+		declared |= 1 << sl.idx
+	}
+	hasNF, hasTe := declared&(1<<stageKeyIndex("nf")) != 0, declared&(1<<stageKeyIndex("te")) != 0
 	if g, ok := get("gain"); ok && g.V < 0 && !hasNF && !hasTe {
 		out = append(out, stageProblem{"gain", fmt.Sprintf("stage %q: gain %s with no nf or te: a stage that loses power adds noise", st.Label, g), fmt.Sprintf("give nf or te, or write it as loss = \"%s dB\" for a passive part", units.FormatNum(-g.V))})
 	}

@@ -146,9 +146,10 @@ func intercept(sv *engine.StageValue, inKey, outKey string, gain, compression fl
 	return dbm, true, nil
 }
 
-// Cascade computes a chain's cascade with per-stage cumulative values and shares. With the
-// chain's memo, it is worked out once per evaluation of the chain, in reused storage; the
-// returned cascade is then valid until the chain is evaluated again.
+// Cascade computes a chain's cascade: its totals, and without the chain's memo also the
+// per-stage cumulative values and shares. With the memo, the totals are worked out once per
+// evaluation of the chain, in reused storage; the returned cascade is then valid until the
+// chain is evaluated again.
 func Cascade(cv *engine.ChainValue) (rfmath.Cascade, []string, error) {
 	if cv.Memo == nil {
 		st, notes, err := Stages(cv)
@@ -165,7 +166,7 @@ func Cascade(cv *engine.ChainValue) (rfmath.Cascade, []string, error) {
 	if !cv.Memo.Valid {
 		m.stages, m.notes, m.err = stagesInto(m.stages[:0], m.notes[:0], cv)
 		if m.err == nil {
-			m.cas.Compute(m.stages)
+			m.cas.ComputeTotals(m.stages) // the chain functions read only the totals
 		}
 		cv.Memo.Valid = true
 	}

@@ -74,6 +74,8 @@ type Cascade struct {
 
 	IIP2, OIP2 float64 // input / output second-order intercept, dBm
 	HasIIP2    bool
+
+	lin []linear // ComputeTotals' conversions, kept for its next call
 }
 
 // CascadeChain evaluates a chain of stages in order from input to output.
@@ -111,15 +113,60 @@ func CascadeChain(stages []Stage) Cascade {
 
 // Compute works out the cascade of stages into res, as CascadeChain does, reusing the
 // storage of res.Stages (no allocation when it is large enough).
-func (res *Cascade) Compute(stages []Stage) {
-	st := res.Stages
-	if cap(st) < len(stages) {
-		st = make([]StageResult, len(stages))
-	} else {
-		st = st[:len(stages)]
-		clear(st)
+func (res *Cascade) Compute(stages []Stage) { res.compute(stages, true) }
+
+// ComputeTotals works out only the totals of the cascade (GainDB, NFDB, TeK and the
+// intercepts and compression points), as Compute gives them to the last bit, and leaves
+// Stages empty. What it converts from decibels it keeps, and converts again only the values
+// that differ from the last call's: on Monte Carlo trials most stages of a chain are the same.
+func (res *Cascade) ComputeTotals(stages []Stage) { res.compute(stages, false) }
+
+// linear holds a stage's values converted from decibels for the next ComputeTotals: for each
+// of noise figure, gain, IIP3, IP1dB and IIP2, the dB value and its FromDB.
+type linear struct {
+	db, lin [5]float64
+	ok      [5]bool
+}
+
+// The values linear holds.
+const (
+	linNF = iota
+	linGain
+	linIP3
+	linP1
+	linIP2
+)
+
+// fromDB returns FromDB(db) for value k, converting only when db differs from the last one.
+func (l *linear) fromDB(k int, db float64) float64 {
+	if !l.ok[k] || l.db[k] != db {
+		l.db[k], l.lin[k], l.ok[k] = db, FromDB(db), true
 	}
-	*res = Cascade{Stages: st}
+	return l.lin[k]
+}
+
+func (res *Cascade) compute(stages []Stage, perStage bool) {
+	var st []StageResult
+	if perStage {
+		st = res.Stages
+		if cap(st) < len(stages) {
+			st = make([]StageResult, len(stages))
+		} else {
+			st = st[:len(stages)]
+			clear(st)
+		}
+	}
+	lin := res.lin
+	if !perStage && len(lin) != len(stages) {
+		lin = make([]linear, len(stages))
+	}
+	*res = Cascade{Stages: st, lin: lin}
+	conv := func(i, k int, db float64) float64 {
+		if perStage {
+			return FromDB(db)
+		}
+		return lin[i].fromDB(k, db)
+	}
 	gPrev := 1.0 // linear gain ahead of the current stage
 	// Each stage's (Fi − 1)/G_before and G_before/IIP3_i are kept in its NoiseShare and
 	// IIP3Share until the sums they are shares of are known.
@@ -133,25 +180,32 @@ func (res *Cascade) Compute(stages []Stage) {
 		haveP1  bool
 		haveIP2 bool
 	)
+	var spare StageResult // the per-stage results of ComputeTotals, not kept
 	for i, s := range stages {
-		r := &res.Stages[i]
-		r.NoiseShare = (FromDB(s.NFDB) - 1) / gPrev
+		r := &spare
+		if perStage {
+			r = &res.Stages[i]
+		}
+		r.NoiseShare = (conv(i, linNF, s.NFDB) - 1) / gPrev
 		sumN += r.NoiseShare
 		if s.HasIIP3 {
-			r.IIP3Share = gPrev / FromDB(s.IIP3)
+			r.IIP3Share = gPrev / conv(i, linIP3, s.IIP3)
 			sumIP3 += r.IIP3Share
 			haveIP3 = true
 		}
 		if s.HasIP1dB {
-			sumP1 += gPrev / FromDB(s.IP1dB)
+			sumP1 += gPrev / conv(i, linP1, s.IP1dB)
 			haveP1 = true
 		}
 		if s.HasIIP2 {
-			sumIP2 += math.Sqrt(gPrev / FromDB(s.IIP2))
+			sumIP2 += math.Sqrt(gPrev / conv(i, linIP2, s.IIP2))
 			haveIP2 = true
 		}
 		gainDB += s.GainDB
-		gPrev *= FromDB(s.GainDB)
+		gPrev *= conv(i, linGain, s.GainDB)
+		if !perStage {
+			continue
+		}
 
 		r.CumGainDB = gainDB
 		r.CumNFDB = 10 * math.Log10(1+sumN)

@@ -3,6 +3,7 @@ package rfmath
 import (
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"testing"
 )
 
@@ -154,4 +155,46 @@ func TestCascadeOutputReferred(t *testing.T) {
 		ref{"cum IP1dB passes the P1dB-less mixer", c.Stages[2].CumIP1dB, c.Stages[1].CumIP1dB, 1e-12, false}, // a stage without P1dB is taken as never compressing (model assumption, stated on the page)
 	)
 	checkRefs(t, refs)
+}
+
+// TestComputeTotalsIsCompute: the totals of ComputeTotals, called again and again on one
+// cascade with some stages changed each time (as on Monte Carlo trials, where it keeps its
+// conversions from decibels), are Compute's to the last bit. Compute itself is checked
+// against Friis's formula and the intercept cascade by the tests above; this holds the
+// faster path to it.
+func TestComputeTotalsIsCompute(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 4))
+	stages := make([]Stage, 12)
+	for i := range stages {
+		stages[i] = Stage{GainDB: 20*rng.Float64() - 5, NFDB: 8 * rng.Float64(), IIP3: 20*rng.Float64() - 10, HasIIP3: i%3 != 0,
+			IP1dB: 10*rng.Float64() - 20, HasIP1dB: i%4 == 1, IIP2: 40 * rng.Float64(), HasIIP2: i%5 == 2}
+	}
+	var fast Cascade
+	for trial := range 200 {
+		for range 1 + rng.IntN(3) { // a few stages change, the rest stay as they were
+			s := &stages[rng.IntN(len(stages))]
+			s.GainDB += rng.NormFloat64()
+			s.NFDB = max(0, s.NFDB+0.3*rng.NormFloat64())
+			s.IIP3 += rng.NormFloat64()
+		}
+		if trial == 100 {
+			stages = stages[:7] // a shorter chain in the same cascade
+		}
+		fast.ComputeTotals(stages)
+		if got, want := totalsOf(fast), totalsOf(CascadeChain(stages)); got != want {
+			t.Fatalf("trial %d: ComputeTotals gives %+v, Compute %+v", trial, got, want)
+		}
+		if len(fast.Stages) != 0 {
+			t.Fatalf("trial %d: ComputeTotals filled %d stage results", trial, len(fast.Stages))
+		}
+	}
+}
+
+type cascadeTotals struct {
+	gain, nf, te, iip3, oip3, ip1, op1, iip2, oip2 float64
+	has3, has1, has2                               bool
+}
+
+func totalsOf(c Cascade) cascadeTotals {
+	return cascadeTotals{c.GainDB, c.NFDB, c.TeK, c.IIP3, c.OIP3, c.IP1dB, c.OP1dB, c.IIP2, c.OIP2, c.HasIIP3, c.HasIP1dB, c.HasIIP2}
 }
