@@ -13,6 +13,7 @@ import (
 	"runtime"
 	"sort"
 	"sync"
+	"sync/atomic"
 
 	"github.com/rfledger/rfledger/engine"
 	"github.com/rfledger/rfledger/engine/numeric"
@@ -301,10 +302,11 @@ func (fa *focusAt) sensitivity() []Sensitivity {
 	s := fa.nom.Sheet()
 	fv, _ := fa.nom.Value(fa.focus)
 	f0 := numberIn(fa.fu, fv)
-	var out []Sensitivity
 	ins := s.Inputs(fa.focus)
+	out := make([]Sensitivity, len(ins))
 	lin := fa.linear(ins)
-	for i, q := range ins {
+	one := func(fa *focusAt, i int) {
+		q := ins[i]
 		nv, _ := fa.nom.Value(q)
 		up, per := step(nv)
 		var v float64
@@ -318,11 +320,41 @@ func (fa *focusAt) sensitivity() []Sensitivity {
 		if !ok {
 			change = math.NaN()
 		}
-		out = append(out, Sensitivity{Input: q.Name, Per: per, Change: change})
+		out[i] = Sensitivity{Input: q.Name, Per: per, Change: change}
+	}
+	workers := min(runtime.GOMAXPROCS(0), len(ins)/parallelInputs)
+	if lin != nil || workers < 2 {
+		for i := range ins {
+			one(fa, i)
+		}
+	} else {
+		// Each input's cone is recomputed on its own and set back: on many inputs, the
+		// workers each take inputs in turn with a scenario of their own; every result goes
+		// to its input's place, so the order and the figures do not depend on the workers.
+		var next atomic.Int64
+		var wg sync.WaitGroup
+		for w := range workers {
+			wg.Add(1)
+			go func() {
+				defer wg.Done()
+				f := fa
+				if w > 0 {
+					f = newFocusAt(fa.nom, fa.focus)
+				}
+				for i := int(next.Add(1) - 1); i < len(ins); i = int(next.Add(1) - 1) {
+					one(f, i)
+				}
+			}()
+		}
+		wg.Wait()
 	}
 	sort.Slice(out, func(i, j int) bool { return largerEffect(out[i].Change, out[j].Change, out[i].Input, out[j].Input) })
 	return out
 }
+
+// parallelInputs is the number of inputs per worker from which sensitivity shares its
+// inputs' recomputations out among the cores.
+const parallelInputs = 16
 
 // largerEffect orders effects largest first, those that could not be evaluated (NaN) last,
 // ties by name, so the order never depends on the order the inputs were found in.

@@ -5,6 +5,8 @@ import (
 	"math"
 	"reflect"
 	"runtime"
+	"slices"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/stat/distuv"
@@ -292,4 +294,45 @@ nf = "0.8 dB"
 		}
 	}
 	near(t, "rx.nf", value(t, sh, "rx.nf", "dB"), 1.8, 1e-12) // passive 1 dB (NF = loss at T0) + 0.8 dB, Friis 1944
+}
+
+// TestSensitivityOnManyInputs: with enough inputs that their recomputations are shared out
+// among the cores, every input's effect is still the one ITU-R P.525-4 gives (free-space
+// loss grows by 20·log10(1.1) dB for 10 % more distance, and a sum of 39 such losses by
+// 39 times that for 10 % more frequency), in the same order, on one core and on two.
+func TestSensitivityOnManyInputs(t *testing.T) {
+	var src, sum strings.Builder
+	src.WriteString("focus = \"m\"\nf = \"868 MHz\"\n")
+	for i := 1; i <= 39; i++ {
+		fmt.Fprintf(&src, "d%d = \"%d km\"\n", i, i)
+		if i > 1 {
+			sum.WriteString(" + ")
+		}
+		fmt.Fprintf(&sum, "fspl(d%d, f)", i)
+	}
+	fmt.Fprintf(&src, "m = \"= %s\"\n", sum.String())
+	var runs [][]analysis.Sensitivity
+	for _, procs := range []int{1, 2} {
+		old := runtime.GOMAXPROCS(procs)
+		_, a := analyze(t, src.String(), analysis.Options{Trials: 10})
+		runtime.GOMAXPROCS(old)
+		if len(a.Sensitivity) != 40 {
+			t.Fatalf("GOMAXPROCS %d: %d inputs in the sensitivity, want 40", procs, len(a.Sensitivity))
+		}
+		step := 20 * math.Log10(1.1) // ITU-R P.525-4: L = 20 log10(4π d f / c)
+		for i, s := range a.Sensitivity {
+			want := step
+			if s.Input == "f" {
+				want = 39 * step
+				if i != 0 {
+					t.Errorf("GOMAXPROCS %d: f is at place %d, want first (largest effect)", procs, i)
+				}
+			}
+			near(t, fmt.Sprintf("GOMAXPROCS %d: sensitivity to %s", procs, s.Input), s.Change, want, 1e-9)
+		}
+		runs = append(runs, a.Sensitivity)
+	}
+	if !slices.Equal(runs[0], runs[1]) {
+		t.Errorf("one core and two give different sensitivities:\n%v\n%v", runs[0], runs[1])
+	}
 }
