@@ -137,11 +137,20 @@ func textAction(s string, i int, r rune) int {
 		return blankRune
 	case r < 0x20 || r == 0x7f:
 		return dropRune
-	case strings.ContainsRune(markdownPunct, r), i == 0 && strings.ContainsRune("-+=", r), listNumber(s, i):
+	case r < 0x80 && isPunct[r], i == 0 && strings.ContainsRune("-+=", r), listNumber(s, i):
 		return escapeRune
 	}
 	return keepRune
 }
+
+// isPunct marks the ASCII characters of markdownPunct (text asks about every character of
+// every cell).
+var isPunct = func() (t [0x80]bool) {
+	for _, c := range markdownPunct {
+		t[c] = true
+	}
+	return t
+}()
 
 // markdownPunct is the ASCII punctuation that can start Markdown or HTML syntax inside a
 // line: emphasis, strikethrough, code, links and images, tags and entities, table cell
