@@ -15,14 +15,35 @@ func (p *page) addChart(kind, alt string, draw func(*bytes.Buffer) error) {
 	if p.in.ChartBase == "" {
 		return
 	}
-	var buf bytes.Buffer
-	if err := draw(&buf); err != nil {
-		p.f("_(The %s chart could not be drawn: %s.)_\n\n", text(alt), text(err.Error()))
-		return
+	// The chart is drawn on a goroutine of its own while the page goes on; its link (whose
+	// name holds a hash of the drawing) is set in its place when the page is done.
+	c := &pendingChart{at: p.b.Len(), kind: kind, alt: alt, done: make(chan struct{})}
+	go func() {
+		defer close(c.done)
+		c.err = draw(&c.svg)
+	}()
+	p.charts = append(p.charts, c)
+}
+
+// pendingChart is a chart being drawn and the place of its link on the page.
+type pendingChart struct {
+	at        int // the offset in the page where its link goes
+	kind, alt string
+	done      chan struct{}
+	svg       bytes.Buffer
+	err       error
+}
+
+// link waits for the chart and returns what goes in its place on the page, adding its file
+// to the page's files (in the order the charts were added).
+func (p *page) link(c *pendingChart) []byte {
+	<-c.done
+	if c.err != nil {
+		return fmt.Appendf(nil, "_(The %s chart could not be drawn: %s.)_\n\n", text(c.alt), text(c.err.Error()))
 	}
-	name := chartName(p.in.ChartBase, kind, buf.Bytes())
-	p.files = append(p.files, File{Name: name, Data: buf.Bytes()})
-	p.f("![%s](%s)\n\n", text(alt), name)
+	name := chartName(p.in.ChartBase, c.kind, c.svg.Bytes())
+	p.files = append(p.files, File{Name: name, Data: c.svg.Bytes()})
+	return fmt.Appendf(nil, "![%s](%s)\n\n", text(c.alt), name)
 }
 
 func (p *page) levelChart(ci analysis.Cascade) {

@@ -20,6 +20,7 @@ type page struct {
 	b      bytes.Buffer
 	files  []File
 	chains []analysis.Cascade
+	charts []*pendingChart // the charts being drawn, in the order of the page
 }
 
 func (p *page) f(format string, args ...any) { fmt.Fprintf(&p.b, format, args...) }
@@ -80,9 +81,21 @@ func Markdown(in Input) ([]byte, []File) {
 	p.freqPlans()
 	p.cautions()
 	p.footer()
+	// What was written apart goes in its place: the line items and each chart's link, in
+	// the order of their places (the line items first where a chart comes right after them).
 	rest, li := p.b.Bytes(), <-items
-	out := make([]byte, 0, len(rest)+len(li))
-	out = append(append(append(out, rest[:at]...), li...), rest[at:]...)
+	out := make([]byte, 0, len(rest)+len(li)+len(p.charts)*96)
+	from, itemsDone := 0, false
+	for _, c := range p.charts {
+		if !itemsDone && at <= c.at {
+			out, from, itemsDone = append(append(out, rest[from:at]...), li...), at, true
+		}
+		out, from = append(append(out, rest[from:c.at]...), p.link(c)...), c.at
+	}
+	if !itemsDone {
+		out, from = append(append(out, rest[from:at]...), li...), at
+	}
+	out = append(out, rest[from:]...)
 	return out, p.files
 }
 
