@@ -43,6 +43,18 @@ const (
 	probesPerFld = 24
 )
 
+// Edit is a one-line change of a Budget sheet (of any size and seed), as a user makes it in
+// an editor: From is the text in the sheet, To what replaces its first occurrence.
+type Edit struct{ Name, From, To string }
+
+// Edits are the edits the edit benchmarks and watchtime make: one input's value (the first
+// gateway's second connector loss, which its field's budgets read) and one formula (the first
+// gateway's cable loss per metre), each keeping every name and type.
+var Edits = []Edit{
+	{"input", `conn02 = "0.2 dB"`, `conn02 = "0.3 dB"`},
+	{"formula", `gw_cable = "= 0.22 dB/m * gw_length"`, `gw_cable = "= 0.23 dB/m * gw_length"`},
+}
+
 // Budget returns a farm-network worksheet of exactly n quantities (chain stage values
 // included), drawn from seed.
 func Budget(n int, seed uint64) ([]byte, error) {

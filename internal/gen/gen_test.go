@@ -158,3 +158,20 @@ func TestSizeLimits(t *testing.T) {
 		}
 	}
 }
+
+// TestEditsApply: each of Edits finds its text in sheets of several sizes (the first
+// occurrence is the one changed: the first gateway's), so the benchmarks and watchtime that
+// make them change one line of any sheet they generate.
+func TestEditsApply(t *testing.T) {
+	for _, n := range []int{300, 10_000} {
+		src, err := gen.Budget(n, 1)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, e := range gen.Edits {
+			if !strings.Contains(string(src), e.From) {
+				t.Errorf("Budget(%d): no %q", n, e.From)
+			}
+		}
+	}
+}

@@ -37,10 +37,14 @@ import (
 
 func main() { os.Exit(run(os.Args[1:], os.Stdout, os.Stderr)) }
 
-// edits are the two one-line changes of the generated sheet that -edit chooses between.
-var edits = map[string][2]string{
-	"input":   {`conn02 = "0.2 dB"`, `conn02 = "0.3 dB"`},
-	"formula": {`gw_cable = "= 0.22 dB/m * gw_length"`, `gw_cable = "= 0.23 dB/m * gw_length"`},
+// edit returns the one-line change of the generated sheet named (gen.Edits).
+func edit(name string) (gen.Edit, bool) {
+	for _, e := range gen.Edits {
+		if e.Name == name {
+			return e, true
+		}
+	}
+	return gen.Edit{}, false
 }
 
 func run(args []string, stdout, stderr io.Writer) int {
@@ -49,11 +53,11 @@ func run(args []string, stdout, stderr io.Writer) int {
 	bin := fs.String("bin", "", "the rfledger `binary` to time (required)")
 	n := fs.Int("n", 10000, "quantities in the generated sheet")
 	saves := fs.Int("saves", 20, "saves to time")
-	edit := fs.String("edit", "input", "what each save changes: `input` or formula")
+	which := fs.String("edit", "input", "what each save changes: `input` or formula")
 	if err := fs.Parse(args); err != nil {
 		return 2
 	}
-	e, ok := edits[*edit]
+	e, ok := edit(*which)
 	if *bin == "" || *saves < 1 || !ok {
 		fmt.Fprintln(stderr, "watchtime: want -bin BINARY, -saves ≥ 1 and -edit input|formula")
 		return 2
@@ -65,20 +69,20 @@ func run(args []string, stdout, stderr io.Writer) int {
 	}
 	slices.Sort(times)
 	fmt.Fprintf(stdout, "save → new page, %s edit of %d quantities, %d saves: median %.1f ms, min %.1f ms, max %.1f ms\n",
-		*edit, *n, len(times), ms(times[len(times)/2]), ms(times[0]), ms(times[len(times)-1]))
+		*which, *n, len(times), ms(times[len(times)/2]), ms(times[0]), ms(times[len(times)-1]))
 	return 0
 }
 
 func ms(d time.Duration) float64 { return float64(d.Microseconds()) / 1000 }
 
-func measure(bin string, n, saves int, e [2]string) ([]time.Duration, error) {
+func measure(bin string, n, saves int, e gen.Edit) ([]time.Duration, error) {
 	src, err := gen.Budget(n, 1)
 	if err != nil {
 		return nil, err
 	}
-	versions := [2]string{string(src), strings.Replace(string(src), e[0], e[1], 1)}
+	versions := [2]string{string(src), strings.Replace(string(src), e.From, e.To, 1)}
 	if versions[1] == versions[0] {
-		return nil, fmt.Errorf("the generated sheet has no %q", e[0])
+		return nil, fmt.Errorf("the generated sheet has no %q", e.From)
 	}
 	dir, err := os.MkdirTemp("", "watchtime")
 	if err != nil {

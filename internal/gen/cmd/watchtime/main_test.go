@@ -8,6 +8,7 @@ import (
 	"testing"
 	"time"
 
+	"github.com/rfledger/rfledger/internal/gen"
 	"github.com/rfledger/rfledger/internal/watch"
 )
 
@@ -26,17 +27,17 @@ func TestMeasure(t *testing.T) {
 	if out, err := exec.Command(goBin, "build", "-o", bin, "github.com/rfledger/rfledger/cmd/rfledger").CombinedOutput(); err != nil {
 		t.Fatalf("go build: %v\n%s", err, out)
 	}
-	for _, e := range []string{"input", "formula"} {
-		times, err := measure(bin, 300, 2, edits[e])
+	for _, e := range gen.Edits {
+		times, err := measure(bin, 300, 2, e)
 		if err != nil {
-			t.Fatalf("%s: %v", e, err)
+			t.Fatalf("%s: %v", e.Name, err)
 		}
 		if len(times) != 2 {
-			t.Fatalf("%s: %d times, want 2", e, len(times))
+			t.Fatalf("%s: %d times, want 2", e.Name, len(times))
 		}
 		for _, d := range times {
 			if d < watch.DefaultDebounce || d > time.Minute {
-				t.Errorf("%s: a save took %v to show, want between the debounce (%v) and a minute", e, d, watch.DefaultDebounce)
+				t.Errorf("%s: a save took %v to show, want between the debounce (%v) and a minute", e.Name, d, watch.DefaultDebounce)
 			}
 		}
 	}
