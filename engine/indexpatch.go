@@ -1,6 +1,9 @@
 package engine
 
-import "strings"
+import (
+	"slices"
+	"strings"
+)
 
 // patchIndex returns the position index of src made from old's, for an edit that patchDoc
 // took (edits: the changed lines, in order). The keys of each edited line are scanned
@@ -62,7 +65,7 @@ func patchIndex(old *sheetFile, src string, edits []lineEdit) (ix *posIndex) {
 			touchedStrs[int(str-1)/chunkLen] = true
 		}
 	}
-	nx := &posIndex{pos: ox.pos, order: ox.order, first: make(map[string]Pos, len(ox.first))}
+	nx := &posIndex{pos: ox.pos, order: ox.order}
 	for c, chunk := range ox.strs.chunks {
 		if c < len(ox.strs.chunks)-1 && !touchedStrs[c] && stringsBefore(chunk, moved) {
 			nx.strs.chunks = append(nx.strs.chunks, chunk[:len(chunk):len(chunk)])
@@ -117,6 +120,13 @@ func patchIndex(old *sheetFile, src string, edits []lineEdit) (ix *posIndex) {
 			nx.kps.add(kp)
 		}
 	}
+	// The first places of tables are the earlier index's when nothing moved and no edited
+	// line holds one (edits of values alone, of the same length).
+	if moved > len(old.src) && !slices.ContainsFunc(edits, func(e lineEdit) bool { return firstOnLine(ox, e.line) }) {
+		nx.first = ox.first
+		return nx
+	}
+	nx.first = make(map[string]Pos, len(ox.first))
 	for k, p := range ox.first {
 		if edited[p.Line] {
 			np, ok := freshFirst[k]
@@ -130,6 +140,16 @@ func patchIndex(old *sheetFile, src string, edits []lineEdit) (ix *posIndex) {
 		nx.first[k] = p
 	}
 	return nx
+}
+
+// firstOnLine reports whether a table's first place is on the given line.
+func firstOnLine(ix *posIndex, line int) bool {
+	for _, p := range ix.first {
+		if p.Line == line {
+			return true
+		}
+	}
+	return false
 }
 
 // stringsBefore reports whether every position of the string values lies before byte b.
