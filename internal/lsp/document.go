@@ -3,6 +3,7 @@ package lsp
 import (
 	"fmt"
 	"path/filepath"
+	"slices"
 	"sort"
 	"time"
 
@@ -91,8 +92,9 @@ type evaluation struct {
 	diags  engine.Diagnostics
 	loaded bool // the load gave quantities of the document's own file, or no error at all
 
-	byLine map[int][]*engine.Quantity // the file's quantities by 1-based line (built on first use)
-	lines  []int                      // byLine's keys in order
+	indexed bool
+	lines   []int                // the 1-based lines of the file that hold quantities, in order (built on first use)
+	lineQs  [][]*engine.Quantity // the quantities of each of lines, in file order
 
 	analysis *analysis.Analysis // the analyses (sensitivity), on first use
 	analyzed bool
@@ -148,25 +150,36 @@ func (s *server) evaluate(d *document) {
 
 // index builds the line index of the file's quantities.
 func (ev *evaluation) index(file string) {
-	if ev.byLine != nil || ev.sheet == nil {
+	if ev.indexed || ev.sheet == nil {
 		return
 	}
-	ev.byLine = map[int][]*engine.Quantity{}
+	ev.indexed = true
+	// Sorted slices rather than a map: a big sheet is indexed again after every keystroke.
+	var qs []*engine.Quantity
 	for _, q := range ev.sheet.Quantities() {
 		if q.Range.File == file && q.Range.Start.Line > 0 {
-			if len(ev.byLine[q.Range.Start.Line]) == 0 {
-				ev.lines = append(ev.lines, q.Range.Start.Line)
-			}
-			ev.byLine[q.Range.Start.Line] = append(ev.byLine[q.Range.Start.Line], q)
+			qs = append(qs, q)
 		}
 	}
-	sort.Ints(ev.lines)
+	sort.SliceStable(qs, func(i, j int) bool { return qs[i].Range.Start.Line < qs[j].Range.Start.Line })
+	for i, q := range qs {
+		if line := q.Range.Start.Line; i == 0 || line != qs[i-1].Range.Start.Line {
+			ev.lines = append(ev.lines, line)
+			ev.lineQs = append(ev.lineQs, qs[i:i+1:i+1])
+		} else {
+			last := &ev.lineQs[len(ev.lineQs)-1]
+			*last = qs[i-len(*last) : i+1 : i+1]
+		}
+	}
 }
 
 // quantitiesAt returns the quantities whose key is on a 1-based line.
 func (ev *evaluation) quantitiesAt(file string, line int) []*engine.Quantity {
 	ev.index(file)
-	return ev.byLine[line]
+	if i, found := slices.BinarySearch(ev.lines, line); found {
+		return ev.lineQs[i]
+	}
+	return nil
 }
 
 // analyze runs the analyses once per evaluation, with one Monte Carlo trial: the language

@@ -56,12 +56,12 @@ func (d *document) hints(from, to int) []inlayHint {
 	}
 	var hs []lineHint
 	ev.index(d.name)
-	for _, line := range ev.lines {
+	for i, line := range ev.lines {
 		l, ok := place(line - 1)
 		if !ok {
 			continue
 		}
-		qs := ev.byLine[line]
+		qs := ev.lineQs[i]
 		if len(qs) == 1 {
 			hs = append(hs, lineHint{l, "= " + d.valueLabel(ev, qs[0], stale), qs[0].Name})
 			continue
