@@ -138,27 +138,31 @@ func (s *Sheet) copyFor(files []*sheetFile, k *keptFrom) *Sheet {
 	for i, f := range s.files {
 		fileOf[f] = files[i]
 	}
+	// The nodes and quantities are copied into two arrays, on every core: each node's
+	// quantity has its place in the array worked out first.
+	qAt := make([]int32, len(s.nodes))
 	nq := 0
-	for _, n := range s.nodes {
+	for id, n := range s.nodes {
 		if n.q != nil {
+			qAt[id] = int32(nq)
 			nq++
 		}
 	}
 	nodes := make([]node, len(s.nodes))
-	qs := make([]Quantity, 0, nq)
+	qs := make([]Quantity, nq)
 	c.nodes = make([]*node, len(s.nodes))
-	for id, o := range s.nodes {
-		n := &nodes[id]
+	parallel(len(s.nodes), func(id int) {
+		o, n := s.nodes[id], &nodes[id]
 		*n = *o
 		n.at.f = fileOf[n.at.f]
 		if o.q != nil {
-			qs = append(qs, *o.q)
-			q := &qs[len(qs)-1]
+			q := &qs[qAt[id]]
+			*q = *o.q
 			q.sh, q.Range = c, k.move(q.Range)
 			n.q = q
 		}
 		c.nodes[id] = n
-	}
+	})
 	q := func(o *Quantity) *Quantity {
 		if o == nil {
 			return nil
