@@ -42,13 +42,23 @@ func formatDiags(ds engine.Diagnostics, fsys fs.FS) string {
 	return b.String()
 }
 
-// readSource reads a worksheet or part for an excerpt; nil when it cannot be read.
+// readSource reads a worksheet or part for an excerpt; nil when it cannot be read or is not
+// a regular file (a named pipe the worksheet was read from would block when opened again).
 func readSource(fsys fs.FS, name string) []byte {
 	if name == "" || name == "--set" {
 		return nil
 	}
-	var data []byte
+	var fi fs.FileInfo
 	var err error
+	if fsys == nil {
+		fi, err = os.Stat(name)
+	} else {
+		fi, err = fs.Stat(fsys, filepath.ToSlash(name))
+	}
+	if err != nil || !fi.Mode().IsRegular() {
+		return nil
+	}
+	var data []byte
 	if fsys == nil {
 		data, err = os.ReadFile(name)
 	} else {

@@ -7,6 +7,7 @@ import (
 	"strconv"
 	"strings"
 	"syscall"
+	"time"
 	"testing"
 )
 
@@ -192,5 +193,42 @@ func TestChartsFollowThePage(t *testing.T) {
 			t.Error("a changed sweep kept the same chart name")
 		}
 		before = names
+	}
+}
+
+// A worksheet that is a named pipe is read once: the error's excerpt is not read by opening
+// the pipe again, which blocked until another writer came (render and check hung).
+func TestPipedSheetWithAnError(t *testing.T) {
+	fifo := filepath.Join(t.TempDir(), "pipe.toml")
+	if err := syscall.Mkfifo(fifo, 0o644); err != nil {
+		t.Skipf("no named pipes here: %v", err)
+	}
+	for _, cmd := range []string{"render", "check"} {
+		go func() {
+			if f, err := os.OpenFile(fifo, os.O_WRONLY, 0); err == nil {
+				f.WriteString("x = \"= y\"\n")
+				f.Close()
+			}
+		}()
+		done := make(chan struct{})
+		var code int
+		var stderr string
+		go func() {
+			code, _, stderr = run(t, cmd, fifo)
+			close(done)
+		}()
+		select {
+		case <-done:
+		case <-time.After(20 * time.Second):
+			// unblock the command so that the test can end
+			if f, err := os.OpenFile(fifo, os.O_WRONLY, 0); err == nil {
+				f.Close()
+			}
+			<-done
+			t.Fatalf("%s of a named pipe hung after reading it", cmd)
+		}
+		if code != ExitBadSheet || !strings.Contains(stderr, fifo+":1:8: x: unknown name \"y\"") {
+			t.Errorf("%s: exit %d, stderr %q", cmd, code, stderr)
+		}
 	}
 }
