@@ -7,8 +7,8 @@ import (
 	"strconv"
 	"strings"
 	"syscall"
-	"time"
 	"testing"
+	"time"
 )
 
 // A sheet with a chart (a sweep) and a part, for the output tests.
@@ -230,5 +230,24 @@ func TestPipedSheetWithAnError(t *testing.T) {
 		if code != ExitBadSheet || !strings.Contains(stderr, fifo+":1:8: x: unknown name \"y\"") {
 			t.Errorf("%s: exit %d, stderr %q", cmd, code, stderr)
 		}
+	}
+}
+
+// A part whose file is named like one of the page's old charts (page.budget.svg) is an
+// input, not a chart to clean up: render and watch keep it (render removed it).
+func TestPartNamedLikeAChartKept(t *testing.T) {
+	dir := t.TempDir()
+	sheet, part := filepath.Join(dir, "s.toml"), filepath.Join(dir, "page.budget.svg")
+	writeT(t, sheet, "use = { a = \"page.budget.svg\" }\nx = \"= a.g\"\n")
+	writeT(t, part, "g = \"1 dB\"\n")
+	out := filepath.Join(dir, "page.md")
+	if code, _, stderr := run(t, "render", sheet, "-o", out); code != ExitOK {
+		t.Fatalf("render: exit %d\n%s", code, stderr)
+	}
+	if got := readT(t, part); got != "g = \"1 dB\"\n" {
+		t.Errorf("the part is now %q", got)
+	}
+	if !strings.Contains(readT(t, out), "a.g") {
+		t.Error("the page does not show the part's quantity")
 	}
 }

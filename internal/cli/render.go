@@ -110,7 +110,7 @@ func writeOutputs(out string, page []byte, files []report.File, inputs []string)
 	if err := watch.WriteAtomic(out, page); err != nil {
 		return err
 	}
-	return removeOldCharts(out, files)
+	return removeOldCharts(out, files, inputs)
 }
 
 func cmdRender(e *Env, args []string) int {

@@ -178,9 +178,12 @@ func (lw *liveSheet) extra(string) []string {
 // written removes the charts the page on disk no longer links.
 func (lw *liveSheet) written() {
 	lw.mu.Lock()
-	charts := lw.charts
+	charts, inputs := lw.charts, []string{lw.sheet}
+	if lw.last != nil && lw.last.sheet != nil {
+		inputs = inputFiles(lw.sheet, lw.last.sheet.Parts)
+	}
 	lw.mu.Unlock()
-	if err := removeOldCharts(lw.out, charts); err != nil {
+	if err := removeOldCharts(lw.out, charts, inputs); err != nil {
 		fmt.Fprintf(lw.e.Stderr, "rfledger watch: %v\n", err)
 	}
 }
