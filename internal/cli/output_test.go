@@ -251,3 +251,24 @@ func TestPartNamedLikeAChartKept(t *testing.T) {
 		t.Error("the page does not show the part's quantity")
 	}
 }
+
+// The JSON result beside the page (page.json next to page.md) writes no charts and removes
+// none: every chart the page links is still there (the JSON render removed them all).
+func TestJSONBesideThePageKeepsItsCharts(t *testing.T) {
+	dir, sheet, _ := outFixture(t)
+	page := filepath.Join(dir, "page.md")
+	for _, args := range [][]string{{"render", sheet, "-o", page}, {"render", sheet, "--json", "-o", filepath.Join(dir, "page.json")}} {
+		if code, _, stderr := run(t, args...); code != ExitOK {
+			t.Fatalf("%v: exit %d\n%s", args, code, stderr)
+		}
+	}
+	links := regexp.MustCompile(`\]\((page\.[^)]+\.svg)\)`).FindAllStringSubmatch(readT(t, page), -1)
+	if len(links) == 0 {
+		t.Fatal("the page links no chart")
+	}
+	for _, l := range links {
+		if _, err := os.Stat(filepath.Join(dir, l[1])); err != nil {
+			t.Errorf("chart %s: %v", l[1], err)
+		}
+	}
+}
