@@ -194,7 +194,7 @@ func (l *loader) checkCases() {
 		}
 		if f := cs.c.Focus; f != "" {
 			if _, found := l.sh.Quantity(f); !found {
-				l.errAt(cs.focus, "case", l.sh.suggest(f, scope{}), "focus names no quantity: %q", f)
+				l.errAt(cs.focus, "case", l.suggest(f, scope{}), "focus names no quantity: %q", f)
 				ok = false
 			}
 		}

@@ -71,10 +71,10 @@ func parseFormula(lib *Library, text string) *parsed {
 		lib = emptyLibrary
 	}
 	if n := utf8.RuneCountInString(text); n > maxFormulaLen {
-		return &parsed{errs: []ferr{{0, 1, fmt.Sprintf("formula is %d characters long; the limit is %d", n, maxFormulaLen), "split it into named intermediate quantities", false}}}
+		return &parsed{errs: []ferr{{0, 1, fmt.Sprintf("formula is %d characters long; the limit is %d", n, maxFormulaLen), "split it into named intermediate quantities", false, ""}}}
 	}
 	if strings.TrimSpace(text) == "" {
-		return &parsed{errs: []ferr{{0, 1, "empty formula", "write an expression after \"=\"", false}}}
+		return &parsed{errs: []ferr{{0, 1, "empty formula", "write an expression after \"=\"", false, ""}}}
 	}
 	src, lits, errs := scanLiterals(text)
 	if len(errs) > 0 {
@@ -432,7 +432,9 @@ func (lw *lowerer) name(n ast.Node, name string) *inode {
 	}
 	id, ok := lw.sh.resolve(name, lw.sc)
 	if !ok {
-		return lw.fail(n, lw.sh.suggest(name, lw.sc), "unknown name %q", name)
+		lw.fail(n, "", "unknown name %q", name)
+		lw.errs[len(lw.errs)-1].unknown = name
+		return nil
 	}
 	if !lw.seen[id] {
 		lw.seen[id] = true
