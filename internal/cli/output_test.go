@@ -272,3 +272,19 @@ func TestJSONBesideThePageKeepsItsCharts(t *testing.T) {
 		}
 	}
 }
+
+// A --serve address with no port or a port that is no port is a usage error (exit 2) before
+// anything is rendered; it was exit 3, as if the worksheet could not be evaluated.
+func TestServeAddressIsAUsageError(t *testing.T) {
+	dir, sheet, _ := outFixture(t)
+	out := filepath.Join(dir, "page.md")
+	for _, addr := range []string{"nonsense", "localhost:", ":99999", "a:b:c"} {
+		code, _, stderr := run(t, "watch", sheet, "-o", out, "--serve", addr)
+		if code != ExitUsage || !strings.Contains(stderr, "--serve") {
+			t.Errorf("--serve %s: exit %d, want 2:\n%s", addr, code, stderr)
+		}
+	}
+	if _, err := os.Stat(out); err == nil {
+		t.Error("a page was written")
+	}
+}

@@ -41,6 +41,11 @@ func watchUntil(ctx context.Context, e *Env, args []string, ready func(addr stri
 	if err != nil {
 		return usageErr(e, "watch", "%v", err)
 	}
+	if *serve != "" {
+		if err := watch.CheckServe(*serve); err != nil {
+			return usageErr(e, "watch", "--serve %v; give a port, e.g. --serve :8080 or --serve localhost:8080", err)
+		}
+	}
 	sheet := pos[0]
 	// The parts are known once the sheet is loaded; a part named as -o is refused here too.
 	lib := rflib.Library()
