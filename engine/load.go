@@ -792,6 +792,13 @@ func (l *loader) parts(f *sheetFile, v any, r Range) {
 			l.errAt(pr, "", "parts are given relative to the worksheet", "part %q: absolute paths are not allowed", file)
 			continue
 		}
+		if strings.Contains(file, "\\") {
+			// On Windows a backslash separates folders (..\x.toml would climb out); here it
+			// would be part of a file name. Either way the sheet means something else on
+			// another machine.
+			l.errAt(pr, "", "write / between folders, on every system", "part %q: a backslash is not a folder separator in a worksheet", file)
+			continue
+		}
 		p := path.Clean(path.Join(path.Dir(f.fsPath), file))
 		if !fs.ValidPath(p) {
 			l.errAt(pr, "", "parts must stay inside the worksheet's folder", "part %q leaves the worksheet's folder", file)
