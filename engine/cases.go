@@ -187,7 +187,7 @@ func (l *loader) checkCases() {
 			continue
 		}
 		for i, o := range cs.c.Set {
-			if _, _, d := l.sh.checkOverride(o, cs.keyAt[i], cs.valAt[i]); d != nil {
+			if _, _, d := l.sh.checkOverride(o, cs.keyAt[i], cs.valAt[i], l.suggest); d != nil {
 				l.diags = append(l.diags, *d)
 				ok = false
 			}

@@ -104,3 +104,36 @@ func TestUnknownNamesInBoundedTime(t *testing.T) {
 		t.Errorf("%d unknown u names have a hint, want at most 19", hinted)
 	}
 }
+
+// The same bound holds for a case's set: 20,000 names that are no quantity, in a sheet of
+// 20,000 quantities, each searched once for a hint, took minutes.
+func TestUnknownCaseSetNamesInBoundedTime(t *testing.T) {
+	const n = 20_000
+	var b strings.Builder
+	b.WriteString("[g]\n")
+	for i := range n {
+		b.WriteString("q" + strconv.Itoa(i) + " = \"1 dB\"\n")
+	}
+	b.WriteString("[[case]]\nname = \"far\"\nset = { ")
+	for i := range n {
+		if i > 0 {
+			b.WriteString(", ")
+		}
+		b.WriteString("\"g.u" + strconv.Itoa(i) + "\" = \"1 dB\"")
+	}
+	b.WriteString(" }\n")
+	start := time.Now()
+	_, diags := loadFS(map[string]string{"s.toml": b.String()}, "s.toml")
+	if d := time.Since(start); d > 20*time.Second {
+		t.Errorf("load took %v", d)
+	}
+	unknown := 0
+	for _, d := range diags {
+		if strings.Contains(d.Summary, "no such quantity") {
+			unknown++
+		}
+	}
+	if unknown != n {
+		t.Errorf("%d errors for names that are no quantity, want %d", unknown, n)
+	}
+}
