@@ -187,14 +187,14 @@ func (l *loader) checkCases() {
 			continue
 		}
 		for i, o := range cs.c.Set {
-			if _, _, d := l.sh.checkOverride(o, cs.keyAt[i], cs.valAt[i]); d != nil {
+			if _, _, d := l.sh.checkOverride(o, cs.keyAt[i], cs.valAt[i], l.suggest); d != nil {
 				l.diags = append(l.diags, *d)
 				ok = false
 			}
 		}
 		if f := cs.c.Focus; f != "" {
 			if _, found := l.sh.Quantity(f); !found {
-				l.errAt(cs.focus, "case", l.sh.suggest(f, scope{}), "focus names no quantity: %q", f)
+				l.errAt(cs.focus, "case", l.suggest(f, scope{}), "focus names no quantity: %q", f)
 				ok = false
 			}
 		}

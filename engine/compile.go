@@ -3,6 +3,7 @@ package engine
 import (
 	"errors"
 	"fmt"
+	"strconv"
 	"strings"
 	"unicode/utf8"
 
@@ -70,10 +71,10 @@ func parseFormula(lib *Library, text string) *parsed {
 		lib = emptyLibrary
 	}
 	if n := utf8.RuneCountInString(text); n > maxFormulaLen {
-		return &parsed{errs: []ferr{{0, 1, fmt.Sprintf("formula is %d characters long; the limit is %d", n, maxFormulaLen), "split it into named intermediate quantities", false}}}
+		return &parsed{errs: []ferr{{0, 1, fmt.Sprintf("formula is %d characters long; the limit is %d", n, maxFormulaLen), "split it into named intermediate quantities", false, ""}}}
 	}
 	if strings.TrimSpace(text) == "" {
-		return &parsed{errs: []ferr{{0, 1, "empty formula", "write an expression after \"=\"", false}}}
+		return &parsed{errs: []ferr{{0, 1, "empty formula", "write an expression after \"=\"", false, ""}}}
 	}
 	src, lits, errs := scanLiterals(text)
 	if len(errs) > 0 {
@@ -81,7 +82,9 @@ func parseFormula(lib *Library, text string) *parsed {
 	}
 	tree, err := parser.ParseWithConfig(src, lib.parserConfig())
 	if err != nil {
-		return &parsed{errs: []ferr{exprErr(err, text)}}
+		e := exprErr(err, text)
+		e.msg = unplace(e.msg, src, text, lits)
+		return &parsed{errs: []ferr{e}}
 	}
 	return &parsed{tree: tree, lits: lits}
 }
@@ -96,6 +99,29 @@ func exprErr(err error, text string) ferr {
 		return ferr{from: fe.From, to: fe.To, msg: fe.Message}
 	}
 	return ferr{from: 0, to: 1, msg: err.Error()}
+}
+
+// unplace writes the unit literals back into a parse error's message where expr quotes
+// their placeholders (unexpected token Identifier("_1__")): the message shows what was
+// typed, never an internal name.
+func unplace(msg, src, text string, lits []lit) string {
+	if !strings.Contains(msg, "\"_") {
+		return msg
+	}
+	rs, ts := []rune(src), []rune(text)
+	for _, l := range lits {
+		end := l.from
+		for end < len(rs) && isIdentRune(rs[end]) {
+			end++
+		}
+		if end > len(ts) {
+			continue
+		}
+		ph, typed := strconv.Quote(string(rs[l.from:end])), strconv.Quote(string(ts[l.from:end]))
+		msg = strings.ReplaceAll(msg, "Identifier("+ph+")", typed)
+		msg = strings.ReplaceAll(msg, ph, typed)
+	}
+	return msg
 }
 
 // endedEarly explains a formula that ends before its expression does: most often an
@@ -266,6 +292,11 @@ func (lw *lowerer) lower(n ast.Node, depth int) *inode {
 		if !ok {
 			return lw.fail(n, "only dotted names like tx.power are allowed", "indexing is not allowed in a formula")
 		}
+		if head := chainHead(n); head != nil {
+			if _, lit := lw.literal(head); lit {
+				return lw.fail(n, "a dotted name starts with a letter: tx.power", "a number with a unit has no parts (.%s)", strings.TrimPrefix(name, head.Value+"."))
+			}
+		}
 		return lw.name(n, name)
 	case *ast.UnaryNode:
 		x := lw.lower(n.Node, depth+1)
@@ -336,6 +367,9 @@ func (lw *lowerer) call(n *ast.CallNode, depth int) *inode {
 	if !ok {
 		return lw.fail(n, "", "only built-in functions can be called")
 	}
+	if _, lit := lw.literal(id); lit {
+		return lw.fail(n, "write an operator between a number and a parenthesis: 3 dB * (a + b)", "a number with a unit cannot be called like a function")
+	}
 	f, ok := lw.lib.Lookup(id.Value)
 	if !ok {
 		hint := "see `rfledger funcs` for the list"
@@ -384,11 +418,12 @@ func (lw *lowerer) call(n *ast.CallNode, depth int) *inode {
 
 // name resolves a (possibly dotted) name to a literal, a constant, a quantity or a chain.
 func (lw *lowerer) name(n ast.Node, name string) *inode {
-	loc := n.Location()
-	if i, ok := placeholderIndex(name); ok && i < len(lw.lits) && lw.lits[i].from == loc.From {
-		x := at(opConst, n)
-		x.q = lw.lits[i].q
-		return x
+	if id, ok := n.(*ast.IdentifierNode); ok {
+		if i, ok := lw.literal(id); ok {
+			x := at(opConst, n)
+			x.q = lw.lits[i].q
+			return x
+		}
 	}
 	if q, ok := predeclared[name]; ok {
 		x := at(opConst, n)
@@ -397,7 +432,9 @@ func (lw *lowerer) name(n ast.Node, name string) *inode {
 	}
 	id, ok := lw.sh.resolve(name, lw.sc)
 	if !ok {
-		return lw.fail(n, lw.sh.suggest(name, lw.sc), "unknown name %q", name)
+		lw.fail(n, "", "unknown name %q", name)
+		lw.errs[len(lw.errs)-1].unknown = name
+		return nil
 	}
 	if !lw.seen[id] {
 		lw.seen[id] = true
@@ -410,6 +447,30 @@ func (lw *lowerer) name(n ast.Node, name string) *inode {
 	x := at(o, n)
 	x.id, x.text = id, name
 	return x
+}
+
+// literal returns the unit literal that id is the placeholder of, and false for any other
+// name (one typed as "_0__" is just an unknown name).
+func (lw *lowerer) literal(id *ast.IdentifierNode) (int, bool) {
+	if id == nil {
+		return 0, false
+	}
+	i, ok := placeholderIndex(id.Value)
+	return i, ok && i < len(lw.lits) && lw.lits[i].from == id.Location().From
+}
+
+// chainHead returns the name a member chain starts with (tx in tx.power.x), or nil.
+func chainHead(n ast.Node) *ast.IdentifierNode {
+	for {
+		switch m := n.(type) {
+		case *ast.MemberNode:
+			n = m.Node
+		case *ast.IdentifierNode:
+			return m
+		default:
+			return nil
+		}
+	}
 }
 
 // dotted returns "a.b.c" for a member chain of plain names.

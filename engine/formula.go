@@ -23,6 +23,7 @@ type ferr struct {
 	from, to  int
 	msg, hint string
 	isWarning bool
+	unknown   string // an unknown name, whose "did you mean" hint the loader adds (loader.suggest)
 }
 
 func (e ferr) Error() string { return e.msg }

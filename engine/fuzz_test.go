@@ -18,7 +18,8 @@ import (
 )
 
 // checkRanges fails when an error diagnostic has no file, or when a diagnostic's position
-// in one of the files given is not on a line of that file, or past the end of its line.
+// in one of the files given is not on a line of that file, or past the end of its line, or
+// its line, column and byte offset name different places (checkPositions).
 func checkRanges(t *testing.T, diags engine.Diagnostics, files ...map[string]string) {
 	t.Helper()
 	texts := map[string]string{}
@@ -33,6 +34,7 @@ func checkRanges(t *testing.T, diags engine.Diagnostics, files ...map[string]str
 		if !ok || d.Range.Start.Line == 0 {
 			continue
 		}
+		checkPositions(t, src, engine.Diagnostics{d})
 		lines := strings.Split(src, "\n")
 		for _, p := range []engine.Pos{d.Range.Start, d.Range.End} {
 			if p.Line == 0 && p == d.Range.End {

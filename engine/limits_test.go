@@ -68,3 +68,72 @@ func TestFlatSumOfAThousandTerms(t *testing.T) {
 	sh := evalSrc(t, "x = \"= "+strings.Join(terms, " + ")+"\"\n")
 	near(t, "x", value(t, sh, "x", "dB"), 500, 1e-9) // 1000 × 0.5 dB
 }
+
+// Unknown names cost one "did you mean" search each, and a search reads every name of the
+// sheet: 20,000 formulas naming 20,000 unknown names took minutes (5,000 took 34 s). The
+// searches stop after 20 distinct names, in the order of the sheet; a name misspelt in many
+// formulas (a rename) is searched once and gets its hint at every use. The deadline is only
+// against a hang.
+func TestUnknownNamesInBoundedTime(t *testing.T) {
+	const n = 20_000
+	var b strings.Builder
+	b.WriteString("[g]\nbase = \"1 dB\"\n")
+	for i := range n {
+		b.WriteString("q" + strconv.Itoa(i) + " = \"= u" + strconv.Itoa(i) + " + bse\"\n")
+	}
+	start := time.Now()
+	_, diags := loadFS(map[string]string{"s.toml": b.String()}, "s.toml")
+	if d := time.Since(start); d > 20*time.Second {
+		t.Errorf("load took %v", d)
+	}
+	hinted, bse := 0, 0
+	for _, d := range diags {
+		if strings.Contains(d.Summary, `unknown name "bse"`) && d.Hint == `did you mean "base"?` {
+			bse++
+		}
+		if strings.Contains(d.Summary, `unknown name "u`) && d.Hint != "" {
+			hinted++
+		}
+	}
+	if bse != n {
+		t.Errorf("%d of the %d uses of bse have the hint base", bse, n)
+	}
+	// bse is the 2nd distinct name searched; 19 of the u names are searched (u0, u1, … for
+	// q0, q1, … in the sheet's order), and each finds another q or u to offer.
+	if hinted > 19 {
+		t.Errorf("%d unknown u names have a hint, want at most 19", hinted)
+	}
+}
+
+// The same bound holds for a case's set: 20,000 names that are no quantity, in a sheet of
+// 20,000 quantities, each searched once for a hint, took minutes.
+func TestUnknownCaseSetNamesInBoundedTime(t *testing.T) {
+	const n = 20_000
+	var b strings.Builder
+	b.WriteString("[g]\n")
+	for i := range n {
+		b.WriteString("q" + strconv.Itoa(i) + " = \"1 dB\"\n")
+	}
+	b.WriteString("[[case]]\nname = \"far\"\nset = { ")
+	for i := range n {
+		if i > 0 {
+			b.WriteString(", ")
+		}
+		b.WriteString("\"g.u" + strconv.Itoa(i) + "\" = \"1 dB\"")
+	}
+	b.WriteString(" }\n")
+	start := time.Now()
+	_, diags := loadFS(map[string]string{"s.toml": b.String()}, "s.toml")
+	if d := time.Since(start); d > 20*time.Second {
+		t.Errorf("load took %v", d)
+	}
+	unknown := 0
+	for _, d := range diags {
+		if strings.Contains(d.Summary, "no such quantity") {
+			unknown++
+		}
+	}
+	if unknown != n {
+		t.Errorf("%d errors for names that are no quantity, want %d", unknown, n)
+	}
+}

@@ -78,6 +78,11 @@ func (l *loader) compile(prev *Sheet) {
 			continue
 		}
 		o := out[i]
+		for k := range o.errs {
+			if o.errs[k].unknown != "" {
+				o.errs[k].hint = l.suggest(o.errs[k].unknown, st.sc)
+			}
+		}
 		if _, ok := reuse[texts[i]]; !ok && first[texts[i]] == i {
 			sh.nparsed++
 		}

@@ -44,11 +44,38 @@ type loader struct {
 	nq    int
 	lim   limits
 
+	// suggested holds the "did you mean" hint of each unknown name by scope; at most
+	// maxSuggestions are searched for (each reads every name of the sheet).
+	suggested map[string]string
+
 	formulaSites []site
 	reqSites     []site
 	caseSites    []*caseSite
 	focusAt      Range
 	shows        []shownAt // where each `show` is written, checked against the type once known
+}
+
+// maxSuggestions bounds how many distinct unknown names one load looks for a "did you mean"
+// for: each search reads and sorts every name of the sheet, so a sheet of 50,000 formulas
+// naming 50,000 unknown names took hours. Later unknown names are errors without the hint.
+const maxSuggestions = 20
+
+// suggest is Sheet.suggest for the load's diagnostics, once per name and scope and at most
+// maxSuggestions times, in the order of the sheet (the same hints for every run).
+func (l *loader) suggest(name string, sc scope) string {
+	key := sc.part + "\x00" + sc.group + "\x00" + name
+	if h, ok := l.suggested[key]; ok {
+		return h
+	}
+	if l.suggested == nil {
+		l.suggested = map[string]string{}
+	}
+	if len(l.suggested) >= maxSuggestions {
+		return ""
+	}
+	h := l.sh.suggest(name, sc)
+	l.suggested[key] = h
+	return h
 }
 
 // site is where a formula stands, to compile it once every name is known.
@@ -764,6 +791,13 @@ func (l *loader) parts(f *sheetFile, v any, r Range) {
 		}
 		if path.IsAbs(file) || strings.HasPrefix(file, "\\") || strings.Contains(file, ":") {
 			l.errAt(pr, "", "parts are given relative to the worksheet", "part %q: absolute paths are not allowed", file)
+			continue
+		}
+		if strings.Contains(file, "\\") {
+			// On Windows a backslash separates folders (..\x.toml would climb out); here it
+			// would be part of a file name. Either way the sheet means something else on
+			// another machine.
+			l.errAt(pr, "", "write / between folders, on every system", "part %q: a backslash is not a folder separator in a worksheet", file)
 			continue
 		}
 		p := path.Clean(path.Join(path.Dir(f.fsPath), file))

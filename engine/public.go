@@ -182,7 +182,7 @@ func (l *loader) checkFocus() {
 	}
 	id, ok := l.sh.byName[f]
 	if !ok || l.sh.nodes[id].q == nil {
-		l.errAt(l.focusAt, "focus", l.sh.suggest(f, scope{}), "focus names no quantity: %q", f)
+		l.errAt(l.focusAt, "focus", l.suggest(f, scope{}), "focus names no quantity: %q", f)
 		l.sh.Focus = ""
 	}
 }
@@ -193,7 +193,7 @@ func (l *loader) checkStudies() {
 		id, ok := l.sh.byName[name]
 		switch {
 		case !ok || l.sh.nodes[id].q == nil:
-			l.errAt(r, what, l.sh.suggest(name, scope{}), "no quantity named %q", name)
+			l.errAt(r, what, l.suggest(name, scope{}), "no quantity named %q", name)
 			return false
 		case l.sh.nodes[id].q.Formula != "":
 			l.errAt(r, what, "vary an input; this one is derived", "%s is derived from a formula", name)
@@ -206,7 +206,7 @@ func (l *loader) checkStudies() {
 		ok := inputOK(sw.Vary, sw.Range, "sweep")
 		for _, p := range sw.Plot {
 			if _, found := l.sh.Quantity(p); !found {
-				l.errAt(sw.Range, "sweep", l.sh.suggest(p, scope{}), "plot names no quantity: %q", p)
+				l.errAt(sw.Range, "sweep", l.suggest(p, scope{}), "plot names no quantity: %q", p)
 				ok = false
 			}
 		}
@@ -226,7 +226,7 @@ func (l *loader) checkStudies() {
 	for _, so := range l.sh.Solves {
 		ok := inputOK(so.Vary, so.Range, "solve "+so.Name)
 		if _, found := l.sh.Quantity(so.SoThat); !found {
-			l.errAt(so.Range, "solve "+so.Name, l.sh.suggest(so.SoThat, scope{}), "so_that names no quantity: %q", so.SoThat)
+			l.errAt(so.Range, "solve "+so.Name, l.suggest(so.SoThat, scope{}), "so_that names no quantity: %q", so.SoThat)
 			ok = false
 		}
 		if ok {

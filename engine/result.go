@@ -204,20 +204,21 @@ func setHint(h string) string {
 // the value in its type.
 func (s *Sheet) override(o Override) (int, units.Q, *Diagnostic) {
 	r := Range{File: "--set"}
-	return s.checkOverride(o, r, r)
+	return s.checkOverride(o, r, r, s.suggest)
 }
 
 // checkOverride checks one override (from --set or a case's set) and returns the input's
 // node and the value in its type; a problem with the name is positioned at keyAt, one with
-// the value at valAt.
-func (s *Sheet) checkOverride(o Override, keyAt, valAt Range) (int, units.Q, *Diagnostic) {
+// the value at valAt. suggest gives the hint for a name that is no quantity (a load's
+// cases use the loader's, which bounds how many it looks for).
+func (s *Sheet) checkOverride(o Override, keyAt, valAt Range, suggest func(string, scope) string) (int, units.Q, *Diagnostic) {
 	r := keyAt
 	bad := func(hint, format string, args ...any) (int, units.Q, *Diagnostic) {
 		return 0, units.Q{}, &Diagnostic{Severity: Error, Quantity: o.Name, Summary: fmt.Sprintf(format, args...), Hint: hint, Range: r}
 	}
 	id, ok := s.byName[o.Name]
 	if !ok || s.nodes[id].q == nil {
-		hint := s.suggest(o.Name, scope{})
+		hint := suggest(o.Name, scope{})
 		if hint == "" {
 			hint = s.anInput()
 		}

@@ -7,6 +7,7 @@ import (
 	"image/color"
 	"io"
 	"math"
+	"unicode/utf8"
 
 	xfont "golang.org/x/image/font"
 	"gonum.org/v1/plot"
@@ -169,9 +170,39 @@ func render(w io.Writer, p *plot.Plot, width, height vg.Length) (err error) {
 	out := bytes.ReplaceAll(buf.Bytes(),
 		[]byte("font-family:Liberation Sans;"),
 		[]byte("font-family:Liberation Sans,sans-serif;"))
-	out = adaptive(out)
+	out = adaptive(xmlChars(out))
 	_, err = w.Write(out)
 	return err
+}
+
+// xmlChars drops what XML 1.0 does not allow in a document (control characters other than
+// tab and line ends, U+FFFE and U+FFFF, bytes that are not UTF-8): worksheet text reaches
+// titles and labels as written, and one NUL in a spur block's name made the chart a file no
+// viewer opens.
+func xmlChars(svg []byte) []byte {
+	ok := func(r rune, size int) bool {
+		switch {
+		case r == utf8.RuneError && size == 1, r == 0xFFFE, r == 0xFFFF:
+			return false
+		case r < 0x20:
+			return r == '\t' || r == '\n' || r == '\r'
+		}
+		return true
+	}
+	for i := 0; i < len(svg); {
+		r, n := utf8.DecodeRune(svg[i:])
+		if !ok(r, n) {
+			out := append([]byte(nil), svg[:i]...)
+			for ; i < len(svg); i += n {
+				if r, n = utf8.DecodeRune(svg[i:]); ok(r, n) {
+					out = append(out, svg[i:i+n]...)
+				}
+			}
+			return out
+		}
+		i += n
+	}
+	return svg
 }
 
 // schemeStyle makes a chart read on light and dark pages: text, axes and the

@@ -327,3 +327,28 @@ func TestWaterfallBarsOnlyForChanges(t *testing.T) {
 		t.Error("the margin is not drawn as a bracket")
 	}
 }
+
+// Worksheet text reaches titles and labels as written: control characters and U+FFFF,
+// which XML does not allow, are dropped so that the chart stays a well-formed document
+// (a NUL in a spur block's name made the file unreadable: XML 1.0, section 2.2, Char).
+func TestTextOutsideXMLDropped(t *testing.T) {
+	s := sampleLine()
+	s.Title = "a\x00b\x07c\uffffd\x1be\tf"
+	s.Series[0].Name = "free\x0bspace"
+	var buf bytes.Buffer
+	if err := Line(&buf, s); err != nil {
+		t.Fatal(err)
+	}
+	texts := svgTexts(t, buf.Bytes()) // fails on a character XML refuses
+	want := map[string]bool{"abcde\tf": false, "freespace": false}
+	for _, x := range texts {
+		if _, ok := want[x]; ok {
+			want[x] = true
+		}
+	}
+	for x, seen := range want {
+		if !seen {
+			t.Errorf("no text %q in %q", x, texts)
+		}
+	}
+}

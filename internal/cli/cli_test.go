@@ -10,6 +10,8 @@ import (
 	"runtime"
 	"strings"
 	"testing"
+	"testing/fstest"
+	"time"
 
 	"github.com/rfledger/rfledger/engine"
 	"github.com/yuin/goldmark"
@@ -227,7 +229,7 @@ func TestExcerptRanges(t *testing.T) {
 		{"a long line is cut around the start", engine.Range{Start: pos(4, 201, 220), End: pos(4, 204, 223)},
 			"…" + strings.Repeat("z", 120) + "…", strings.Repeat(" ", 31) + "^^^"},
 	} {
-		line, caret, ok := excerpt(src, c.r)
+		line, caret, ok := newSource(src).excerpt(c.r)
 		if !ok || line != c.line || caret != c.caret {
 			t.Errorf("%s: %q / %q (%v), want %q / %q", c.name, line, caret, ok, c.line, c.caret)
 		}
@@ -238,7 +240,7 @@ func TestExcerptRanges(t *testing.T) {
 		{Start: pos(9, 1, 0)},   // no such line
 		{Start: pos(2, 40, 42)}, // past the end of the line
 	} {
-		if line, caret, ok := excerpt(src, r); ok {
+		if line, caret, ok := newSource(src).excerpt(r); ok {
 			t.Errorf("%+v: excerpt %q / %q, want none", r, line, caret)
 		}
 	}
@@ -435,5 +437,43 @@ func TestDiffRev(t *testing.T) {
 	}
 	if code, _, _ := run(t, "diff", sheet, "--rev", "nosuchrev"); code != ExitBadSheet {
 		t.Errorf("unknown revision: exit %d, want %d", code, ExitBadSheet)
+	}
+}
+
+// Many diagnostics in one large file are formatted in time linear in the file: each file is
+// split into lines once, and columns on one long line are counted on from the last. A sheet
+// of 99,500 stages with neither gain nor loss took ten minutes when every excerpt searched
+// the file from its start. Here 100,000 diagnostics, one per line of a 1.3 MB file, and
+// 20,000 on one line of 140 KB: the quadratic search takes minutes, the linear one well
+// under a second; the deadline is only against a hang.
+func TestManyExcerptsInLinearTime(t *testing.T) {
+	const n = 100_000
+	var b strings.Builder
+	var ds engine.Diagnostics
+	for i := range n {
+		at := b.Len()
+		b.WriteString("[[g.c]]\n")
+		ds = append(ds, engine.Diagnostic{Summary: "s", Range: engine.Range{File: "f",
+			Start: engine.Pos{Line: i + 1, Col: 1, Byte: at}, End: engine.Pos{Line: i + 1, Col: 8, Byte: at + 7}}})
+	}
+	line := strings.Repeat("a = 1, ", 20_000)
+	at := b.Len()
+	b.WriteString(line + "\n")
+	for i := range 20_000 {
+		ds = append(ds, engine.Diagnostic{Summary: "s", Range: engine.Range{File: "f",
+			Start: engine.Pos{Line: n + 1, Col: 7*i + 1, Byte: at + 7*i}}})
+	}
+	fsys := fstest.MapFS{"f": {Data: []byte(b.String())}}
+	start := time.Now()
+	out := formatDiags(ds, fsys)
+	if d := time.Since(start); d > 20*time.Second {
+		t.Errorf("formatting %d diagnostics took %v", len(ds), d)
+	}
+	if got := strings.Count(out, "\n    [[g.c]]\n    ^^^^^^^\n"); got != n {
+		t.Errorf("%d excerpts of the stage lines, want %d", got, n)
+	}
+	// the 10,001st on the long line: cut to 120 characters from 30 before it
+	if want := "\n    …" + line[7*10_000-30:7*10_000+90] + "…\n    " + strings.Repeat(" ", 31) + "^\n"; !strings.Contains(out, want) {
+		t.Errorf("no excerpt %q", want)
 	}
 }

@@ -31,6 +31,20 @@ func checkOut(out string, inputs []string) error {
 	return nil
 }
 
+// isInput reports whether the file at p is one of the inputs, by identity.
+func isInput(p string, inputs []string) bool {
+	fi, err := os.Stat(p)
+	if err != nil {
+		return false
+	}
+	for _, in := range inputs {
+		if ii, err := os.Stat(in); err == nil && os.SameFile(fi, ii) {
+			return true
+		}
+	}
+	return false
+}
+
 // inputFiles lists the worksheet and the parts it used, as paths on disk.
 func inputFiles(sheet string, parts []string) []string {
 	files := []string{sheet}
@@ -57,8 +71,9 @@ func writeCharts(out string, files []report.File, inputs []string) error {
 }
 
 // removeOldCharts removes, after the page is written, the charts of earlier renders that
-// the new page does not link, and temp files of killed runs beside it.
-func removeOldCharts(out string, files []report.File) error {
+// the new page does not link, and temp files of killed runs beside it. A file named like a
+// chart that is one of the inputs (a part called page.budget.svg) is kept.
+func removeOldCharts(out string, files []report.File, inputs []string) error {
 	dir := filepath.Dir(out)
 	base := strings.TrimSuffix(filepath.Base(out), filepath.Ext(out))
 	watch.RemoveStale(dir, base+".")
@@ -72,7 +87,7 @@ func removeOldCharts(out string, files []report.File) error {
 	}
 	var errs []error
 	for _, e := range entries {
-		if n := e.Name(); e.Type().IsRegular() && report.OwnChart(base, n) && !keep[n] {
+		if n := e.Name(); e.Type().IsRegular() && report.OwnChart(base, n) && !keep[n] && !isInput(filepath.Join(dir, n), inputs) {
 			if err := os.Remove(filepath.Join(dir, n)); err != nil && !errors.Is(err, os.ErrNotExist) {
 				errs = append(errs, err)
 			}

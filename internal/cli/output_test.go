@@ -8,6 +8,7 @@ import (
 	"strings"
 	"syscall"
 	"testing"
+	"time"
 )
 
 // A sheet with a chart (a sweep) and a part, for the output tests.
@@ -192,5 +193,98 @@ func TestChartsFollowThePage(t *testing.T) {
 			t.Error("a changed sweep kept the same chart name")
 		}
 		before = names
+	}
+}
+
+// A worksheet that is a named pipe is read once: the error's excerpt is not read by opening
+// the pipe again, which blocked until another writer came (render and check hung).
+func TestPipedSheetWithAnError(t *testing.T) {
+	fifo := filepath.Join(t.TempDir(), "pipe.toml")
+	if err := syscall.Mkfifo(fifo, 0o644); err != nil {
+		t.Skipf("no named pipes here: %v", err)
+	}
+	for _, cmd := range []string{"render", "check"} {
+		go func() {
+			if f, err := os.OpenFile(fifo, os.O_WRONLY, 0); err == nil {
+				f.WriteString("x = \"= y\"\n")
+				f.Close()
+			}
+		}()
+		done := make(chan struct{})
+		var code int
+		var stderr string
+		go func() {
+			code, _, stderr = run(t, cmd, fifo)
+			close(done)
+		}()
+		select {
+		case <-done:
+		case <-time.After(20 * time.Second):
+			// unblock the command so that the test can end
+			if f, err := os.OpenFile(fifo, os.O_WRONLY, 0); err == nil {
+				f.Close()
+			}
+			<-done
+			t.Fatalf("%s of a named pipe hung after reading it", cmd)
+		}
+		if code != ExitBadSheet || !strings.Contains(stderr, fifo+":1:8: x: unknown name \"y\"") {
+			t.Errorf("%s: exit %d, stderr %q", cmd, code, stderr)
+		}
+	}
+}
+
+// A part whose file is named like one of the page's old charts (page.budget.svg) is an
+// input, not a chart to clean up: render and watch keep it (render removed it).
+func TestPartNamedLikeAChartKept(t *testing.T) {
+	dir := t.TempDir()
+	sheet, part := filepath.Join(dir, "s.toml"), filepath.Join(dir, "page.budget.svg")
+	writeT(t, sheet, "use = { a = \"page.budget.svg\" }\nx = \"= a.g\"\n")
+	writeT(t, part, "g = \"1 dB\"\n")
+	out := filepath.Join(dir, "page.md")
+	if code, _, stderr := run(t, "render", sheet, "-o", out); code != ExitOK {
+		t.Fatalf("render: exit %d\n%s", code, stderr)
+	}
+	if got := readT(t, part); got != "g = \"1 dB\"\n" {
+		t.Errorf("the part is now %q", got)
+	}
+	if !strings.Contains(readT(t, out), "a.g") {
+		t.Error("the page does not show the part's quantity")
+	}
+}
+
+// The JSON result beside the page (page.json next to page.md) writes no charts and removes
+// none: every chart the page links is still there (the JSON render removed them all).
+func TestJSONBesideThePageKeepsItsCharts(t *testing.T) {
+	dir, sheet, _ := outFixture(t)
+	page := filepath.Join(dir, "page.md")
+	for _, args := range [][]string{{"render", sheet, "-o", page}, {"render", sheet, "--json", "-o", filepath.Join(dir, "page.json")}} {
+		if code, _, stderr := run(t, args...); code != ExitOK {
+			t.Fatalf("%v: exit %d\n%s", args, code, stderr)
+		}
+	}
+	links := regexp.MustCompile(`\]\((page\.[^)]+\.svg)\)`).FindAllStringSubmatch(readT(t, page), -1)
+	if len(links) == 0 {
+		t.Fatal("the page links no chart")
+	}
+	for _, l := range links {
+		if _, err := os.Stat(filepath.Join(dir, l[1])); err != nil {
+			t.Errorf("chart %s: %v", l[1], err)
+		}
+	}
+}
+
+// A --serve address with no port or a port that is no port is a usage error (exit 2) before
+// anything is rendered; it was exit 3, as if the worksheet could not be evaluated.
+func TestServeAddressIsAUsageError(t *testing.T) {
+	dir, sheet, _ := outFixture(t)
+	out := filepath.Join(dir, "page.md")
+	for _, addr := range []string{"nonsense", "localhost:", ":99999", "a:b:c"} {
+		code, _, stderr := run(t, "watch", sheet, "-o", out, "--serve", addr)
+		if code != ExitUsage || !strings.Contains(stderr, "--serve") {
+			t.Errorf("--serve %s: exit %d, want 2:\n%s", addr, code, stderr)
+		}
+	}
+	if _, err := os.Stat(out); err == nil {
+		t.Error("a page was written")
 	}
 }

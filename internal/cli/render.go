@@ -100,7 +100,8 @@ func output(ev *evaluated, asJSON bool, out string) ([]byte, []report.File) {
 
 // writeOutputs writes the charts first and the page last, each atomically, so a reader
 // never sees a page whose charts are missing; charts of earlier pages go after the page.
-func writeOutputs(out string, page []byte, files []report.File, inputs []string) error {
+// JSON has no charts and removes none: page.json beside page.md leaves the page's charts.
+func writeOutputs(out string, page []byte, files []report.File, inputs []string, asJSON bool) error {
 	if err := checkOut(out, inputs); err != nil {
 		return err
 	}
@@ -110,7 +111,11 @@ func writeOutputs(out string, page []byte, files []report.File, inputs []string)
 	if err := watch.WriteAtomic(out, page); err != nil {
 		return err
 	}
-	return removeOldCharts(out, files)
+	if asJSON {
+		watch.RemoveStale(filepath.Dir(out), filepath.Base(out)+".")
+		return nil
+	}
+	return removeOldCharts(out, files, inputs)
 }
 
 func cmdRender(e *Env, args []string) int {
@@ -152,7 +157,7 @@ func cmdRender(e *Env, args []string) int {
 		_, _ = e.Stdout.Write(page)
 		return ExitOK
 	}
-	if err := writeOutputs(*out, page, files, inputFiles(pos[0], ev.sheet.Parts)); err != nil {
+	if err := writeOutputs(*out, page, files, inputFiles(pos[0], ev.sheet.Parts), *asJSON); err != nil {
 		fmt.Fprintf(e.Stderr, "rfledger: %v\n", err)
 		return ExitUsage
 	}

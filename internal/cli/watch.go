@@ -41,6 +41,11 @@ func watchUntil(ctx context.Context, e *Env, args []string, ready func(addr stri
 	if err != nil {
 		return usageErr(e, "watch", "%v", err)
 	}
+	if *serve != "" {
+		if err := watch.CheckServe(*serve); err != nil {
+			return usageErr(e, "watch", "--serve %v; give a port, e.g. --serve :8080 or --serve localhost:8080", err)
+		}
+	}
 	sheet := pos[0]
 	// The parts are known once the sheet is loaded; a part named as -o is refused here too.
 	lib := rflib.Library()
@@ -178,9 +183,12 @@ func (lw *liveSheet) extra(string) []string {
 // written removes the charts the page on disk no longer links.
 func (lw *liveSheet) written() {
 	lw.mu.Lock()
-	charts := lw.charts
+	charts, inputs := lw.charts, []string{lw.sheet}
+	if lw.last != nil && lw.last.sheet != nil {
+		inputs = inputFiles(lw.sheet, lw.last.sheet.Parts)
+	}
 	lw.mu.Unlock()
-	if err := removeOldCharts(lw.out, charts); err != nil {
+	if err := removeOldCharts(lw.out, charts, inputs); err != nil {
 		fmt.Fprintf(lw.e.Stderr, "rfledger watch: %v\n", err)
 	}
 }

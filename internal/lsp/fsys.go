@@ -2,6 +2,7 @@ package lsp
 
 import (
 	"bytes"
+	"errors"
 	"io"
 	"io/fs"
 	"os"
@@ -11,7 +12,9 @@ import (
 
 // overlay is the file system a worksheet is loaded from: its folder on disk, with the open
 // buffers of the editor in place of the files they edit. Paths are slash-separated and
-// relative to the folder, as engine.Options.FS wants them.
+// relative to the folder, as engine.Options.FS wants them. Files on disk are opened through
+// an os.Root on the folder, as render reads parts: a symbolic link that leads outside it is
+// refused, and Stat answers without opening, so a named pipe is never opened (it would block).
 type overlay struct {
 	dir  string            // the worksheet's folder ("" when the document is no file on disk)
 	bufs map[string]string // open buffers by path in the folder
@@ -28,13 +31,44 @@ func (o overlay) Open(name string) (fs.File, error) {
 	if o.dir == "" {
 		return nil, &fs.PathError{Op: "open", Path: name, Err: fs.ErrNotExist}
 	}
-	return os.DirFS(o.dir).Open(name)
+	root, err := os.OpenRoot(o.dir)
+	if err != nil {
+		return nil, err
+	}
+	defer root.Close() // a file opened from it stays open
+	return root.FS().Open(name)
 }
 
-// ReadFile implements fs.ReadFileFS, so that a buffer is not copied through a reader.
+// Stat implements fs.StatFS: the loader asks whether a part is a regular file before it
+// opens it.
+func (o overlay) Stat(name string) (fs.FileInfo, error) {
+	if !fs.ValidPath(name) {
+		return nil, &fs.PathError{Op: "stat", Path: name, Err: fs.ErrInvalid}
+	}
+	if s, ok := o.bufs[name]; ok {
+		return memInfo{path.Base(name), int64(len(s))}, nil
+	}
+	if o.dir == "" {
+		return nil, &fs.PathError{Op: "stat", Path: name, Err: fs.ErrNotExist}
+	}
+	root, err := os.OpenRoot(o.dir)
+	if err != nil {
+		return nil, err
+	}
+	defer root.Close()
+	return fs.Stat(root.FS(), name)
+}
+
+// ReadFile implements fs.ReadFileFS, so that a buffer is not copied through a reader. A file
+// on disk must be a regular one (hover and definitions read parts again after a load).
 func (o overlay) ReadFile(name string) ([]byte, error) {
 	if s, ok := o.bufs[name]; ok && fs.ValidPath(name) {
 		return []byte(s), nil
+	}
+	if fi, err := o.Stat(name); err != nil {
+		return nil, err
+	} else if !fi.Mode().IsRegular() {
+		return nil, &fs.PathError{Op: "read", Path: name, Err: errors.New("not a regular file")}
 	}
 	f, err := o.Open(name)
 	if err != nil {

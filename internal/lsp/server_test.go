@@ -6,6 +6,7 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"syscall"
 	"testing"
 	"unicode/utf16"
 
@@ -316,4 +317,58 @@ func inside(text string, p protocol.Position) bool {
 		return false
 	}
 	return int(p.Character) <= len(utf16.Encode([]rune(strings.TrimSuffix(lines[p.Line], "\r"))))
+}
+
+// TestPartsStayInsideInTheEditor: the language server reads parts as render does (issue 8,
+// findings 3 and 4): a link that leads out of the worksheet's folder, a linked folder, and a
+// named pipe are errors at the part's name, and no value from outside reaches a hint.
+func TestPartsStayInsideInTheEditor(t *testing.T) {
+	root := t.TempDir()
+	dir, outside := filepath.Join(root, "sheet"), filepath.Join(root, "outside")
+	for _, d := range []string{filepath.Join(dir, "parts"), outside} {
+		if err := os.MkdirAll(d, 0o755); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := os.WriteFile(filepath.Join(outside, "secret.toml"), []byte("gain = \"42 dB\"\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	links := map[string]string{
+		filepath.Join(dir, "parts", "evil.toml"): filepath.Join("..", "..", "outside", "secret.toml"),
+		filepath.Join(dir, "linked"):             outside,
+	}
+	for link, target := range links {
+		if err := os.Symlink(target, link); err != nil {
+			t.Skipf("no symbolic links here: %v", err)
+		}
+	}
+	if err := syscall.Mkfifo(filepath.Join(dir, "parts", "pipe.toml"), 0o644); err != nil {
+		t.Skipf("no named pipes here: %v", err)
+	}
+	sheet := "use = { a = \"parts/evil.toml\", b = \"linked/secret.toml\", c = \"parts/pipe.toml\" }\n[m]\nx = \"= a.gain\"\n"
+	path := filepath.Join(dir, "s.toml")
+	if err := os.WriteFile(path, []byte(sheet), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	uri := fileURI(path)
+	c := newClient(t, Options{})
+	c.initialize()
+	c.open(uri, sheet)
+	diags := c.waitDiags(uri, 1)
+	want := map[string]string{"parts/evil.toml": "leads outside the worksheet's folder", "linked/secret.toml": "leads outside the worksheet's folder", "parts/pipe.toml": "not a regular file"}
+	for file, msg := range want {
+		found := false
+		for _, d := range diags {
+			found = found || d.Range.Start.Line == 0 && strings.Contains(d.Message, "cannot read "+file+": ") && strings.Contains(d.Message, msg)
+		}
+		if !found {
+			t.Errorf("part %s: no error %q in %v", file, msg, diags)
+		}
+	}
+	for _, h := range c.hints(uri, 100) {
+		if strings.Contains(h.Label, "42") {
+			t.Errorf("a value from outside the folder reached a hint: %q", h.Label)
+		}
+	}
+	c.shutdown()
 }

@@ -15,7 +15,17 @@ import (
 type text struct {
 	s     string
 	lines []int // byte offset where each line starts; lines[0] == 0
+	// marks holds, for each line longer than markStep bytes, a mark every markStep bytes or
+	// so, so that a column on it is found from the mark before it: a hostile file of 100,000
+	// diagnostics on one 1 MB line otherwise walks the line from its start for each.
+	marks map[int][]mark
 }
+
+// mark is a place on a long line: its byte offset (a character's start) in the line, and
+// the characters and UTF-16 code units before it.
+type mark struct{ b, chars, units int }
+
+const markStep = 1024
 
 func newText(s string) text {
 	t := text{s: s, lines: []int{0}}
@@ -24,7 +34,54 @@ func newText(s string) text {
 			t.lines = append(t.lines, i+1)
 		}
 	}
+	for i := range t.lines {
+		if l, _ := t.line(i); len(l) > markStep {
+			if t.marks == nil {
+				t.marks = map[int][]mark{}
+			}
+			t.marks[i] = lineMarks(l)
+		}
+	}
 	return t
+}
+
+func lineMarks(l string) []mark {
+	ms := []mark{{}}
+	m := mark{}
+	for b, r := range l {
+		if b-ms[len(ms)-1].b >= markStep {
+			m.b = b
+			ms = append(ms, m)
+		}
+		m.chars++
+		m.units += utf16Len(r)
+	}
+	return ms
+}
+
+// from returns the last mark of line i for which before holds (the line's start when it
+// has no marks or none holds).
+func (t text) from(i int, before func(mark) bool) mark {
+	ms := t.marks[i]
+	lo, hi := 0, len(ms) // the first mark for which before fails
+	for lo < hi {
+		mid := (lo + hi) / 2
+		if before(ms[mid]) {
+			lo = mid + 1
+		} else {
+			hi = mid
+		}
+	}
+	if lo == 0 {
+		return mark{}
+	}
+	return ms[lo-1]
+}
+
+// unitsTo returns the UTF-16 code units of l[:b], l being line i.
+func (t text) unitsTo(i int, l string, b int) int {
+	m := t.from(i, func(m mark) bool { return m.b <= b })
+	return m.units + utf16Count(l[m.b:b])
 }
 
 // line returns line i (0-based) without its line ending, and its start offset.
@@ -47,9 +104,11 @@ func (t text) offset(p protocol.Position) int {
 	}
 	l, start := t.line(int(p.Line))
 	units := int(p.Character)
-	for i, r := range l {
+	m := t.from(int(p.Line), func(m mark) bool { return m.units <= units })
+	units -= m.units
+	for i, r := range l[m.b:] {
 		if units <= 0 {
-			return start + i
+			return start + m.b + i
 		}
 		units -= utf16Len(r)
 	}
@@ -66,7 +125,7 @@ func (t text) position(off int) protocol.Position {
 	for col > 0 && col < len(l) && !utf8.RuneStart(l[col]) {
 		col--
 	}
-	return protocol.Position{Line: uint32(i), Character: uint32(utf16Count(l[:col]))}
+	return protocol.Position{Line: uint32(i), Character: uint32(t.unitsTo(i, l, col))}
 }
 
 // lineOf returns the index of the line holding byte offset off.
@@ -94,12 +153,14 @@ func (t text) enginePos(p engine.Pos) protocol.Position {
 	}
 	l, _ := t.line(p.Line - 1)
 	chars := max(p.Col-1, 0)
-	b := 0
-	for ; chars > 0 && b < len(l); chars-- {
-		_, size := utf8.DecodeRuneInString(l[b:])
+	m := t.from(p.Line-1, func(m mark) bool { return m.chars <= chars })
+	b, units := m.b, m.units
+	for chars -= m.chars; chars > 0 && b < len(l); chars-- {
+		r, size := utf8.DecodeRuneInString(l[b:])
 		b += size
+		units += utf16Len(r)
 	}
-	return protocol.Position{Line: uint32(p.Line - 1), Character: uint32(utf16Count(l[:b]))}
+	return protocol.Position{Line: uint32(p.Line - 1), Character: uint32(units)}
 }
 
 // engineRange converts a worksheet range to an LSP range. A range that is only a point
@@ -115,7 +176,7 @@ func (t text) engineRange(r engine.Range) protocol.Range {
 	}
 	if end == start {
 		l, _ := t.line(int(start.Line))
-		if n := utf16Count(l); int(start.Character) < n {
+		if n := t.unitsTo(int(start.Line), l, len(l)); int(start.Character) < n {
 			r, _ := utf8.DecodeRuneInString(l[t.offset(start)-t.lines[start.Line]:])
 			end.Character += uint32(utf16Len(r))
 		}
@@ -127,7 +188,7 @@ func (t text) engineRange(r engine.Range) protocol.Range {
 func (t text) lineEnd(i int) protocol.Position {
 	i = min(max(i, 0), len(t.lines)-1)
 	l, _ := t.line(i)
-	return protocol.Position{Line: uint32(i), Character: uint32(utf16Count(l))}
+	return protocol.Position{Line: uint32(i), Character: uint32(t.unitsTo(i, l, len(l)))}
 }
 
 // apply replaces the text of an LSP range (or the whole text when r is nil) and returns

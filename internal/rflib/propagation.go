@@ -45,9 +45,9 @@ var propagation = []*engine.Func{
 			d, f, d0, n := q(a, 0), q(a, 1), q(a, 2), q(a, 3)
 			switch {
 			case !(d0 > 0):
-				return units.Q{}, fmt.Errorf("logdist: the reference distance d0 = %s must be positive", units.Lin(d0, units.Length))
+				return units.Q{}, fmt.Errorf("the reference distance d0 = %s must be positive", units.Lin(d0, units.Length))
 			case n < 0:
-				return units.Q{}, fmt.Errorf("logdist: the path-loss exponent n = %g is negative: the loss would fall with distance", n)
+				return units.Q{}, fmt.Errorf("the path-loss exponent n = %g is negative: the loss would fall with distance", n)
 			case n < 1.6 || n > 6:
 				// Rappaport, Table 4.2 (recalled from memory): measured exponents run from
 				// 1.6–1.8 (line of sight in buildings) to 4–6 (obstructed in buildings).

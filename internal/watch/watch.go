@@ -547,6 +547,21 @@ func serveHosts(addr net.Addr, serve string) hostCheck {
 
 // listenAddr turns the Serve option into a listen address. A bare port or
 // ":port" becomes 127.0.0.1:port; an explicit host is kept as given.
+// CheckServe reports a --serve address that cannot be listened on whatever the network
+// does: no port, a port that is neither a number nor a service name. The command refuses it
+// as a usage error before it renders anything.
+func CheckServe(s string) error {
+	addr, err := listenAddr(s)
+	if err != nil {
+		return err
+	}
+	_, port, _ := net.SplitHostPort(addr)
+	if _, err := net.LookupPort("tcp", port); err != nil {
+		return fmt.Errorf("%q: %v", s, err)
+	}
+	return nil
+}
+
 func listenAddr(s string) (string, error) {
 	s = strings.TrimSpace(s)
 	if !strings.Contains(s, ":") {
