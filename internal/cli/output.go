@@ -54,16 +54,16 @@ func inputFiles(sheet string, parts []string) []string {
 	return files
 }
 
-// writeCharts writes the charts beside out, each atomically, refusing any that would
-// replace an input.
-func writeCharts(out string, files []report.File, inputs []string) error {
+// writeCharts writes the charts beside out, each atomically with write (watch.WriteAtomic,
+// or watch.WriteLive for watch), refusing any that would replace an input.
+func writeCharts(out string, files []report.File, inputs []string, write func(string, []byte) error) error {
 	dir := filepath.Dir(out)
 	for _, f := range files {
 		p := filepath.Join(dir, f.Name)
 		if err := checkOut(p, inputs); err != nil {
 			return err
 		}
-		if err := watch.WriteAtomic(p, f.Data); err != nil {
+		if err := write(p, f.Data); err != nil {
 			return err
 		}
 	}

@@ -105,7 +105,7 @@ func writeOutputs(out string, page []byte, files []report.File, inputs []string,
 	if err := checkOut(out, inputs); err != nil {
 		return err
 	}
-	if err := writeCharts(out, files, inputs); err != nil {
+	if err := writeCharts(out, files, inputs, watch.WriteAtomic); err != nil {
 		return err
 	}
 	if err := watch.WriteAtomic(out, page); err != nil {

@@ -156,7 +156,7 @@ func (lw *liveSheet) page(ev *evaluated, files []string) ([]byte, bool) { return
 // overtook must not replace them).
 func (lw *liveSheet) pageOf(ev, shown *evaluated) ([]byte, bool) {
 	page, charts := output(shown, false, lw.out)
-	if err := writeCharts(lw.out, charts, inputFiles(lw.sheet, ev.sheet.Parts)); err != nil {
+	if err := writeCharts(lw.out, charts, inputFiles(lw.sheet, ev.sheet.Parts), watch.WriteLive); err != nil {
 		fmt.Fprintf(lw.e.Stderr, "rfledger watch: %v\n", err)
 		return nil, false
 	}

@@ -266,7 +266,7 @@ func (l *loop) recalc() bool {
 		// Follow the files before the output appears: whoever reads the new output and saves
 		// at once must not beat the watch on a folder that is new (a new part).
 		l.setFiles(files, false)
-		if werr := WriteAtomic(l.out, data); werr != nil {
+		if werr := WriteLive(l.out, data); werr != nil {
 			err = fmt.Errorf("writing %s: %w", name, werr)
 		}
 	}
@@ -325,7 +325,7 @@ func (l *loop) finish(rf refinement) {
 		return
 	}
 	name := filepath.Base(l.out)
-	if err := WriteAtomic(l.out, rf.data); err != nil {
+	if err := WriteLive(l.out, rf.data); err != nil {
 		fmt.Fprintf(l.status, "%s error: writing %s: %v\n", stamp(), name, err)
 		return
 	}

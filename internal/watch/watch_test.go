@@ -164,10 +164,23 @@ func (f *fixture) waitOut(t *testing.T, want string) {
 	eventually(t, fmt.Sprintf("output %q", want), func() bool { return readString(t, f.out) == want })
 }
 
+// writers are the two atomic writers: WriteAtomic (forced to the disk) and WriteLive (not),
+// which must behave alike for every reader.
+var writers = []struct {
+	name  string
+	write func(string, []byte) error
+}{{"WriteAtomic", WriteAtomic}, {"WriteLive", WriteLive}}
+
 func TestWriteAtomic(t *testing.T) {
+	for _, w := range writers {
+		t.Run(w.name, func(t *testing.T) { testWriteAtomic(t, w.write) })
+	}
+}
+
+func testWriteAtomic(t *testing.T, write func(string, []byte) error) {
 	dir := t.TempDir()
 	p := filepath.Join(dir, "report.md")
-	if err := WriteAtomic(p, []byte("first\n")); err != nil {
+	if err := write(p, []byte("first\n")); err != nil {
 		t.Fatal(err)
 	}
 	if got := readString(t, p); got != "first\n" {
@@ -176,7 +189,7 @@ func TestWriteAtomic(t *testing.T) {
 	if err := os.Chmod(p, 0o600); err != nil {
 		t.Fatal(err)
 	}
-	if err := WriteAtomic(p, []byte("second\n")); err != nil {
+	if err := write(p, []byte("second\n")); err != nil {
 		t.Fatal(err)
 	}
 	if got := readString(t, p); got != "second\n" {
@@ -198,7 +211,7 @@ func TestWriteAtomic(t *testing.T) {
 	}
 
 	// Failure: missing directory gives an error and creates nothing.
-	if err := WriteAtomic(filepath.Join(dir, "missing", "x.md"), []byte("x")); err == nil {
+	if err := write(filepath.Join(dir, "missing", "x.md"), []byte("x")); err == nil {
 		t.Fatal("write into a missing directory succeeded")
 	}
 	// Failure: the target is a directory; it stays and no temp file remains.
@@ -206,7 +219,7 @@ func TestWriteAtomic(t *testing.T) {
 	if err := os.Mkdir(sub, 0o755); err != nil {
 		t.Fatal(err)
 	}
-	if err := WriteAtomic(sub, []byte("x")); err == nil {
+	if err := write(sub, []byte("x")); err == nil {
 		t.Fatal("write over a directory succeeded")
 	}
 	if ents, _ := os.ReadDir(dir); len(ents) != 2 {
@@ -217,10 +230,16 @@ func TestWriteAtomic(t *testing.T) {
 // TestWriteAtomicNoPartialReads has a reader race a writer that alternates
 // two large contents; every read must see one of them whole.
 func TestWriteAtomicNoPartialReads(t *testing.T) {
+	for _, w := range writers {
+		t.Run(w.name, func(t *testing.T) { testNoPartialReads(t, w.write) })
+	}
+}
+
+func testNoPartialReads(t *testing.T, write func(string, []byte) error) {
 	p := filepath.Join(t.TempDir(), "big.md")
 	a := bytes.Repeat([]byte("a"), 1<<20)
 	b := bytes.Repeat([]byte("b"), 1<<20+7)
-	if err := WriteAtomic(p, a); err != nil {
+	if err := write(p, a); err != nil {
 		t.Fatal(err)
 	}
 	stop := make(chan struct{})
@@ -236,7 +255,7 @@ func TestWriteAtomicNoPartialReads(t *testing.T) {
 			if i%2 == 1 {
 				data = b
 			}
-			if err := WriteAtomic(p, data); err != nil {
+			if err := write(p, data); err != nil {
 				t.Error(err)
 				return
 			}
