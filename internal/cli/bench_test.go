@@ -67,7 +67,7 @@ func benchNamed() bool {
 // (internal/gen): reload reusing the previous load, evaluate what changed, the quick analyses
 // and the page with its charts (the Monte Carlo completion comes after, in the background).
 // Each op alternates between two versions of the sheet that differ in one input (input) or
-// one formula (formula). The debounce (30 ms) comes on top of this.
+// one formula (formula). The debounce (watch.DefaultDebounce) comes on top of this.
 func BenchmarkWatchEdit(b *testing.B) {
 	src, err := gen.Budget(10_000, 1)
 	if err != nil {

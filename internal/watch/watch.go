@@ -24,7 +24,7 @@ type Render func() (out []byte, files []string, err error)
 // Options configures Run.
 type Options struct {
 	Out      string                    // output file; written atomically (temp file in the same dir + rename), never half-written
-	Debounce time.Duration             // bursts of events within this window give one recalculation (default 30ms)
+	Debounce time.Duration             // bursts of events within this window give one recalculation (default 20ms)
 	Status   io.Writer                 // one line per recalculation, e.g. "12:04:05 rendered field.md in 3.1 ms" or "12:04:05 error: <first line>…" (the error text itself goes to Errors); nil discards
 	Errors   io.Writer                 // full error text when a render fails; nil discards
 	Serve    string                    // "" = no server; else an address like "127.0.0.1:8080" or ":0"; a bare port or ":port" binds 127.0.0.1 only, never all interfaces unless the host is given explicitly
@@ -43,8 +43,9 @@ type Options struct {
 }
 
 // DefaultDebounce is the debounce window used when Options.Debounce is zero or negative.
-// Editors write a save within a few milliseconds; 30 ms gathers the events of one save.
-const DefaultDebounce = 30 * time.Millisecond
+// Editors write a save within a few milliseconds (a rename over the file, or a truncation
+// and a write microseconds apart); 20 ms gathers the events of one save.
+const DefaultDebounce = 20 * time.Millisecond
 
 // maxDelayFactor bounds how long a continuous stream of events can postpone a
 // recalculation: at most this many debounce windows after the first event.
