@@ -253,3 +253,24 @@ func TestUnitOf(t *testing.T) {
 		}
 	}
 }
+
+// TestNearest: the suggestion for a misspelt name is the closest by edit distance; a
+// difference in case alone wins outright; at the same distance the candidate that begins like
+// the word wins (a slip is likelier at the end of what was typed: "dBmm" is "dBm" with a key
+// pressed twice); nothing is suggested for a word too far from every candidate.
+func TestNearest(t *testing.T) {
+	for _, c := range []struct {
+		word  string
+		cands []string
+		want  string
+	}{
+		{"mhz", []string{"MHz", "mHz", "Hz"}, "MHz"},
+		{"dBmm", []string{"dB/m", "dBm"}, "dBm"},
+		{"dBmm", []string{"dBm", "dB/m"}, "dBm"},
+		{"furlongs", []string{"dB", "m", "Hz"}, ""},
+	} {
+		if got := Nearest(c.word, c.cands); got != c.want {
+			t.Errorf("Nearest(%q, %q) = %q, want %q", c.word, c.cands, got, c.want)
+		}
+	}
+}

@@ -474,16 +474,31 @@ func Nearest(word string, candidates []string) string {
 			return c
 		}
 	}
+	// At the same distance the candidate that begins like the word wins: a slip is likelier
+	// at the end of what was typed ("dBmm" is "dBm" with a key pressed twice, not "dB/m").
 	best, bestD := "", 3
 	for _, c := range candidates {
 		if c == word {
 			continue
 		}
-		if d := editDistance(word, c); d < bestD && d*2 <= utf8.RuneCountInString(word)+1 {
+		d := editDistance(word, c)
+		if d*2 > utf8.RuneCountInString(word)+1 {
+			continue
+		}
+		if d < bestD || d == bestD && best != "" && commonPrefix(word, c) > commonPrefix(word, best) {
 			best, bestD = c, d
 		}
 	}
 	return best
+}
+
+// commonPrefix returns how many leading bytes a and b share.
+func commonPrefix(a, b string) int {
+	n := 0
+	for n < len(a) && n < len(b) && a[n] == b[n] {
+		n++
+	}
+	return n
 }
 
 func editDistance(a, b string) int {
