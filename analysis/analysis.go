@@ -443,7 +443,7 @@ func (fa *focusAt) tolerance(opt Options) *Tolerance {
 	}
 	sortCorners(t.LowCorner)
 	sortCorners(t.HighCorner)
-	union := s.Cone(qs...)
+	union := s.ConeFor(sinks, qs...) // what the focus and the requirements read, no more
 	t.WorstLow, _ = fa.at(qs, lowCorner, union)
 	t.WorstHigh, _ = fa.at(qs, highCorner, union)
 	_, _, t.LowWarnings = fa.corner(qs, lowCorner, union, focus)

@@ -39,6 +39,34 @@ func (s *Sheet) Cone(inputs ...*Quantity) *Cone {
 	return &Cone{from: from, ids: s.coneOf(from)}
 }
 
+// ConeFor returns the part of the inputs' cone that the quantities of depend on: what a
+// scenario must compute again to know them after the inputs change, and nothing that only
+// other quantities read (an analysis of a focus and its requirements recomputes no more).
+func (s *Sheet) ConeFor(of []*Quantity, inputs ...*Quantity) *Cone {
+	c := s.Cone(inputs...)
+	need := make([]bool, len(s.nodes))
+	var stack []int
+	for _, q := range of {
+		stack = append(stack, q.node)
+	}
+	for len(stack) > 0 {
+		id := stack[len(stack)-1]
+		stack = stack[:len(stack)-1]
+		if need[id] {
+			continue
+		}
+		need[id] = true
+		stack = append(stack, s.nodes[id].deps...)
+	}
+	ids := make([]int32, 0, len(c.ids))
+	for _, id := range c.ids {
+		if need[id] {
+			ids = append(ids, id)
+		}
+	}
+	return &Cone{from: c.from, ids: ids}
+}
+
 // Inputs returns the input quantities the given quantities depend on, in file order.
 func (s *Sheet) Inputs(of ...*Quantity) []*Quantity {
 	ids := make([]int, len(of))

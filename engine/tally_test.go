@@ -1,6 +1,7 @@
 package engine_test
 
 import (
+	"math"
 	"strings"
 	"testing"
 
@@ -121,5 +122,44 @@ func TestTallyNoAllocs(t *testing.T) {
 	}
 	if ts := sc.Tallies(); len(ts) != 1 || ts[0].Points < 200 {
 		t.Errorf("tallies %+v, want the warning counted at every warned point", ts)
+	}
+}
+
+// TestConeFor: the part of an input's cone that a quantity reads is all a scenario computes
+// for it: with d moved below the reference distance, the loss that the margin reads is
+// recomputed (and its logdist warning counted, as in TestScenarioTallies), while a second
+// loss that nothing asked for keeps its nominal value and raises no warning.
+func TestConeFor(t *testing.T) {
+	r := evalSrc(t, tallySheet+`other = "= logdist(d, f, d0, 2.0)"
+margin = "= 140 dB - loss"
+`)
+	sh := r.Sheet()
+	d, _ := sh.Quantity("d")
+	loss, _ := sh.Quantity("loss")
+	other, _ := sh.Quantity("other")
+	margin, _ := sh.Quantity("margin")
+	if all := sh.Cone(d); all.Len() != 3 {
+		t.Fatalf("d's cone holds %d quantities, want 3 (loss, other, margin)", all.Len())
+	}
+	cone := sh.ConeFor([]*engine.Quantity{margin}, d)
+	if cone.Len() != 2 {
+		t.Fatalf("the part of d's cone that margin reads holds %d quantities, want 2 (loss, margin)", cone.Len())
+	}
+	sc := r.Scenario()
+	sc.Point(0)
+	sc.Set(d, units.Lin(50, units.Length))
+	sc.Run(cone)
+	// Rappaport's log-distance model: L(d) = L(d0) + 10·n·log10(d/d0), so moving d from 2 km
+	// to 50 m at n = 3 changes the loss by 30·log10(50/2000) = −48.06 dB (the model is then
+	// outside its range, below d0: hence the warning).
+	lv, _ := sc.Value(loss)
+	ln, _ := r.Value(loss)
+	near(t, "loss at 50 m less the nominal one at 2 km", lv.V-ln.V, 30*math.Log10(50.0/2000), 1e-9)
+	if ov, _ := sc.Value(other); ov != func() units.Q { v, _ := r.Value(other); return v }() {
+		t.Errorf("other was recomputed: %v", ov)
+	}
+	ts := sc.Tallies()
+	if len(ts) != 1 || ts[0].Quantity != loss {
+		t.Errorf("tallies %+v, want loss's warning alone", ts)
 	}
 }
