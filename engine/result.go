@@ -478,16 +478,13 @@ func (s *Sheet) EvalFrom(prev *Result, set ...Override) (*Result, Diagnostics) {
 			overridden[o.Name] = "changed"
 		}
 	}
-	if old == s {
-		s.evalNear(r, prev, overridden)
-		r.diags = sortDiags(r.diags)
-		return r, r.diags
-	}
-	if kept {
-		for _, id := range s.kept.changed {
-			overridden[s.nodes[id].name] = "changed"
+	if old == s || kept {
+		if kept {
+			for _, id := range s.kept.changed {
+				overridden[s.nodes[id].name] = "changed"
+			}
 		}
-		s.evalKept(r, prev, overridden)
+		s.evalNear(r, prev, overridden, kept)
 		r.diags = sortDiags(r.diags)
 		return r, r.diags
 	}
@@ -551,43 +548,15 @@ func (r *Result) setWarn(id int, w []string) {
 	r.warn[id] = w
 }
 
-// evalNear finishes EvalFrom for prev of the same sheet (the cases of one load): r holds
-// prev's values with the new overrides applied; only the cones of the inputs whose override
-// changed are computed again. A node prev could not evaluate and that depends on none of
-// them stays unknown, as a full evaluation would leave it.
-func (s *Sheet) evalNear(r, prev *Result, overridden map[string]string) {
-	roots := make([]int, 0, len(overridden))
-	for name := range overridden {
-		if id, ok := s.byName[name]; ok {
-			roots = append(roots, id)
-		}
-	}
-	var cone []int32
-	if len(roots) > 0 {
-		cone = s.coneOf(roots)
-	}
-	r.quiet, r.call.quiet = false, false
-	inCone := make(map[int32]bool, len(cone))
-	for _, id := range cone {
-		inCone[id] = true
-		r.evalNode(int(id))
-		r.evaluated++
-	}
-	for _, d := range prev.diags {
-		if id, ok := s.byName[d.Quantity]; ok && d.Severity == Warning && !inCone[int32(id)] {
-			r.diags = append(r.diags, d)
-		}
-	}
-	r.requirements()
-}
-
-// evalKept finishes EvalFrom for prev of the sheet this one was kept from (keep.go): r holds
-// prev's values with the edited inputs' new values and the new overrides applied. What is
-// computed again: the cones of the changed quantities and overrides, the edited formulas
-// themselves, and every formula prev could not evaluate (so that its error is reported
-// again, where a full evaluation would report it); the rest keeps prev's values and
-// warnings, at their moved places.
-func (s *Sheet) evalKept(r, prev *Result, overridden map[string]string) {
+// evalNear finishes EvalFrom for prev of a sheet with the same nodes: prev's own (the cases
+// of one load), or one that keepModel made from prev's (kept). r holds prev's values with the
+// new overrides, and a kept sheet's edited inputs, applied. Computed again are the cones of
+// the inputs whose value changed and, on a kept sheet, the edited formulas themselves and
+// every formula prev could not evaluate (so that its error is reported again, as a full
+// evaluation reports it); the rest keeps prev's values and warnings (on a kept sheet at their
+// moved places). Among the cases, a node prev could not evaluate and that depends on none of
+// the changed inputs stays unknown, as a full evaluation would leave it.
+func (s *Sheet) evalNear(r, prev *Result, overridden map[string]string, kept bool) {
 	roots := make([]int, 0, len(overridden))
 	for name := range overridden {
 		if id, ok := s.byName[name]; ok {
@@ -608,17 +577,19 @@ func (s *Sheet) evalKept(r, prev *Result, overridden map[string]string) {
 			add(id)
 		}
 	}
-	for _, id := range roots {
-		if s.nodes[id].code != nil {
-			add(int32(id))
+	if kept {
+		for _, id := range roots {
+			if s.nodes[id].code != nil {
+				add(int32(id))
+			}
 		}
-	}
-	for id, n := range s.nodes {
-		if !prev.known[id] && (n.code != nil || n.chain != nil) {
-			add(int32(id))
+		for id, n := range s.nodes {
+			if !prev.known[id] && (n.code != nil || n.chain != nil) {
+				add(int32(id))
+			}
 		}
+		slices.SortFunc(todo, func(a, b int32) int { return s.pos[a] - s.pos[b] })
 	}
-	slices.SortFunc(todo, func(a, b int32) int { return s.pos[a] - s.pos[b] })
 	r.quiet, r.call.quiet = false, false
 	for _, id := range todo {
 		r.evalNode(int(id))
@@ -626,7 +597,9 @@ func (s *Sheet) evalKept(r, prev *Result, overridden map[string]string) {
 	}
 	for _, d := range prev.diags {
 		if id, ok := s.byName[d.Quantity]; ok && d.Severity == Warning && !again[int32(id)] {
-			d.Range = s.kept.move(d.Range)
+			if kept {
+				d.Range = s.kept.move(d.Range)
+			}
 			r.diags = append(r.diags, d)
 		}
 	}
