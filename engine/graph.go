@@ -83,6 +83,18 @@ func (s *Sheet) coneOf(from []int) []int32 {
 
 // upstreamInputs returns the input quantities the given nodes depend on, in file order.
 func (s *Sheet) upstreamInputs(ids ...int) []int {
+	mark := s.upstream(ids...)
+	var out []int
+	for id, n := range s.nodes {
+		if mark[id] && n.q != nil && n.q.Formula == "" && n.ok {
+			out = append(out, id)
+		}
+	}
+	return out
+}
+
+// upstream marks the given nodes and every node they depend on.
+func (s *Sheet) upstream(ids ...int) []bool {
 	mark := make([]bool, len(s.nodes))
 	stack := append([]int(nil), ids...)
 	for len(stack) > 0 {
@@ -94,11 +106,5 @@ func (s *Sheet) upstreamInputs(ids ...int) []int {
 		mark[id] = true
 		stack = append(stack, s.nodes[id].deps...)
 	}
-	var out []int
-	for id, n := range s.nodes {
-		if mark[id] && n.q != nil && n.q.Formula == "" && n.ok {
-			out = append(out, id)
-		}
-	}
-	return out
+	return mark
 }

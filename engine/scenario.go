@@ -44,20 +44,11 @@ func (s *Sheet) Cone(inputs ...*Quantity) *Cone {
 // other quantities read (an analysis of a focus and its requirements recomputes no more).
 func (s *Sheet) ConeFor(of []*Quantity, inputs ...*Quantity) *Cone {
 	c := s.Cone(inputs...)
-	need := make([]bool, len(s.nodes))
-	var stack []int
-	for _, q := range of {
-		stack = append(stack, q.node)
+	sinks := make([]int, len(of))
+	for i, q := range of {
+		sinks[i] = q.node
 	}
-	for len(stack) > 0 {
-		id := stack[len(stack)-1]
-		stack = stack[:len(stack)-1]
-		if need[id] {
-			continue
-		}
-		need[id] = true
-		stack = append(stack, s.nodes[id].deps...)
-	}
+	need := s.upstream(sinks...)
 	ids := make([]int32, 0, len(c.ids))
 	for _, id := range c.ids {
 		if need[id] {
