@@ -210,10 +210,10 @@ func setPath(doc map[string]any, keys []string, v any, copied map[any]bool) (map
 		}
 		k := keys[0]
 		if strings.HasPrefix(k, "[") {
-			n, err := strconv.Atoi(strings.Trim(k, "[]"))
 			switch s := node.(type) {
 			case []map[string]any:
-				if err != nil || n < 0 || n >= len(s) {
+				n, ok := arrayIndex(k, len(s))
+				if !ok {
 					return nil, false
 				}
 				child, ok := set(s[n], keys[1:])
@@ -225,7 +225,8 @@ func setPath(doc map[string]any, keys []string, v any, copied map[any]bool) (map
 				c[n] = cm
 				return c, true
 			case []any:
-				if err != nil || n < 0 || n >= len(s) {
+				n, ok := arrayIndex(k, len(s))
+				if !ok {
 					return nil, false
 				}
 				child, ok := set(s[n], keys[1:])
@@ -267,6 +268,12 @@ func setPath(doc map[string]any, keys []string, v any, copied map[any]bool) (map
 	}
 	m, isMap := out.(map[string]any)
 	return m, isMap
+}
+
+// arrayIndex reads an index path's array element key "[n]" for an array of length n.
+func arrayIndex(k string, length int) (int, bool) {
+	i, err := strconv.Atoi(strings.Trim(k, "[]"))
+	return i, err == nil && i >= 0 && i < length
 }
 
 // mapID identifies a map, to copy each map of the document once per edit.

@@ -118,6 +118,13 @@ func (c *chunked[T]) add(v T) int32 {
 
 func (c *chunked[T]) at(i int32) *T { return &c.chunks[i/chunkLen][i%chunkLen] }
 
+// share appends a full chunk of another index to c as it is, its capacity cut so that
+// nothing is ever appended into the other index's storage.
+func (c *chunked[T]) share(chunk []T) {
+	c.chunks = append(c.chunks, chunk[:len(chunk):len(chunk)])
+	c.n += len(chunk)
+}
+
 // get returns the positions of the key at path (in the escaped form keyJoin builds).
 func (ix *posIndex) get(path string) (keyPos, bool) {
 	i, ok := ix.pos[path]

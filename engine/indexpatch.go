@@ -56,7 +56,7 @@ func patchIndex(old *sheetFile, src string, edits []lineEdit) (ix *posIndex) {
 
 	// A full chunk whose positions all lie before the first byte that moves, and that holds
 	// none of the edited keys (or their strings), is shared with the earlier index as it is
-	// (with its capacity cut, so that nothing is ever appended into it); the rest is copied.
+	// (chunked.share); the rest is copied.
 	touchedKeys, touchedStrs := map[int]bool{}, map[int]bool{}
 	for p := range fresh {
 		i := ox.pos[p]
@@ -68,8 +68,7 @@ func patchIndex(old *sheetFile, src string, edits []lineEdit) (ix *posIndex) {
 	nx := &posIndex{pos: ox.pos, order: ox.order}
 	for c, chunk := range ox.strs.chunks {
 		if c < len(ox.strs.chunks)-1 && !touchedStrs[c] && stringsBefore(chunk, moved) {
-			nx.strs.chunks = append(nx.strs.chunks, chunk[:len(chunk):len(chunk)])
-			nx.strs.n += len(chunk)
+			nx.strs.share(chunk)
 			continue
 		}
 		for i := range chunk {
@@ -94,8 +93,7 @@ func patchIndex(old *sheetFile, src string, edits []lineEdit) (ix *posIndex) {
 	}
 	for c, chunk := range ox.kps.chunks {
 		if c < len(ox.kps.chunks)-1 && !touchedKeys[c] && keysBefore(chunk, moved) {
-			nx.kps.chunks = append(nx.kps.chunks, chunk[:len(chunk):len(chunk)])
-			nx.kps.n += len(chunk)
+			nx.kps.share(chunk)
 			continue
 		}
 		for i := range chunk {

@@ -4,7 +4,6 @@ import (
 	"crypto/sha256"
 	"io/fs"
 	"slices"
-	"strconv"
 	"strings"
 	"sync/atomic"
 	"unicode/utf8"
@@ -353,15 +352,16 @@ func docAt(doc map[string]any, path string) (any, bool) {
 	var v any = doc
 	for _, k := range splitPath(path) {
 		if strings.HasPrefix(k, "[") {
-			i, err := strconv.Atoi(strings.Trim(k, "[]"))
 			switch a := v.(type) {
 			case []map[string]any:
-				if err != nil || i < 0 || i >= len(a) {
+				i, ok := arrayIndex(k, len(a))
+				if !ok {
 					return nil, false
 				}
 				v = a[i]
 			case []any:
-				if err != nil || i < 0 || i >= len(a) {
+				i, ok := arrayIndex(k, len(a))
+				if !ok {
 					return nil, false
 				}
 				v = a[i]
