@@ -185,8 +185,7 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 	} else {
 		ixc := make(chan *posIndex, 1)
 		go func() { ixc <- indexTOML(src) }()
-		doc = nil
-		_, err = toml.Decode(src, &doc)
+		doc, err = decodeTOML(src)
 		ix = <-ixc
 	}
 	f := &sheetFile{name: display, fsPath: fsPath, ix: ix, prefix: prefix, src: src, doc: doc}

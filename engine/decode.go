@@ -1,0 +1,136 @@
+package engine
+
+import (
+	"runtime"
+	"strings"
+	"sync"
+
+	"github.com/BurntSushi/toml"
+)
+
+// decodeChunk is the smallest piece of a worksheet decoded on its own: below it the cost of
+// a goroutine and a decoder outweighs what the other cores give.
+const decodeChunk = 32 << 10
+
+// decodeTOML decodes a worksheet's text as toml.Decode does, on every core for a large one.
+//
+// The text is cut at table headers written at the start of a line where the header's first
+// key differs from the one before it ([a.b] and [a.c] stay together), and the pieces are
+// decoded at once. The pieces' documents are then joined. That is the decoding of the whole
+// text when no top-level key comes out of two pieces: every TOML rule (a key defined twice,
+// a table extended after an inline one, an array of tables) is about one key path, and all
+// of one top-level key's text is in one piece. A cut that does not fall between two tables
+// (a line starting with "[" inside a multi-line string or array) leaves its piece with an
+// unclosed string or array, which does not decode. So when any piece fails to decode, or a
+// top-level key comes out of two pieces, the whole text is decoded in one go, and its
+// errors are reported exactly as they would be without the cuts.
+func decodeTOML(src string) (map[string]any, error) {
+	cuts := decodeCuts(src, runtime.GOMAXPROCS(0))
+	if len(cuts) > 0 {
+		if doc, ok := decodePieces(src, cuts); ok {
+			return doc, nil
+		}
+	}
+	var doc map[string]any
+	_, err := toml.Decode(src, &doc)
+	return doc, err
+}
+
+// decodePieces decodes src cut at cuts (byte offsets of line starts), one goroutine a piece,
+// and joins the documents; ok is false when a piece does not decode or two pieces give the
+// same top-level key.
+func decodePieces(src string, cuts []int) (map[string]any, bool) {
+	bounds := append(append([]int{0}, cuts...), len(src))
+	docs := make([]map[string]any, len(bounds)-1)
+	failed := make([]bool, len(docs))
+	var wg sync.WaitGroup
+	for i := range docs {
+		wg.Go(func() {
+			_, err := toml.Decode(src[bounds[i]:bounds[i+1]], &docs[i])
+			failed[i] = err != nil
+		})
+	}
+	wg.Wait()
+	n := 0
+	for i, d := range docs {
+		if failed[i] {
+			return nil, false
+		}
+		n += len(d)
+	}
+	doc := make(map[string]any, n)
+	for _, d := range docs {
+		for k, v := range d {
+			if _, dup := doc[k]; dup {
+				return nil, false
+			}
+			doc[k] = v
+		}
+	}
+	return doc, true
+}
+
+// decodeCuts returns where src may be cut for decoding its pieces apart: about 2×procs
+// pieces of at least decodeChunk bytes, each cut at a line that starts a table header whose
+// first key is not the previous header's. It returns nil when the text is too small to cut.
+func decodeCuts(src string, procs int) []int {
+	if procs < 2 || len(src) < 2*decodeChunk {
+		return nil
+	}
+	want := max(decodeChunk, len(src)/(2*procs))
+	var cuts []int
+	last, prevKey := 0, ""
+	for at := 0; at < len(src); {
+		end := strings.IndexByte(src[at:], '\n')
+		if end < 0 {
+			end = len(src)
+		} else {
+			end += at + 1
+		}
+		if key, ok := headerKey(src[at:end]); ok {
+			if key != prevKey && at-last >= want && at > 0 {
+				cuts = append(cuts, at)
+				last = at
+			}
+			prevKey = key
+		}
+		at = end
+	}
+	return cuts
+}
+
+// headerKey returns the first key of a table header ("[a.b]", "[[a]]", `["q.r" . s]`) as
+// written, when the line starts with one at its first column; ok is false for any other line.
+// It need not be exact: a wrong answer only costs the pieces' decoding (decodeTOML).
+func headerKey(line string) (key string, ok bool) {
+	rest, ok := strings.CutPrefix(line, "[")
+	if !ok {
+		return "", false
+	}
+	rest = strings.TrimPrefix(rest, "[")
+	rest = strings.TrimLeft(rest, " \t")
+	if rest == "" {
+		return "", false
+	}
+	var n int
+	switch q := rest[0]; q {
+	case '"', '\'':
+		i := strings.IndexByte(rest[1:], q)
+		if i < 0 {
+			return "", false
+		}
+		n = i + 2
+	default:
+		for n < len(rest) && isBareKey(rest[n]) {
+			n++
+		}
+		if n == 0 {
+			return "", false
+		}
+	}
+	after := strings.TrimLeft(rest[n:], " \t")
+	if after == "" || (after[0] != '.' && after[0] != ']') {
+		return "", false
+	}
+	return rest[:n], true
+}
