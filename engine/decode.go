@@ -25,7 +25,7 @@ const decodeChunk = 32 << 10
 // top-level key comes out of two pieces, the whole text is decoded in one go, and its
 // errors are reported exactly as they would be without the cuts.
 func decodeTOML(src string) (map[string]any, error) {
-	cuts := decodeCuts(src, runtime.GOMAXPROCS(0))
+	cuts := decodeCuts(src, runtime.GOMAXPROCS(0), decodeChunk)
 	if len(cuts) > 0 {
 		if doc, ok := decodePieces(src, cuts); ok {
 			return doc, nil
@@ -71,13 +71,13 @@ func decodePieces(src string, cuts []int) (map[string]any, bool) {
 }
 
 // decodeCuts returns where src may be cut for decoding its pieces apart: about 2×procs
-// pieces of at least decodeChunk bytes, each cut at a line that starts a table header whose
-// first key is not the previous header's. It returns nil when the text is too small to cut.
-func decodeCuts(src string, procs int) []int {
-	if procs < 2 || len(src) < 2*decodeChunk {
+// pieces of at least least bytes, each cut at a line that starts a table header whose first
+// key is not the previous header's. It returns nil when the text is too small to cut.
+func decodeCuts(src string, procs, least int) []int {
+	if procs < 2 || len(src) < 2*least {
 		return nil
 	}
-	want := max(decodeChunk, len(src)/(2*procs))
+	want := max(least, len(src)/(2*procs))
 	var cuts []int
 	last, prevKey := 0, ""
 	for at := 0; at < len(src); {

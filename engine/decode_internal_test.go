@@ -48,7 +48,7 @@ func TestDecodePiecesIsWholeDecode(t *testing.T) {
 			t.Errorf("%s: pieces differ from the whole decode (errors %v, %v)", name, gerr, werr)
 		}
 		if strings.HasPrefix(name, "generated") {
-			cuts := decodeCuts(src, 2)
+			cuts := decodeCuts(src, 2, decodeChunk)
 			if len(cuts) < 1 {
 				t.Errorf("%s: %d cuts, want the text cut into pieces", name, len(cuts))
 			}
@@ -83,7 +83,7 @@ func TestDecodePiecesFallsBack(t *testing.T) {
 		"array of tables split":   filler("a") + "[[b]]\nn = 1\n" + filler("c") + "[[b]]\nn = 2\n",
 	}
 	for name, src := range cases {
-		if len(decodeCuts(src, 2)) == 0 {
+		if len(decodeCuts(src, 2, decodeChunk)) == 0 {
 			t.Errorf("%s: not cut; the case tests nothing", name)
 			continue
 		}
@@ -114,4 +114,39 @@ func TestHeaderKey(t *testing.T) {
 			t.Errorf("headerKey(%q) = %q, want no header", line, got)
 		}
 	}
+}
+
+// FuzzDecodePieces checks the claim decodeTOML rests on, on any text: when every piece of a
+// text cut at its table headers decodes and no top-level key comes out of two pieces, the
+// whole text decodes, to the same document. The text is cut at every header whose first key
+// changes (pieces of any size), so small inputs exercise it.
+func FuzzDecodePieces(f *testing.F) {
+	for _, s := range []string{
+		"a = 1\n[b]\nx = 1\n[c]\ny = 2\n",
+		"[a]\nx = 1\n[b]\ny = 1\n[a.c]\nz = 1\n",
+		"s = \"\"\"\n[b]\n\"\"\"\n[c]\nx = 1\n",
+		"[[a]]\nn = 1\n[b]\n[[a]]\nn = 2\n",
+		"x = [\n[\"b\"],\n]\n[c]\n",
+		"a.b = 1\n[a]\nc = 2\n",
+		"[a]\nb = {c = 1}\n[d]\n[a.b.e]\n",
+	} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, src string) {
+		cuts := decodeCuts(src, 1<<20, 0)
+		if len(cuts) == 0 {
+			return
+		}
+		got, ok := decodePieces(src, cuts)
+		if !ok {
+			return
+		}
+		want, err := wholeDecode(src)
+		if err != nil {
+			t.Fatalf("the pieces decode and join but the whole text does not: %v", err)
+		}
+		if !reflect.DeepEqual(got, want) {
+			t.Fatalf("pieces give %v, the whole text %v", got, want)
+		}
+	})
 }
