@@ -1,6 +1,7 @@
 package engine
 
 import (
+	"bytes"
 	"errors"
 	"fmt"
 	"io"
@@ -68,32 +69,22 @@ func readSheet(fsys fs.FS, name string, part bool) ([]byte, error) {
 		return nil, readErr(err)
 	}
 	defer f.Close()
-	if part {
-		if fi, err := f.Stat(); err != nil || !fi.Mode().IsRegular() {
-			return nil, errors.New("not a regular file")
-		}
+	fi, err := f.Stat()
+	if part && (err != nil || !fi.Mode().IsRegular()) {
+		return nil, errors.New("not a regular file")
 	}
-	// A regular file is read into a buffer of its size and one byte more, which tells that
-	// it did not grow since (io.ReadAll doubles its way up: 17 MB of copies for a 3 MB sheet).
-	size := 512
-	if fi, err := f.Stat(); err == nil && fi.Mode().IsRegular() {
-		size = int(min(fi.Size(), maxFileSize)) + 1
+	// A regular file is read into a buffer of its size and the room of one more read, which
+	// finds the end without growing it (io.ReadAll doubles its way up: 17 MB of copies for a
+	// 3 MB sheet).
+	size := 0
+	if err == nil && fi.Mode().IsRegular() {
+		size = int(min(fi.Size(), maxFileSize+1))
 	}
-	data := make([]byte, 0, size)
-	for len(data) <= maxFileSize {
-		if len(data) == cap(data) {
-			data = append(data, 0)[:len(data)]
-		}
-		n, err := f.Read(data[len(data):min(cap(data), maxFileSize+1)])
-		data = data[:len(data)+n]
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			return nil, readErr(err)
-		}
+	buf := bytes.NewBuffer(make([]byte, 0, size+bytes.MinRead))
+	if _, err := buf.ReadFrom(io.LimitReader(f, maxFileSize+1)); err != nil {
+		return nil, readErr(err)
 	}
-	return data, nil
+	return buf.Bytes(), nil
 }
 
 // readErr words a read error for the diagnostic "cannot read FILE: …".
