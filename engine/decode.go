@@ -24,12 +24,24 @@ const decodeChunk = 32 << 10
 // unclosed string or array, which does not decode. So when any piece fails to decode, or a
 // top-level key comes out of two pieces, the whole text is decoded in one go, and its
 // errors are reported exactly as they would be without the cuts.
+//
+// Each piece, or the whole text, is decoded by quickDecode when it is written in the plain
+// TOML that quickDecode reads, and by the TOML decoder otherwise.
 func decodeTOML(src string) (map[string]any, error) {
 	cuts := decodeCuts(src, runtime.GOMAXPROCS(0), decodeChunk)
 	if len(cuts) > 0 {
 		if doc, ok := decodePieces(src, cuts); ok {
 			return doc, nil
 		}
+	}
+	return decodePiece(src)
+}
+
+// decodePiece decodes one piece of a worksheet: by quickDecode when it can, else by the
+// TOML decoder.
+func decodePiece(src string) (map[string]any, error) {
+	if doc, ok := quickDecode(src); ok {
+		return doc, nil
 	}
 	var doc map[string]any
 	_, err := toml.Decode(src, &doc)
@@ -46,7 +58,8 @@ func decodePieces(src string, cuts []int) (map[string]any, bool) {
 	var wg sync.WaitGroup
 	for i := range docs {
 		wg.Go(func() {
-			_, err := toml.Decode(src[bounds[i]:bounds[i+1]], &docs[i])
+			var err error
+			docs[i], err = decodePiece(src[bounds[i]:bounds[i+1]])
 			failed[i] = err != nil
 		})
 	}
