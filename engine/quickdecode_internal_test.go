@@ -141,4 +141,3 @@ func FuzzQuickDecode(f *testing.F) {
 		}
 	})
 }
-
