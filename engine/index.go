@@ -251,10 +251,17 @@ type tomlScanner struct {
 	ix        *posIndex
 	arrays    map[string]int // array-of-tables path -> count so far
 	parts     []string       // key's result, reused from key to key
+	last      string         // the path added last
 }
 
 func indexTOML(src string) *posIndex {
-	s := &tomlScanner{src: src, line: 1, col: 1, ix: &posIndex{pos: map[string]int32{}, first: map[string]Pos{}}, arrays: map[string]int{}}
+	// Worksheets hold about one key a line, and implied tables are a few in a hundred keys:
+	// sizing the maps from the line count spares their growth, which rehashed 134,000 paths
+	// several times over on a 100,000-quantity sheet.
+	lines := strings.Count(src, "\n") + 1
+	keys := lines + lines/8
+	ix := &posIndex{pos: make(map[string]int32, keys), first: make(map[string]Pos, keys/8), order: make([]string, 0, keys)}
+	s := &tomlScanner{src: src, line: 1, col: 1, ix: ix, arrays: map[string]int{}}
 	defer func() { _ = recover() }() // a scanner bug must never take the loader down
 	s.document()
 	return s.ix
@@ -271,6 +278,11 @@ func (s *tomlScanner) peek() byte {
 
 func (s *tomlScanner) adv() {
 	if s.i >= len(s.src) {
+		return
+	}
+	if c := s.src[s.i]; c < utf8.RuneSelf && c != '\n' {
+		s.i++
+		s.col++
 		return
 	}
 	r, n := utf8.DecodeRuneInString(s.src[s.i:])
@@ -300,24 +312,43 @@ func (s *tomlScanner) skipSpace(newlines bool) {
 }
 
 // add records a key's positions unless the path is already known (the first definition
-// wins; the decoder reports the second).
-func (s *tomlScanner) add(path string, kp keyPos) bool {
-	if _, dup := s.ix.pos[path]; dup {
-		return false
+// wins; the decoder reports the second), and returns its place in kps.
+func (s *tomlScanner) add(path string, kp keyPos) (int32, bool) {
+	if i, dup := s.ix.pos[path]; dup {
+		return i, false
 	}
-	s.ix.pos[path] = s.ix.kps.add(kp)
+	at := s.ix.kps.add(kp)
+	s.ix.pos[path] = at
 	s.ix.order = append(s.ix.order, path)
+	// The prefixes this path shares with the one added before it were recorded with that one
+	// (or earlier), so only the prefixes past the shared part are looked up.
+	shared := commonPrefix(path, s.last)
+	s.last = path
 	for i := 1; i < len(path); i++ {
 		switch path[i] {
 		case '\\':
 			i++
 		case '.', '[':
+			if i < shared {
+				continue
+			}
 			if _, seen := s.ix.first[path[:i]]; !seen {
 				s.ix.first[path[:i]] = kp.Key
 			}
 		}
 	}
-	return true
+	return at, true
+}
+
+// commonPrefix returns the length of the longest common prefix of a and b.
+func commonPrefix(a, b string) int {
+	n := min(len(a), len(b))
+	for i := 0; i < n; i++ {
+		if a[i] != b[i] {
+			return i
+		}
+	}
+	return n
 }
 
 // setValEnd records where a table or array value added before its contents ends.
@@ -419,13 +450,12 @@ func (s *tomlScanner) value(path string, kpos, kend Pos) bool {
 		kp.Content, sv.Text, sv.segs = s.str()
 		sv.base = kp.Content.Byte
 		kp.ValEnd = s.here()
-		if _, dup := s.ix.pos[path]; !dup {
-			kp.str = s.ix.strs.add(sv) + 1
-		}
 		if kend == kpos { // an element of an array has no key: its value stands for it
 			kp.KeyEnd = kp.ValEnd
 		}
-		s.add(path, kp)
+		if i, added := s.add(path, kp); added {
+			s.ix.kps.at(i).str = s.ix.strs.add(sv) + 1
+		}
 	case '{':
 		s.add(path, keyPos{Key: kpos, KeyEnd: kend, Val: vpos, Inline: true})
 		s.adv()
@@ -491,7 +521,7 @@ func (s *tomlScanner) value(path string, kpos, kend Pos) bool {
 // multi-line string's closing quotes belonging to its content.
 func (s *tomlScanner) str() (content Pos, text string, segs []strSeg) {
 	q := s.peek()
-	triple := strings.HasPrefix(s.src[s.i:], strings.Repeat(string(q), 3))
+	triple := s.three(q)
 	n := 1
 	if triple {
 		n = 3
@@ -532,7 +562,7 @@ func (s *tomlScanner) str() (content Pos, text string, segs []strSeg) {
 		if c == '\n' && !triple {
 			return finish(s.i)
 		}
-		if c == q && (!triple || strings.HasPrefix(s.src[s.i:], strings.Repeat(string(q), 3))) {
+		if c == q && (!triple || s.three(q)) {
 			run := 0
 			for s.i+run < len(s.src) && s.src[s.i+run] == q {
 				run++
@@ -549,6 +579,11 @@ func (s *tomlScanner) str() (content Pos, text string, segs []strSeg) {
 		s.adv()
 	}
 	return finish(s.i)
+}
+
+// three reports whether the text at the scanner is the quote q three times.
+func (s *tomlScanner) three(q byte) bool {
+	return len(s.src)-s.i >= 3 && s.src[s.i] == q && s.src[s.i+1] == q && s.src[s.i+2] == q
 }
 
 // escape reads one escape of a basic string (at the backslash), appends what it stands for
