@@ -27,60 +27,69 @@ const decodeChunk = 32 << 10
 //
 // Each piece, or the whole text, is decoded by quickDecode when it is written in the plain
 // TOML that quickDecode reads, and by the TOML decoder otherwise.
-func decodeTOML(src string) (map[string]any, error) {
+//
+// values is the number of values that are not tables or arrays when quickDecode read all of
+// the text, and -1 when the decoder read any of it.
+func decodeTOML(src string) (doc map[string]any, values int, err error) {
 	cuts := decodeCuts(src, runtime.GOMAXPROCS(0), decodeChunk)
 	if len(cuts) > 0 {
-		if doc, ok := decodePieces(src, cuts); ok {
-			return doc, nil
+		if doc, values, ok := decodePieces(src, cuts); ok {
+			return doc, values, nil
 		}
 	}
 	return decodePiece(src)
 }
 
-// decodePiece decodes one piece of a worksheet: by quickDecode when it can, else by the
-// TOML decoder.
-func decodePiece(src string) (map[string]any, error) {
-	if doc, ok := quickDecode(src); ok {
-		return doc, nil
+// decodePiece decodes one piece of a worksheet: by quickDecode when it can (giving its count
+// of values), else by the TOML decoder (giving -1).
+func decodePiece(src string) (map[string]any, int, error) {
+	if doc, n, ok := quickDecode(src); ok {
+		return doc, n, nil
 	}
 	var doc map[string]any
 	_, err := toml.Decode(src, &doc)
-	return doc, err
+	return doc, -1, err
 }
 
 // decodePieces decodes src cut at cuts (byte offsets of line starts), one goroutine a piece,
 // and joins the documents; ok is false when a piece does not decode or two pieces give the
-// same top-level key.
-func decodePieces(src string, cuts []int) (map[string]any, bool) {
+// same top-level key. values is as decodeTOML's.
+func decodePieces(src string, cuts []int) (map[string]any, int, bool) {
 	bounds := append(append([]int{0}, cuts...), len(src))
 	docs := make([]map[string]any, len(bounds)-1)
 	failed := make([]bool, len(docs))
+	counts := make([]int, len(docs))
 	var wg sync.WaitGroup
 	for i := range docs {
 		wg.Go(func() {
 			var err error
-			docs[i], err = decodePiece(src[bounds[i]:bounds[i+1]])
+			docs[i], counts[i], err = decodePiece(src[bounds[i]:bounds[i+1]])
 			failed[i] = err != nil
 		})
 	}
 	wg.Wait()
-	n := 0
+	n, values := 0, 0
 	for i, d := range docs {
 		if failed[i] {
-			return nil, false
+			return nil, 0, false
 		}
 		n += len(d)
+		if values >= 0 && counts[i] >= 0 {
+			values += counts[i]
+		} else {
+			values = -1
+		}
 	}
 	doc := make(map[string]any, n)
 	for _, d := range docs {
 		for k, v := range d {
 			if _, dup := doc[k]; dup {
-				return nil, false
+				return nil, 0, false
 			}
 			doc[k] = v
 		}
 	}
-	return doc, true
+	return doc, values, true
 }
 
 // decodeCuts returns where src may be cut for decoding its pieces apart: about 2×procs

@@ -43,7 +43,7 @@ func TestDecodePiecesIsWholeDecode(t *testing.T) {
 	}
 	for name, src := range srcs {
 		want, werr := wholeDecode(src)
-		got, gerr := decodeTOML(src)
+		got, _, gerr := decodeTOML(src)
 		if (werr != nil) != (gerr != nil) || !reflect.DeepEqual(got, want) {
 			t.Errorf("%s: pieces differ from the whole decode (errors %v, %v)", name, gerr, werr)
 		}
@@ -52,7 +52,7 @@ func TestDecodePiecesIsWholeDecode(t *testing.T) {
 			if len(cuts) < 1 {
 				t.Errorf("%s: %d cuts, want the text cut into pieces", name, len(cuts))
 			}
-			if _, ok := decodePieces(src, cuts); !ok {
+			if _, _, ok := decodePieces(src, cuts); !ok {
 				t.Errorf("%s: the pieces did not join", name)
 			}
 		}
@@ -88,7 +88,7 @@ func TestDecodePiecesFallsBack(t *testing.T) {
 			continue
 		}
 		want, werr := wholeDecode(src)
-		got, gerr := decodeTOML(src)
+		got, _, gerr := decodeTOML(src)
 		switch {
 		case (werr == nil) != (gerr == nil):
 			t.Errorf("%s: error %v, want %v", name, gerr, werr)
@@ -137,7 +137,7 @@ func FuzzDecodePieces(f *testing.F) {
 		if len(cuts) == 0 {
 			return
 		}
-		got, ok := decodePieces(src, cuts)
+		got, _, ok := decodePieces(src, cuts)
 		if !ok {
 			return
 		}

@@ -95,6 +95,10 @@ type sheetFile struct {
 	prefix string // part prefix, "" for the worksheet
 	src    string
 	doc    map[string]any // the decoded text (shared with later loads, never changed)
+	// values is the number of doc's values that are not tables or arrays (the most quantities
+	// it can hold), when counted is set (decodeTOML counts them when quickDecode read the text).
+	values  int
+	counted bool
 	// orders holds each table's keys in file order as this load found them (ordered);
 	// prevOrders is the earlier load's, for an edit that kept every key on its line.
 	orders, prevOrders map[string][]string
@@ -166,7 +170,7 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 	// the position index.
 	prevFile := l.sh.prevFile(l.prev, fsPath, prefix)
 	if prevFile != nil && prevFile.src == src {
-		f := &sheetFile{name: display, fsPath: fsPath, ix: prevFile.ix, prefix: prefix, src: src, doc: prevFile.doc, prevOrders: prevFile.orders}
+		f := &sheetFile{name: display, fsPath: fsPath, ix: prevFile.ix, prefix: prefix, src: src, doc: prevFile.doc, prevOrders: prevFile.orders, values: prevFile.values, counted: prevFile.counted}
 		l.sh.files = append(l.sh.files, f)
 		l.document(f, f.doc)
 		return
@@ -174,6 +178,7 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 	// A patched document usually comes with a patched index (patchIndex): only the edited
 	// lines are scanned again. Otherwise the index is built beside the decoding.
 	doc, edits, patched := patchDoc(prevFile, src, nil)
+	values := -1
 	var ix *posIndex
 	if patched {
 		l.sh.npatched++
@@ -185,10 +190,10 @@ func (l *loader) load(fsPath, display, prefix string, at Range) {
 	} else {
 		ixc := make(chan *posIndex, 1)
 		go func() { ixc <- indexTOML(src) }()
-		doc, err = decodeTOML(src)
+		doc, values, err = decodeTOML(src)
 		ix = <-ixc
 	}
-	f := &sheetFile{name: display, fsPath: fsPath, ix: ix, prefix: prefix, src: src, doc: doc}
+	f := &sheetFile{name: display, fsPath: fsPath, ix: ix, prefix: prefix, src: src, doc: doc, values: values, counted: values >= 0}
 	if patched {
 		f.prevOrders = prevFile.orders // every key is on the line it was on
 	}

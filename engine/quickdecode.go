@@ -23,22 +23,26 @@ import (
 // integers, inf and nan, underscores in numbers, the TOML 1.1 escapes and inline tables, a
 // byte-order mark, control characters, and every error go to the decoder, so its messages
 // and its reading of the rarer forms stay the only ones.
-func quickDecode(src string) (doc map[string]any, ok bool) {
+//
+// It also returns the number of values it read that are not tables or arrays: the most
+// quantities the document can hold.
+func quickDecode(src string) (doc map[string]any, values int, ok bool) {
 	if !utf8.ValidString(src) || len(src) >= 3 && src[:3] == "\ufeff" {
-		return nil, false
+		return nil, 0, false
 	}
 	d := quickDecoder{src: src, root: &quickTable{m: map[string]any{}}}
 	if !d.document() {
-		return nil, false
+		return nil, 0, false
 	}
-	return d.root.m, true
+	return d.root.m, d.values, true
 }
 
 type quickDecoder struct {
-	src  string
-	i    int
-	root *quickTable
-	keys []string // a header's keys, reused
+	src    string
+	i      int
+	root   *quickTable
+	keys   []string // a header's keys, reused
+	values int      // values read that are not tables or arrays
 }
 
 // quickTable is a table made by a header (or implied by one): its keys and values, and the
@@ -205,16 +209,20 @@ func (d *quickDecoder) value(depth int) (any, bool) {
 	}
 	switch c := d.src[d.i]; {
 	case c == '"' || c == '\'':
+		d.values++
 		return d.str()
 	case c == '[':
 		return d.array(depth)
 	case c == '{':
 		return d.inline(depth)
 	case c == 't':
+		d.values++
 		return d.word("true", true)
 	case c == 'f':
+		d.values++
 		return d.word("false", false)
 	default:
+		d.values++
 		return d.number()
 	}
 }

@@ -35,7 +35,7 @@ func TestQuickDecodeReads(t *testing.T) {
 		"no_newline_at_end = 1",
 		"1 = 'digit key'\ntrue = 'word key'\n",
 	} {
-		got, ok := quickDecode(src)
+		got, _, ok := quickDecode(src)
 		if !ok {
 			t.Errorf("quickDecode(%q) gave up, want it read", src)
 			continue
@@ -65,7 +65,7 @@ func TestQuickDecodeGivesUp(t *testing.T) {
 		"a = nan\n", "a = -inf\n", "a = \"\\e\"\n", "a = \"\\x41\"\n", "a = {b = 1,}\n",
 		"a = {b = 1,\nc = 2}\n", "\ufeffa = 1\n", "a = {b.c = 1}\n",
 	} {
-		if got, ok := quickDecode(src); ok {
+		if got, _, ok := quickDecode(src); ok {
 			want, err := wholeDecode(src)
 			t.Errorf("quickDecode(%q) = %#v, want it to give up (the decoder gives %#v, %v)", src, got, want, err)
 		}
@@ -81,7 +81,7 @@ func TestQuickDecodeSheets(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		got, ok := quickDecode(string(b))
+		got, _, ok := quickDecode(string(b))
 		if !ok {
 			t.Errorf("generated %d: quickDecode gave up", n)
 			continue
@@ -101,7 +101,7 @@ func TestQuickDecodeSheets(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		got, ok := quickDecode(string(b))
+		got, _, ok := quickDecode(string(b))
 		if !ok {
 			continue
 		}
@@ -128,7 +128,7 @@ func FuzzQuickDecode(f *testing.F) {
 		f.Add(s)
 	}
 	f.Fuzz(func(t *testing.T, src string) {
-		got, ok := quickDecode(src)
+		got, _, ok := quickDecode(src)
 		if !ok {
 			return
 		}
@@ -138,6 +138,39 @@ func FuzzQuickDecode(f *testing.F) {
 		}
 		if !reflect.DeepEqual(got, want) {
 			t.Fatalf("quickDecode(%q) = %#v, the decoder gives %#v", src, got, want)
+		}
+	})
+}
+
+// BenchmarkReadText measures the three readings of a generated 100k-quantity sheet's text
+// that loading starts with, each on one core: the position index, quickDecode, and the TOML
+// decoder it spares (the baseline, measured in the same run).
+func BenchmarkReadText(b *testing.B) {
+	src, err := gen.Budget(100_000, 1)
+	if err != nil {
+		b.Fatal(err)
+	}
+	text := string(src)
+	b.Run("index", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			indexTOML(text)
+		}
+	})
+	b.Run("quick", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			if _, _, ok := quickDecode(text); !ok {
+				b.Fatal("quickDecode gave up")
+			}
+		}
+	})
+	b.Run("decoder", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			if _, err := wholeDecode(text); err != nil {
+				b.Fatal(err)
+			}
 		}
 	})
 }
