@@ -69,3 +69,6 @@ func indexDiff(a, b *posIndex) string {
 	}
 	return ""
 }
+
+// BuiltAhead returns how many groups the sheet's Load built ahead on the cores.
+func BuiltAhead(s *Sheet) int { return s.nahead }

@@ -231,7 +231,9 @@ func (l *loader) document(f *sheetFile, doc map[string]any) {
 	top := &Group{Name: f.prefix, Range: Range{File: f.name, Start: Pos{Line: 1, Col: 1}}}
 	l.sh.Groups = append(l.sh.Groups, top)
 	main := f.prefix == ""
-	for _, key := range l.ordered(f, "", doc) {
+	keys := l.ordered(f, "", doc)
+	a := l.buildAhead(f, doc, keys)
+	for _, key := range keys {
 		v := doc[key]
 		r := f.rangeOf(escapeKey(key))
 		switch key {
@@ -279,7 +281,7 @@ func (l *loader) document(f *sheetFile, doc map[string]any) {
 					continue
 				}
 			}
-			l.member(f, top, escapeKey(key), key, v)
+			l.memberAhead(f, top, escapeKey(key), key, v, a)
 		}
 	}
 }

@@ -44,6 +44,7 @@ type Sheet struct {
 	graph    *graphCache // shared with sheets made from this one by keepModel (the graph is the same)
 	nparsed  int         // formulas parsed by Load (the others were reused from Options.Previous)
 	npatched int         // files whose edit was patched into the earlier load's decoded text
+	nahead   int         // groups built ahead on the cores (buildAhead)
 	// nindexPatched counts the files whose position index was patched too
 	nindexPatched int
 	id            uint64    // this load's number (sheetIDs)
